@@ -1,0 +1,11 @@
+"""Standard-state thermodynamics: NASA 7-coefficient polynomials and the species database."""
+
+from .database import CriticalConstants as CriticalConstants
+from .database import SpeciesDatabase as SpeciesDatabase
+from .database import SpeciesRecord as SpeciesRecord
+from .database import default_database as default_database
+from .database import load_database as load_database
+from .formation import FormationProperties as FormationProperties
+from .formation import formation_properties as formation_properties
+from .nasa7 import R as R
+from .nasa7 import Nasa7Table as Nasa7Table
