@@ -39,6 +39,7 @@ STATE_SUFFIXES: Mapping[str, str] = {
 }
 
 _SUFFIX = re.compile(r"\((g|l|s|cr|aq)\)$")
+_CLOSING = {"(": ")", "[": "]"}
 _TOKEN = re.compile(r"([A-Z][a-z]?)|(\d+(?:\.\d+)?)|([(\[])|([)\]])")
 
 
@@ -77,8 +78,10 @@ def parse_formula(formula: str) -> dict[str, float]:
     >>> parse_formula("(CH3)2O")
     {'C': 2.0, 'H': 6.0, 'O': 1.0}
     """
-    if not isinstance(formula, str) or not formula.strip():
-        raise FormulaError(str(formula), 0, "empty formula")
+    if not isinstance(formula, str):
+        raise FormulaError(str(formula), 0, f"a formula must be text, not {type(formula).__name__}")
+    if not formula.strip():
+        raise FormulaError(formula, 0, "empty formula")
     text = formula.strip()
     bare, _ = split_state(text)
     stack: list[dict[str, float]] = [{}]
@@ -114,6 +117,10 @@ def parse_formula(formula: str) -> dict[str, float]:
         else:
             if len(stack) == 1:
                 raise FormulaError(text, pos, "closing bracket without an opening one")
+            if _CLOSING[bare[opened_at[-1]]] != closer:
+                raise FormulaError(
+                    text, pos, f"{closer!r} closes the {bare[opened_at[-1]]!r} at position {opened_at[-1]}"
+                )
             group = stack.pop()
             opened_at.pop()
             if not group:

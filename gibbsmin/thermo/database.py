@@ -5,7 +5,7 @@ from __future__ import annotations
 import functools
 import os
 import tomllib
-from collections.abc import Iterable, Iterator, Mapping
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -82,7 +82,7 @@ class SpeciesDatabase:
                 if alias in self._by_name or self._by_alias.get(key, i) != i:
                     raise DataError(f"alias {alias!r} of {record.name} is already taken")
                 self._by_alias[key] = i
-        self._table = _table_of(self._records)
+        self._table = nasa7_table(self._records)
 
     def __len__(self) -> int:
         return len(self._records)
@@ -137,7 +137,8 @@ class SpeciesDatabase:
         return found
 
 
-def _table_of(records: tuple[SpeciesRecord, ...]) -> Nasa7Table:
+def nasa7_table(records: Sequence[SpeciesRecord]) -> Nasa7Table:
+    """The polynomial table of records, in their order."""
     if not records:
         empty = np.zeros((0, 7))
         return Nasa7Table(empty, empty, np.zeros(0), np.zeros(0), np.zeros(0))
@@ -195,7 +196,7 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         critical=critical,
         note=str(entry.get("nasa_note", "")),
     )
-    h298 = float(_table_of((record,)).h_RT(298.15)[0]) * R * 298.15
+    h298 = float(nasa7_table((record,)).h_RT(298.15)[0]) * R * 298.15
     if abs(h298 - record.hf298) > 1.0:
         raise DataError(f"{context}: hf298 = {record.hf298} J/mol disagrees with its polynomial ({h298:.3f} J/mol)")
     return record

@@ -1,0 +1,163 @@
+"""The Equilibrium result: amounts by phase, compositions, element potentials and the certificate."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .solve.certificate import Certificate
+from .system import P_REF
+
+#: Species left out of dry-basis compositions.
+WATER = "H2O"
+
+
+@dataclass(frozen=True)
+class Equilibrium:
+    """The equilibrium state of one problem.
+
+    Attributes
+    ----------
+    T : float
+        Temperature, [K].
+    P : float
+        Pressure, [Pa].
+    amounts : dict
+        Species name to amount, [mol], for every species of the set (all phases).
+    phase_of : dict
+        Species name to its phase: ``"gas"``, or the species' own name for a
+        pure condensed species (each is a phase of its own).
+    ln_gas_amounts : dict
+        Natural logarithm of each gas amount [ln mol]; exact where ``amounts``
+        underflows to zero (``-inf`` for species absent by element balance).
+    element_potentials : dict
+        Element to lambda_k = mu/RT per atom [-]; NaN for elements absent from
+        the feed.  Pseudo-elements of inert species are named ``[species]``.
+    G_RT : float
+        Total Gibbs energy over RT, [mol] (formation basis).
+    certificate : Certificate
+    specification : str
+        What was held fixed, e.g. "T and P".
+    gas_model : str
+    omitted : dict
+        Species of the default set left out, with the reason.
+    extras : dict
+        Further results by name (duty, approach temperatures, ...) filled in by
+        the layers above the core.
+    """
+
+    T: float
+    P: float
+    amounts: Mapping[str, float]
+    phase_of: Mapping[str, str]
+    ln_gas_amounts: Mapping[str, float]
+    element_potentials: Mapping[str, float]
+    G_RT: float
+    certificate: Certificate
+    specification: str = "T and P"
+    gas_model: str = "ideal"
+    omitted: Mapping[str, str] = field(default_factory=dict)
+    extras: Mapping[str, object] = field(default_factory=dict)
+
+    @property
+    def species(self) -> tuple[str, ...]:
+        return tuple(self.amounts)
+
+    @property
+    def gas_amount(self) -> float:
+        """Total amount of the gas phase, [mol]."""
+        return float(sum(n for s, n in self.amounts.items() if self.phase_of[s] == "gas"))
+
+    @property
+    def mole_fractions(self) -> dict[str, float]:
+        """Gas-phase mole fractions, wet basis, computed from the log amounts (exact for trace species)."""
+        ln_total = np.log(self.gas_amount)
+        return {s: float(np.exp(v - ln_total)) for s, v in self.ln_gas_amounts.items()}
+
+    @property
+    def dry_mole_fractions(self) -> dict[str, float]:
+        """Gas-phase mole fractions with water left out."""
+        wet = self.mole_fractions
+        dry_total = 1.0 - wet.get(WATER, 0.0)
+        return {s: y / dry_total for s, y in wet.items() if s != WATER}
+
+    @property
+    def partial_pressures(self) -> dict[str, float]:
+        """y_j P for each gas species, [Pa]."""
+        return {s: y * self.P for s, y in self.mole_fractions.items()}
+
+    @property
+    def amounts_by_phase(self) -> dict[str, dict[str, float]]:
+        """Phase name to {species: mol} for every phase present."""
+        phases: dict[str, dict[str, float]] = {}
+        for s, n in self.amounts.items():
+            phase = self.phase_of[s]
+            if phase != "gas" and n <= 0.0:
+                continue
+            phases.setdefault(phase, {})[s] = n
+        return phases
+
+    @property
+    def phases_present(self) -> tuple[str, ...]:
+        return tuple(self.amounts_by_phase)
+
+    @property
+    def condensed(self) -> dict[str, float]:
+        """Amounts of the condensed species present, [mol]."""
+        return {s: n for s, n in self.amounts.items() if self.phase_of[s] != "gas" and n > 0.0}
+
+    def to_dict(self) -> dict[str, object]:
+        """A JSON-ready description (SI units: K, Pa, mol)."""
+        y = self.mole_fractions
+        return {
+            "T_K": self.T,
+            "P_Pa": self.P,
+            "specification": self.specification,
+            "gas_model": self.gas_model,
+            "reference_pressure_Pa": P_REF,
+            "species": {
+                s: {"phase": self.phase_of[s], "amount_mol": n,
+                    "mole_fraction_in_phase": y[s] if self.phase_of[s] == "gas" else (1.0 if n > 0 else 0.0)}
+                for s, n in self.amounts.items()
+            },
+            "phases_present": list(self.phases_present),
+            "element_potentials": {k: (None if np.isnan(v) else v) for k, v in self.element_potentials.items()},
+            "G_RT_mol": self.G_RT,
+            "certificate": {
+                "certified": self.certificate.certified,
+                "solver": self.certificate.solver,
+                "iterations": self.certificate.iterations,
+                "element_balance_residual": self.certificate.element_balance,
+                "stationarity_residual": self.certificate.stationarity,
+                "condensed_phase_margin": (None if np.isinf(self.certificate.complementarity)
+                                           else self.certificate.complementarity),
+            },
+            "omitted_species": dict(self.omitted),
+            **{k: v for k, v in self.extras.items()},
+        }
+
+    def table(self, cutoff: float = 1e-12) -> str:
+        """A plain-text table of the species above ``cutoff`` mole fraction in their phase."""
+        y = self.mole_fractions
+        dry = self.dry_mole_fractions
+        lines = [
+            f"Equilibrium at T = {self.T:.2f} K ({self.T - 273.15:.2f} degC), "
+            f"P = {self.P / 1e5:.5g} bar; fixed {self.specification}; gas model: {self.gas_model}",
+            f"{'species':<12} {'phase':<8} {'amount/mol':>14} {'mol% wet':>12} {'mol% dry':>12}",
+        ]
+        gas_rows = sorted((s for s in y if y[s] >= cutoff), key=lambda s: -y[s])
+        for s in gas_rows:
+            dry_text = f"{100 * dry[s]:12.6g}" if s in dry else f"{'-':>12}"
+            lines.append(f"{s:<12} {'gas':<8} {self.amounts[s]:14.6g} {100 * y[s]:12.6g} {dry_text}")
+        for s, n in self.condensed.items():
+            lines.append(f"{s:<12} {'cond.':<8} {n:14.6g} {'':>12} {'':>12}")
+        hidden = len(y) - len(gas_rows)
+        if hidden:
+            lines.append(f"({hidden} gas species below {cutoff:g} mole fraction not shown)")
+        lines.append(self.certificate.summary())
+        return "\n".join(lines)
+
+    def __str__(self) -> str:
+        return self.table()

@@ -1,0 +1,253 @@
+"""``equilibrate``: the public entry point for equilibrium at fixed temperature and pressure.
+
+This module turns names and numbers into a System and a Problem, hands the
+Problem to a solver, and turns the solver's arrays back into an Equilibrium.
+Everything here works in K, Pa and mol; the trade's units are read elsewhere.
+"""
+
+from __future__ import annotations
+
+import math
+import numbers
+import warnings
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .equilibrium import Equilibrium
+from .errors import ConvergenceError, InputError, TemperatureRangeError
+from .solve import SOLVERS, SolverResult, solve
+from .system import Problem, System, reduce, select_species, standard_mu0
+from .thermo.database import SpeciesDatabase, default_database
+
+#: Beyond this stationarity residual an uncertified answer is refused rather than returned with a warning.
+_USABLE_STATIONARITY = 1e-4
+
+
+@dataclass(frozen=True)
+class Setup:
+    """A feed on a species set, ready to be solved at any T inside the data ranges.
+
+    Attributes
+    ----------
+    system : System
+    feed : dict
+        Canonical species name to amount, [mol].
+    b : ndarray
+        Element totals of the feed on the system's element rows, [mol].
+    omitted : dict
+        Default-set species left out, with the reason.
+    explicit : frozenset
+        Species the caller named (feed, explicit set): out of range is an error for them.
+    """
+
+    system: System
+    feed: Mapping[str, float]
+    b: NDArray[np.float64]
+    omitted: Mapping[str, str]
+    explicit: frozenset[str]
+
+
+def _positive_number(value: object, name: str, unit: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise InputError(f"{name} must be a number in {unit}, got {value!r}")
+    value = float(value)
+    if not math.isfinite(value) or value <= 0.0:
+        raise InputError(f"{name} must be a positive finite number in {unit}, got {value!r}")
+    return value
+
+
+def check_feed(feed: object, db: SpeciesDatabase) -> dict[str, float]:
+    """Canonical names and validated amounts of a feed mapping."""
+    if not isinstance(feed, Mapping) or not feed:
+        raise InputError("feed must be a non-empty mapping of species name to amount in mol, e.g. {'CH4': 1, 'H2O': 3}")
+    amounts: dict[str, float] = {}
+    for name, amount in feed.items():
+        record = db[str(name)]
+        if isinstance(amount, bool) or not isinstance(amount, numbers.Real) or not math.isfinite(float(amount)):
+            raise InputError(f"feed amount of {name} must be a finite number of mol, got {amount!r}")
+        if amount < 0:
+            raise InputError(f"feed amount of {name} is negative ({amount}); amounts must be zero or positive")
+        amounts[record.name] = amounts.get(record.name, 0.0) + float(amount)
+    if sum(amounts.values()) <= 0.0:
+        raise InputError("every feed amount is zero; give at least one species a positive amount")
+    return amounts
+
+
+def prepare(
+    feed: Mapping[str, float],
+    *,
+    species: Sequence[str] | None = None,
+    exclude: Sequence[str] = (),
+    inert: Sequence[str] = (),
+    T_span: tuple[float, float] | None = None,
+    db: SpeciesDatabase | None = None,
+    allow_extrapolation: bool = False,
+) -> Setup:
+    """Build the species set and element totals of a feed.
+
+    ``T_span`` (lowest and highest temperature the solve may visit, [K]) decides
+    which default-set gas species are left out for lack of data.
+    """
+    db = db or default_database()
+    amounts = check_feed(feed, db)
+    if isinstance(species, str) or isinstance(exclude, str) or isinstance(inert, str):
+        raise InputError("species, exclude and inert take lists of names, e.g. exclude=['C(s)']")
+    records = select_species(db, list(amounts), species, exclude)
+    explicit = set(amounts) | ({db[s].name for s in species} if species is not None else set())
+    inert_names = [db[name].name for name in inert]
+    for name in inert_names:
+        if name not in amounts:
+            raise InputError(f"inert species {name} is not in the feed; inert species keep their feed amount")
+    omitted: dict[str, str] = {}
+    if T_span is not None and not allow_extrapolation:
+        T_lo, T_hi = T_span
+        kept = []
+        for record in records:
+            if not record.is_gas or record.T_min <= T_lo and T_hi <= record.T_max:
+                kept.append(record)
+            elif record.name in explicit:
+                T_bad = T_lo if T_lo < record.T_min else T_hi
+                raise TemperatureRangeError(record.name, T_bad, record.T_min, record.T_max)
+            else:
+                omitted[record.name] = f"no data from {T_lo:g} K to {T_hi:g} K (fitted {record.T_min:g} to {record.T_max:g} K)"
+        records = kept
+    system = System.from_records(records, inert=inert_names)
+    return Setup(system, amounts, system.element_totals(amounts), omitted, frozenset(explicit))
+
+
+def build_problem(setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64],
+                  b: NDArray[np.float64] | None = None, ln_phi: NDArray[np.float64] | None = None,
+                  allow_extrapolation: bool = False) -> Problem:
+    """The dimensionless problem of a setup at temperatures T [K] and pressures P [Pa] (batches)."""
+    system = setup.system
+    T = np.atleast_1d(np.asarray(T, dtype=float))
+    outside = system.table.outside_range(T)
+    if not allow_extrapolation:
+        gas_outside = outside[:, : system.n_gas]
+        if np.any(gas_outside):
+            point, j = np.argwhere(gas_outside)[0]
+            record = system.records[j]
+            raise TemperatureRangeError(record.name, float(T[point]), record.T_min, record.T_max)
+    allowed = ~outside if not allow_extrapolation else np.ones_like(outside)
+    allowed[:, : system.n_gas] = True
+    b = setup.b if b is None else b
+    b = np.broadcast_to(np.atleast_2d(b), (T.size, system.A.shape[0]))
+    return reduce(system, b, standard_mu0(system, T, P, ln_phi), allowed)
+
+
+def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certificates, i: int,
+                   T: float, P: float, gas_model: str = "ideal", specification: str = "T and P") -> Equilibrium:
+    """The Equilibrium of point i of a solved batch."""
+    system = setup.system
+    names = system.names
+    S = len(names)
+    ln_n = np.full(S, -np.inf)
+    n = np.zeros(S)
+    G = problem.n_gas
+    keep = problem.keep
+    ln_n[keep[:G]] = result.ln_n_gas[i]
+    n[keep[:G]] = np.exp(result.ln_n_gas[i])
+    n[keep[G:]] = result.n_condensed[i]
+    mu = problem.mu0[i].copy()
+    mu[:G] += result.ln_n_gas[i] - np.log(n[keep[:G]].sum())
+    n_kept = n[keep]
+    G_RT = float(np.sum(n_kept[n_kept > 0] * mu[n_kept > 0]))
+    potentials = _element_potentials(system, problem, result.pi[i])
+    omitted = dict(setup.omitted)
+    for local in np.flatnonzero(~problem.allowed[i]):
+        omitted[names[keep[local]]] = "outside its data range at this temperature: cannot appear"
+    return Equilibrium(
+        T=T, P=P,
+        amounts={s: float(v) for s, v in zip(names, n)},
+        phase_of={r.name: ("gas" if r.is_gas else r.name) for r in system.records},
+        ln_gas_amounts={s: float(ln_n[j]) for j, s in enumerate(system.gas_names)},
+        element_potentials=potentials,
+        G_RT=G_RT,
+        certificate=certificates[i],
+        specification=specification,
+        gas_model=gas_model,
+        omitted=omitted,
+    )
+
+
+def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64]) -> dict[str, float]:
+    """Potentials on the System's element rows; NaN for elements absent from the feed."""
+    A_kept = system.A[:, problem.keep]
+    present = np.any(A_kept != 0.0, axis=1)
+    lam = np.full(len(system.elements), np.nan)
+    # Dependent element rows were dropped for the solve; the least-norm
+    # potentials reproduce the same species potentials on all rows.
+    lam[present] = np.linalg.lstsq(A_kept[present].T, pi @ problem.A, rcond=None)[0]
+    return {el: float(v) for el, v in zip(system.elements, lam)}
+
+
+def equilibrate(
+    feed: Mapping[str, float],
+    T: float,
+    P: float,
+    *,
+    species: Sequence[str] | None = None,
+    exclude: Sequence[str] = (),
+    inert: Sequence[str] = (),
+    method: str = "auto",
+    db: SpeciesDatabase | None = None,
+    allow_extrapolation: bool = False,
+) -> Equilibrium:
+    """Equilibrium of a feed at fixed temperature and pressure.
+
+    Parameters
+    ----------
+    feed : mapping
+        Species name (or alias) to amount, [mol].
+    T : float
+        Temperature, [K].
+    P : float
+        Pressure, [Pa].
+    species : list of str, optional
+        The species set; by default every species of the database made only
+        of the feed's elements.
+    exclude : list of str
+        Species to leave out of the set (e.g. ``["C(s)"]`` to suppress carbon).
+    inert : list of str
+        Feed species that do not react but still dilute the gas.
+    method : {"auto", "newton", "convex"}
+    db : SpeciesDatabase, optional
+    allow_extrapolation : bool
+        Use polynomials outside their fitted temperature ranges.
+
+    Returns
+    -------
+    Equilibrium
+
+    Examples
+    --------
+    >>> eq = equilibrate({"CH4": 1.0, "H2O": 3.0}, T=1100.0, P=30e5)
+    >>> round(eq.mole_fractions["H2"], 3) > 0.4
+    True
+    """
+    T = _positive_number(T, "T", "K")
+    P = _positive_number(P, "P", "Pa")
+    if method not in SOLVERS:
+        raise InputError(f"unknown method {method!r}; choose one of {', '.join(SOLVERS)}")
+    setup = prepare(feed, species=species, exclude=exclude, inert=inert, T_span=(T, T), db=db,
+                    allow_extrapolation=allow_extrapolation)
+    problem = build_problem(setup, np.array([T]), np.array([P]), allow_extrapolation=allow_extrapolation)
+    result, certificates = solve(problem, method)
+    return checked(to_equilibrium(setup, problem, result, certificates, 0, T, P))
+
+
+def checked(eq: Equilibrium, stacklevel: int = 3) -> Equilibrium:
+    """Pass a certified answer, warn on a usable one, refuse a wrong one."""
+    c = eq.certificate
+    if c.certified:
+        return eq
+    if c.element_balance < 1e-6 and c.stationarity < _USABLE_STATIONARITY and c.complementarity > -1e-4:
+        warnings.warn(f"equilibrium answer is imprecise: {c.summary()}", RuntimeWarning, stacklevel=stacklevel)
+        return eq
+    raise ConvergenceError(
+        f"no solver could certify an equilibrium at T = {eq.T:g} K, P = {eq.P:g} Pa ({c.summary()}); "
+        "try method='convex', or check that the species set can represent the feed"
+    )

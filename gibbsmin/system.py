@@ -1,0 +1,248 @@
+"""The chemical system: which species, in which phases, and the element matrix.
+
+A :class:`System` is fixed by a species set; a :class:`Problem` adds the
+conditions (T, P, element totals) in the dimensionless form every solver takes.
+Species are ordered gas first, then pure condensed species.  Each condensed
+species is a phase of its own that is present or absent.
+
+Elements whose total is zero are removed together with every species that
+contains them (their amounts are exactly zero), and linearly dependent element
+rows are reduced to an independent basis, so the solvers always see a full-rank
+matrix.  An inert species carries a private pseudo-element: its amount is then
+fixed by the element balance while it still dilutes the gas.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.linalg
+from numpy.typing import NDArray
+
+from .errors import InputError
+from .thermo.database import SpeciesDatabase, SpeciesRecord, nasa7_table
+from .thermo.nasa7 import Nasa7Table
+
+#: Reference pressure of the standard state, [Pa] (that of the NASA data).
+P_REF = 1.0e5
+
+
+def inert_element(name: str) -> str:
+    """The pseudo-element that pins an inert species."""
+    return f"[{name}]"
+
+
+@dataclass(frozen=True)
+class System:
+    """A species set with its phases and element matrix.
+
+    Attributes
+    ----------
+    records : tuple of SpeciesRecord
+        Gas species first, then pure condensed species.
+    n_gas : int
+        How many of ``records`` form the gas phase.
+    elements : tuple of str
+        Row labels of ``A``: chemical elements, then one pseudo-element per inert species.
+    A : ndarray, shape (len(elements), len(records))
+        Atoms of each element in each species.
+    inert : tuple of str
+        Species held at their feed amount.
+    """
+
+    records: tuple[SpeciesRecord, ...]
+    n_gas: int
+    elements: tuple[str, ...]
+    A: NDArray[np.float64]
+    inert: tuple[str, ...] = ()
+    table: Nasa7Table = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "table", nasa7_table(self.records))
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return tuple(r.name for r in self.records)
+
+    @property
+    def gas_names(self) -> tuple[str, ...]:
+        return self.names[: self.n_gas]
+
+    @property
+    def condensed_names(self) -> tuple[str, ...]:
+        return self.names[self.n_gas:]
+
+    def index(self, name: str) -> int:
+        return self.names.index(name)
+
+    def element_totals(self, amounts: Mapping[str, float]) -> NDArray[np.float64]:
+        """Element totals b = A n for species amounts [mol] (names not in the set are ignored)."""
+        n = np.array([amounts.get(name, 0.0) for name in self.names])
+        return self.A @ n
+
+    @classmethod
+    def from_records(
+        cls, records: Sequence[SpeciesRecord], inert: Sequence[str] = ()
+    ) -> System:
+        gas = [r for r in records if r.is_gas]
+        condensed = [r for r in records if not r.is_gas]
+        if not gas:
+            raise InputError("the species set has no gas species; add at least one gas (e.g. the feed gases)")
+        ordered = tuple(gas + condensed)
+        names = [r.name for r in ordered]
+        elements = sorted({el for r in ordered for el in r.elements}, key=_element_order)
+        A = np.array([[r.elements.get(el, 0.0) for r in ordered] for el in elements], dtype=float)
+        for name in inert:
+            if name not in names:
+                raise InputError(f"inert species {name!r} is not in the species set")
+            if not ordered[names.index(name)].is_gas:
+                raise InputError(f"inert species {name!r} must be a gas")
+            row = np.zeros((1, len(ordered)))
+            row[0, names.index(name)] = 1.0
+            # The inert no longer exchanges atoms: its true elements are carried by the pseudo-element.
+            A[:, names.index(name)] = 0.0
+            A = np.vstack([A, row])
+        return cls(ordered, len(gas), tuple(elements) + tuple(inert_element(n) for n in inert), A, tuple(inert))
+
+
+def _element_order(symbol: str) -> tuple[int, str]:
+    # Hill-like reading order: C and H first, then the rest alphabetically.
+    return ({"C": 0, "H": 1}.get(symbol, 2), symbol)
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One or many equilibrium problems on a reduced system, in dimensionless form.
+
+    Arrays carry a leading batch axis of length B.
+
+    Attributes
+    ----------
+    A : ndarray, shape (M, S)
+        Full-rank element matrix of the species kept (``keep``).
+    b : ndarray, shape (B, M)
+        Element totals, [mol].
+    mu0 : ndarray, shape (B, S)
+        g0/RT of each kept species; for gases it already includes ln(P/P0)
+        and ln(phi) so that mu/RT = mu0 + ln(y) in the gas.
+    n_gas : int
+        Kept gas species come first.
+    allowed : ndarray of bool, shape (B, S)
+        Condensed species that may appear (inside their data range).
+    keep : ndarray of int
+        Positions of the kept species in the System.
+    basis : ndarray, shape (M, M_system)
+        Maps the System's element rows to the independent rows used here.
+    """
+
+    A: NDArray[np.float64]
+    b: NDArray[np.float64]
+    mu0: NDArray[np.float64]
+    n_gas: int
+    allowed: NDArray[np.bool_]
+    keep: NDArray[np.int_]
+    basis: NDArray[np.float64]
+
+    @property
+    def batch_size(self) -> int:
+        return self.b.shape[0]
+
+    @property
+    def n_species(self) -> int:
+        return self.A.shape[1]
+
+    def take(self, where: NDArray[np.int_]) -> Problem:
+        """The problems at positions ``where``, as a batch of their own."""
+        where = np.asarray(where, dtype=int)
+        return Problem(self.A, self.b[where], self.mu0[where], self.n_gas, self.allowed[where],
+                       self.keep, self.basis)
+
+
+def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
+           allowed: NDArray[np.bool_]) -> Problem:
+    """Drop species made impossible by zero element totals and reduce dependent element rows.
+
+    ``b`` has shape (B, M_system), ``mu0`` and ``allowed`` (B, S_system).  Every
+    point of a batch must have the same elements present.
+    """
+    b = np.atleast_2d(np.asarray(b, dtype=float))
+    scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
+    present = (b / scale) > 1e-14
+    if not np.all(present == present[0]):
+        raise InputError("every point of a batch must contain the same elements; split the batch by element set")
+    present = present[0]
+    A = system.A
+    possible = ~np.any(A[~present] > 0, axis=0)
+    if not np.any(possible[: system.n_gas]):
+        raise InputError("no gas species can be formed from the feed's elements")
+    keep = np.flatnonzero(possible)
+    carried = A[present][:, keep]
+    if np.any(~carried.any(axis=1)):
+        missing = [system.elements[k] for k in np.flatnonzero(present)[~carried.any(axis=1)]]
+        raise InputError(
+            f"element(s) {', '.join(missing)} in the feed cannot be carried by any species of the set; "
+            "add a species that contains them"
+        )
+    rows = _independent_rows(carried)
+    selector = np.zeros((len(rows), A.shape[0]))
+    selector[np.arange(len(rows)), np.flatnonzero(present)[rows]] = 1.0
+    n_gas = int(np.sum(keep < system.n_gas))
+    return Problem(
+        A=carried[rows],
+        b=b @ selector.T,
+        mu0=np.atleast_2d(mu0)[:, keep],
+        n_gas=n_gas,
+        allowed=np.atleast_2d(allowed)[:, keep],
+        keep=keep,
+        basis=selector,
+    )
+
+
+def _independent_rows(A: NDArray[np.float64]) -> NDArray[np.int_]:
+    """Indices of a maximal set of linearly independent rows, in their original order."""
+    _, r, pivots = scipy.linalg.qr(A.T, mode="economic", pivoting=True)
+    diag = np.abs(np.diag(r)) if r.size else np.zeros(0)
+    rank = int(np.sum(diag > 1e-10 * max(diag.max(initial=0.0), 1.0)))
+    return np.sort(pivots[:rank])
+
+
+def standard_mu0(system: System, T: NDArray[np.float64], P: NDArray[np.float64],
+                 ln_phi: NDArray[np.float64] | None = None) -> NDArray[np.float64]:
+    """mu0 of every species of the system for temperatures T [K] and pressures P [Pa], shape (B, S)."""
+    T = np.atleast_1d(np.asarray(T, dtype=float))
+    P = np.broadcast_to(np.atleast_1d(np.asarray(P, dtype=float)), T.shape)
+    mu0 = system.table.g_RT(T)
+    mu0[:, : system.n_gas] += np.log(P / P_REF)[:, None]
+    if ln_phi is not None:
+        mu0[:, : system.n_gas] += ln_phi
+    return mu0
+
+
+def select_species(
+    db: SpeciesDatabase,
+    feed_species: Sequence[str],
+    species: Sequence[str] | None,
+    exclude: Sequence[str],
+) -> list[SpeciesRecord]:
+    """The species set: explicit, or every species made of the feed's elements, less exclusions."""
+    feed_records = db.resolve(feed_species)
+    excluded = {db[name].name for name in exclude}
+    for record in feed_records:
+        if record.name in excluded:
+            raise InputError(
+                f"{record.name} is in the feed and also excluded; remove it from the feed or from the exclusions"
+            )
+    if species is not None:
+        chosen = db.resolve(species)
+    else:
+        elements = {el for r in feed_records for el in r.elements}
+        chosen = [r for r in db if set(r.elements) <= elements]
+        names = {r.name for r in chosen}
+        chosen += [r for r in feed_records if r.name not in names]
+    unique: dict[str, SpeciesRecord] = {}
+    for record in chosen:
+        if record.name not in excluded:
+            unique.setdefault(record.name, record)
+    return list(unique.values())
