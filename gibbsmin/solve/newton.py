@@ -16,10 +16,11 @@ step limits of that report (at most a factor e^2 per iteration on the major
 species, and trace species not lifted past y = 1e-4 in one step) keep the
 iteration inside the region where it converges.
 
-Once a point has converged for its current phase set, absent condensed species
-whose potential mu0_c - a_c . pi is negative are added (most negative first)
-and present ones with a non-positive amount are dropped, then it iterates again.
-All of this runs on whole batches at once: each point carries its own phase set.
+Once a point has converged for its current phase set, a present condensed
+species with a non-positive amount is dropped, or else the absent one with the
+most negative potential mu0_c - a_c . pi is added, and it iterates again.
+The loop itself is compiled (_newton_kernel.py); every point of a batch
+carries its own phase set.
 """
 
 from __future__ import annotations
@@ -27,13 +28,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import NDArray
 
 from ..system import Problem
+from . import _newton_kernel as kernel
 from .result import SolverResult
-
-_LN_TRACE = np.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
-_LN_LIFT = np.log(1e-4)   # a trace species may rise at most to this mole fraction in one step
 
 
 @dataclass(frozen=True)
@@ -43,7 +41,8 @@ class NewtonOptions:
     Attributes
     ----------
     tol : float
-        Converged when every |d ln n_j|, |d ln N| and |d n_c|/N is below this.
+        Converged when every |d ln n_j|, |d ln N| and |d n_c| (amounts scaled
+        to sum(b) = 1) is below this.
     max_iterations : int
         Iterations per point, counting those after phase changes.
     phase_tol : float
@@ -56,14 +55,6 @@ class NewtonOptions:
     max_iterations: int = 300
     phase_tol: float = 1e-10
     max_phase_changes: int = 30
-
-
-@dataclass
-class _State:
-    ln_n: NDArray[np.float64]    # (B, G), scaled amounts
-    ln_N: NDArray[np.float64]    # (B,)
-    n_c: NDArray[np.float64]     # (B, C)
-    active: NDArray[np.bool_]    # (B, C)
 
 
 def cold_start(problem: Problem) -> SolverResult:
@@ -79,6 +70,13 @@ def cold_start(problem: Problem) -> SolverResult:
         iterations=np.zeros(B, dtype=int),
         method=("start",) * B,
     )
+
+
+def _same_composition(A_c: np.ndarray) -> np.ndarray:
+    """Pairs of condensed species with identical element vectors (liquid and solid water, say)."""
+    same = np.all(np.isclose(A_c[:, :, None], A_c[:, None, :]), axis=0)
+    np.fill_diagonal(same, False)
+    return same
 
 
 def solve_newton(problem: Problem, start: SolverResult | None = None,
@@ -101,164 +99,30 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         decides what to do with those points (see ``solve``).
     """
     start = start if start is not None else cold_start(problem)
-    A, G = problem.A, problem.n_gas
-    M, S = A.shape
-    C = S - G
-    A_g, A_c = A[:, :G], A[:, G:]
+    G = problem.n_gas
+    A = np.ascontiguousarray(problem.A, dtype=float)
+    A_g, A_c = np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:])
     scale = problem.b.sum(axis=1)
-    b = problem.b / scale[:, None]
-    mu0_g, mu0_c = problem.mu0[:, :G], problem.mu0[:, G:]
-    allowed_c = problem.allowed[:, G:]
-
-    ln_n = start.ln_n_gas - np.log(scale)[:, None]
-    state = _State(
-        ln_n=ln_n.copy(),
-        ln_N=np.log(np.exp(ln_n).sum(axis=1)),
-        n_c=np.where(start.present, start.n_condensed, 0.0) / scale[:, None],
-        active=start.present & allowed_c,
-    )
+    allowed = np.ascontiguousarray(problem.allowed[:, G:])
+    ln_n = np.ascontiguousarray(start.ln_n_gas - np.log(scale)[:, None], dtype=float)
+    active = np.ascontiguousarray(start.present & allowed)
+    n_c = np.ascontiguousarray(np.where(active, start.n_condensed, 0.0) / scale[:, None], dtype=float)
     B = problem.batch_size
-    pi = np.zeros((B, M))
-    iterations = np.zeros(B, dtype=int)
-    phase_changes = np.zeros(B, dtype=int)
-    done = np.zeros(B, dtype=bool)
-    converged = np.zeros(B, dtype=bool)
-    same_composition = _same_composition(A_c)
-
-    while True:
-        todo = np.flatnonzero(~done)
-        if todo.size == 0:
-            break
-        step = _newton_step(A_g, A_c, b[todo], mu0_g[todo], mu0_c[todo], state, todo)
-        pi[todo] = step.pi
-        iterations[todo] += 1
-        lam = _step_length(state.ln_n[todo] - state.ln_N[todo, None], step.d_ln_n, step.d_ln_N)
-        state.ln_n[todo] += lam[:, None] * step.d_ln_n
-        state.ln_N[todo] += lam * step.d_ln_N
-        state.n_c[todo] += lam[:, None] * step.d_n_c
-        small = (
-            (lam == 1.0)
-            & (np.max(np.abs(step.d_ln_n), axis=1, initial=0.0) <= options.tol)
-            & (np.abs(step.d_ln_N) <= options.tol)
-            & (np.max(np.abs(step.d_n_c), axis=1, initial=0.0) <= options.tol)
-        )
-        for local, i in enumerate(todo):
-            if not np.all(np.isfinite(step.d_ln_n[local])) or iterations[i] >= options.max_iterations:
-                done[i] = True
-                continue
-            if not small[local]:
-                continue
-            changed = _manage_phases(i, state, pi[i], mu0_c[i], A_c, allowed_c[i], same_composition, options)
-            if changed:
-                phase_changes[i] += 1
-                if phase_changes[i] > options.max_phase_changes:
-                    done[i] = True
-            else:
-                done[i] = True
-                converged[i] = True
-
-    n_c = np.where(state.active, state.n_c, 0.0) * scale[:, None]
+    pi = np.zeros((B, A.shape[0]))
+    iterations = np.zeros(B, dtype=np.int64)
+    status = np.zeros(B, dtype=np.int64)
+    kernel.iterate_batch(
+        A_g, A_c, np.ascontiguousarray(problem.b / scale[:, None]),
+        np.ascontiguousarray(problem.mu0[:, :G]), np.ascontiguousarray(problem.mu0[:, G:]),
+        allowed, _same_composition(A_c), ln_n, n_c, active, pi, iterations, status,
+        options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
+    )
     return SolverResult(
-        ln_n_gas=state.ln_n + np.log(scale)[:, None],
-        n_condensed=n_c,
-        present=state.active.copy(),
+        ln_n_gas=ln_n + np.log(scale)[:, None],
+        n_condensed=np.where(active, n_c, 0.0) * scale[:, None],
+        present=active,
         pi=pi,
-        converged=converged,
+        converged=status == kernel.CONVERGED,
         iterations=iterations,
         method=("newton",) * B,
     )
-
-
-@dataclass(frozen=True)
-class _Step:
-    pi: NDArray[np.float64]
-    d_ln_n: NDArray[np.float64]
-    d_ln_N: NDArray[np.float64]
-    d_n_c: NDArray[np.float64]
-
-
-def _newton_step(A_g, A_c, b, mu0_g, mu0_c, state: _State, todo) -> _Step:
-    ln_n, ln_N = state.ln_n[todo], state.ln_N[todo]
-    n_c, active = state.n_c[todo], state.active[todo]
-    M, G = A_g.shape
-    C = A_c.shape[1]
-    K = M + C + 1
-    n_g = np.exp(ln_n)
-    N = np.exp(ln_N)
-    mu_g = mu0_g + ln_n - ln_N[:, None]
-    a_n = n_g @ A_g.T                                        # (P, M)
-    J = np.zeros((len(todo), K, K))
-    J[:, :M, :M] = np.einsum("kj,pj,ij->pki", A_g, n_g, A_g)
-    J[:, :M, M:M + C] = A_c[None, :, :] * active[:, None, :]
-    J[:, :M, -1] = a_n
-    J[:, M:M + C, :M] = A_c.T[None, :, :] * active[:, :, None]
-    J[:, M:M + C, M:M + C] = np.eye(C)[None] * (~active)[:, :, None]
-    J[:, -1, :M] = a_n
-    J[:, -1, -1] = n_g.sum(axis=1) - N
-    nmu = n_g * mu_g
-    rhs = np.empty((len(todo), K))
-    rhs[:, :M] = b - a_n - n_c @ A_c.T + nmu @ A_g.T
-    rhs[:, M:M + C] = np.where(active, mu0_c, 0.0)
-    rhs[:, -1] = N - n_g.sum(axis=1) + nmu.sum(axis=1)
-    x = _solve_batch(J, rhs)
-    pi = x[:, :M]
-    d_ln_N = x[:, -1]
-    d_n_c = np.where(active, x[:, M:M + C], 0.0)
-    d_ln_n = -mu_g + pi @ A_g + d_ln_N[:, None]
-    return _Step(pi, d_ln_n, d_ln_N, d_n_c)
-
-
-def _solve_batch(J: NDArray[np.float64], rhs: NDArray[np.float64]) -> NDArray[np.float64]:
-    try:
-        return np.linalg.solve(J, rhs[..., None])[..., 0]
-    except np.linalg.LinAlgError:
-        # A singular point (an element carried only by trace species, say) must
-        # not stop the rest of the batch: least squares gives it a usable step.
-        return np.stack([np.linalg.lstsq(j, r, rcond=None)[0] for j, r in zip(J, rhs)])
-
-
-def _step_length(ln_y, d_ln_n, d_ln_N) -> NDArray[np.float64]:
-    """Damping factor per point (Gordon and McBride 1994, eqs. 3.1 to 3.3)."""
-    major = ln_y > _LN_TRACE
-    biggest = np.maximum(5.0 * np.abs(d_ln_N), np.max(np.where(major, np.abs(d_ln_n), 0.0), axis=1, initial=0.0))
-    lam1 = np.where(biggest > 2.0, 2.0 / np.maximum(biggest, 1e-300), 1.0)
-    rising = ~major & (d_ln_n - d_ln_N[:, None] > 0)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        lift = np.abs((_LN_LIFT - ln_y) / (d_ln_n - d_ln_N[:, None]))
-    lam2 = np.min(np.where(rising, lift, np.inf), axis=1, initial=np.inf)
-    lam = np.minimum(1.0, np.minimum(lam1, lam2))
-    return np.where(np.isfinite(lam) & (lam > 0), lam, 1.0)
-
-
-def _same_composition(A_c: NDArray[np.float64]) -> NDArray[np.bool_]:
-    """Pairs of condensed species with identical element vectors (liquid and solid water, say)."""
-    C = A_c.shape[1]
-    same = np.zeros((C, C), dtype=bool)
-    for i in range(C):
-        for j in range(C):
-            same[i, j] = i != j and np.allclose(A_c[:, i], A_c[:, j])
-    return same
-
-
-def _manage_phases(i, state: _State, pi, mu0_c, A_c, allowed_c, same_composition, options) -> bool:
-    """Drop a present condensed species with no amount, or add the most stable absent one."""
-    active = state.active[i]
-    negative = active & (state.n_c[i] <= 0.0)
-    if np.any(negative):
-        drop = np.flatnonzero(negative)[np.argmin(state.n_c[i][negative])]
-        active[drop] = False
-        state.n_c[i, drop] = 0.0
-        return True
-    margin = mu0_c - pi @ A_c
-    candidates = allowed_c & ~active & (margin < -options.phase_tol)
-    if not np.any(candidates):
-        return False
-    add = np.flatnonzero(candidates)[np.argmin(margin[candidates])]
-    rivals = active & same_composition[add]
-    # Two phases of one composition cannot coexist at a generic T: the one
-    # with the lower potential (the one being added) takes over the amount.
-    state.n_c[i, add] = state.n_c[i, rivals].sum()
-    state.n_c[i, rivals] = 0.0
-    active[rivals] = False
-    active[add] = True
-    return True
