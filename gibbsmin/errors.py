@@ -39,7 +39,11 @@ class UnknownSpeciesError(KeyError, GibbsminError):
 
     def __init__(self, name: str, known: Iterable[str]):
         self.name = name
-        self.suggestions = difflib.get_close_matches(name, list(known), n=4, cutoff=0.6)
+        known = list(dict.fromkeys(known))
+        # Match without regard to case (engineers type "ch4"), but suggest the real spelling.
+        folded = {k.casefold(): k for k in known}
+        close = difflib.get_close_matches(name.casefold(), list(folded), n=4, cutoff=0.6)
+        self.suggestions = list(dict.fromkeys(folded[c] for c in close))
         hint = (
             f"; did you mean {', '.join(self.suggestions)}?"
             if self.suggestions

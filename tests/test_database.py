@@ -99,7 +99,8 @@ def test_resolve_keeps_order():
 
 @pytest.mark.parametrize(
     "typo, suggestion",
-    [("methan", "methane"), ("CH5", "CH4"), ("nitrogn", "nitrogen"), ("H2OO", "H2O")],
+    [("methan", "methane"), ("CH5", "CH4"), ("nitrogn", "nitrogen"), ("H2OO", "H2O"),
+     ("ch5", "CH4"), ("co2x", "CO2")],
 )
 def test_unknown_species_suggests_close_matches(typo, suggestion):
     db = default_database()
@@ -228,6 +229,10 @@ MALFORMED = [
     ("high without 3 ranges", lambda e: e.update(T_ranges=[200.0, 6000.0]), "two need none"),
     ("3 ranges without high", lambda e: e.pop("high"), "three T_ranges need a 'high' set"),
     ("critical lacks omega", lambda e: e["critical"].pop("omega"), "critical constants lack omega"),
+    ("critical unknown key", lambda e: e["critical"].update(Vc=1.0), "unknown key(s) in critical constants: Vc"),
+    ("critical not a number", lambda e: e["critical"].update(Tc="hot"), "Tc, Pc and omega must be numbers"),
+    ("aliases as text", lambda e: e.update(aliases="methane"), "aliases must be a list of strings"),
+    ("coefficient not a number", lambda e: e.update(low=["a", *e["low"][1:]]), "must be numbers"),
 ]
 
 

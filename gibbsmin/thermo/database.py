@@ -166,11 +166,18 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         elements = parse_formula(str(entry["formula"]))
     except FormulaError as exc:
         raise DataError(f"{context}: {exc}") from None
-    T_ranges = tuple(float(t) for t in entry["T_ranges"])
+    aliases = entry.get("aliases", [])
+    if not isinstance(aliases, list) or not all(isinstance(a, str) for a in aliases):
+        raise DataError(f"{context}: aliases must be a list of strings, e.g. aliases = [\"methane\"]")
+    try:
+        T_ranges = tuple(float(t) for t in entry["T_ranges"])
+        low = tuple(float(a) for a in entry["low"])
+        high = tuple(float(a) for a in entry.get("high", low))
+        hf298 = float(entry["hf298"])
+    except (TypeError, ValueError):
+        raise DataError(f"{context}: T_ranges, low, high and hf298 must be numbers") from None
     if len(T_ranges) not in (2, 3) or any(b <= a for a, b in zip(T_ranges, T_ranges[1:])):
         raise DataError(f"{context}: T_ranges must be 2 or 3 increasing temperatures, got {T_ranges}")
-    low = tuple(float(a) for a in entry["low"])
-    high = tuple(float(a) for a in entry.get("high", low))
     if len(low) != 7 or len(high) != 7:
         raise DataError(f"{context}: NASA 7-coefficient sets must have 7 values each")
     if (len(T_ranges) == 3) != ("high" in entry):
@@ -181,18 +188,25 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         missing = [k for k in _CRITICAL_KEYS if k not in crit and k != "CAS"]
         if missing:
             raise DataError(f"{context}: critical constants lack {', '.join(missing)}")
-        critical = CriticalConstants(float(crit["Tc"]), float(crit["Pc"]), float(crit["omega"]), str(crit["source"]))
+        unknown = sorted(set(crit) - set(_CRITICAL_KEYS))
+        if unknown:
+            raise DataError(f"{context}: unknown key(s) in critical constants: {', '.join(unknown)}")
+        try:
+            critical = CriticalConstants(float(crit["Tc"]), float(crit["Pc"]), float(crit["omega"]),
+                                         str(crit["source"]))
+        except (TypeError, ValueError):
+            raise DataError(f"{context}: Tc, Pc and omega must be numbers") from None
     record = SpeciesRecord(
         name=str(name),
         formula=str(entry["formula"]),
         elements=elements,
         state=str(entry["state"]),
-        hf298=float(entry["hf298"]),
+        hf298=hf298,
         source=str(entry["source"]),
         T_ranges=T_ranges,
         low=low,
         high=high,
-        aliases=tuple(entry.get("aliases", ())),
+        aliases=tuple(aliases),
         critical=critical,
         note=str(entry.get("nasa_note", "")),
     )
