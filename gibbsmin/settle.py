@@ -230,13 +230,59 @@ def equilibrate(
     """
     T = _positive_number(T, "T", "K")
     P = _positive_number(P, "P", "Pa")
-    if method not in SOLVERS:
-        raise InputError(f"unknown method {method!r}; choose one of {', '.join(SOLVERS)}")
+    check_method(method)
     setup = prepare(feed, species=species, exclude=exclude, inert=inert, T_span=(T, T), db=db,
                     allow_extrapolation=allow_extrapolation)
-    problem = build_problem(setup, np.array([T]), np.array([P]), allow_extrapolation=allow_extrapolation)
-    result, certificates = solve(problem, method)
-    return checked(to_equilibrium(setup, problem, result, certificates, 0, T, P))
+    eq, _, _ = solve_fixed(setup, T, P, method=method, allow_extrapolation=allow_extrapolation)
+    return checked(eq)
+
+
+def check_method(method: str) -> None:
+    if method not in SOLVERS:
+        raise InputError(f"unknown method {method!r}; choose one of {', '.join(SOLVERS)}")
+
+
+def solve_fixed(
+    setup: Setup,
+    T: float,
+    P: float,
+    *,
+    method: str = "auto",
+    offsets: NDArray[np.float64] | None = None,
+    ln_phi: NDArray[np.float64] | None = None,
+    start: SolverResult | None = None,
+    allow_extrapolation: bool = False,
+    gas_model: str = "ideal",
+    specification: str = "T and P",
+) -> tuple[Equilibrium, Problem, SolverResult]:
+    """Equilibrium of a prepared setup at one T [K] and P [Pa]: the step every other specification repeats.
+
+    Parameters
+    ----------
+    offsets : ndarray, shape (S,), optional
+        Added to g0/RT of the system's species (restricted equilibrium: a
+        reaction held away from its equilibrium constant).
+    ln_phi : ndarray, shape (n_gas,), optional
+        Fugacity coefficients of the gas species, held fixed for this solve.
+    start : SolverResult, optional
+        Warm start (a neighbouring answer on the same setup).
+
+    Returns
+    -------
+    (Equilibrium, Problem, SolverResult)
+        The answer, and the problem and raw solver output it came from (for
+        sensitivities and warm starts).  The answer is not checked here: see
+        ``checked``.
+    """
+    problem = build_problem(setup, np.array([T]), np.array([P]), ln_phi=ln_phi,
+                            allow_extrapolation=allow_extrapolation)
+    if offsets is not None:
+        problem = Problem(problem.A, problem.b, problem.mu0 + np.asarray(offsets)[problem.keep][None, :],
+                          problem.n_gas, problem.allowed, problem.keep, problem.basis)
+    result, certificates = solve(problem, method, start=start)
+    eq = to_equilibrium(setup, problem, result, certificates, 0, T, P,
+                        gas_model=gas_model, specification=specification)
+    return eq, problem, result
 
 
 def checked(eq: Equilibrium, stacklevel: int = 3) -> Equilibrium:
