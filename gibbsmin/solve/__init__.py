@@ -8,18 +8,18 @@ import numpy as np
 
 from ..errors import InputError
 from ..system import Problem
-from .certificate import Certificate, Tolerances, certify
+from .certificate import Certificate, CertificateBatch, Tolerances, certify
 from .convex import solve_convex
 from .newton import NewtonOptions, solve_newton
 from .result import SolverResult, merge
 
-__all__ = ["solve", "SOLVERS", "Certificate", "Tolerances", "SolverResult", "NewtonOptions", "certify"]
+__all__ = ["solve", "SOLVERS", "Certificate", "CertificateBatch", "Tolerances", "SolverResult", "NewtonOptions", "certify"]
 
 
 def _auto(problem: Problem, start: SolverResult | None) -> SolverResult:
     """Newton first; every point it cannot certify is solved again on the cone."""
     result = solve_newton(problem, start=start)
-    bad = np.flatnonzero([not c.certified for c in certify(problem, result)])
+    bad = np.flatnonzero(~certify(problem, result).certified)
     if bad.size == 0:
         return result
     return merge(result, solve_convex(problem.take(bad)), bad)
@@ -33,7 +33,7 @@ SOLVERS: dict[str, Callable[[Problem, SolverResult | None], SolverResult]] = {
 
 
 def solve(problem: Problem, method: str = "auto",
-          start: SolverResult | None = None) -> tuple[SolverResult, list[Certificate]]:
+          start: SolverResult | None = None) -> tuple[SolverResult, CertificateBatch]:
     """Solve a batch of problems and certify every point.
 
     Parameters

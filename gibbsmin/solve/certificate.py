@@ -17,7 +17,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import math
+
 import numpy as np
+from numba import njit
 from numpy.typing import NDArray
 
 from ..system import Problem
@@ -71,40 +74,88 @@ class Certificate:
                 f"condensed-phase margin {comp}")
 
 
-def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances()) -> list[Certificate]:
-    """Certificates of every point of a batch."""
-    G = problem.n_gas
-    A_g, A_c = problem.A[:, :G], problem.A[:, G:]
-    n_g = np.exp(result.ln_n_gas)
-    N = n_g.sum(axis=1)
-    balance = n_g @ A_g.T + result.n_condensed @ A_c.T - problem.b
-    element_balance = np.max(np.abs(balance), axis=1) / np.max(np.abs(problem.b), axis=1)
-    potential = result.pi @ problem.A                                   # (B, S)
-    mu_g = problem.mu0[:, :G] + result.ln_n_gas - np.log(N)[:, None]
-    gas_residual = np.max(np.abs(mu_g - potential[:, :G]), axis=1)
-    margin = problem.mu0[:, G:] - potential[:, G:]
-    present = result.present
-    cond_residual = np.max(np.where(present, np.abs(margin), 0.0), axis=1, initial=0.0)
-    absent = problem.allowed[:, G:] & ~present
-    complementarity = np.min(np.where(absent, margin, np.inf), axis=1, initial=np.inf)
-    min_amount = np.min(np.where(present, result.n_condensed, np.inf), axis=1, initial=np.inf)
-    stationarity = np.maximum(gas_residual, cond_residual)
-    certificates = []
-    for i in range(problem.batch_size):
-        ok = bool(
-            result.converged[i]
-            and element_balance[i] <= tolerances.element_balance
-            and stationarity[i] <= tolerances.stationarity
-            and complementarity[i] >= -tolerances.complementarity
-            and min_amount[i] >= 0.0
+@dataclass(frozen=True)
+class CertificateBatch:
+    """Certificates of a batch, as arrays (indexing gives one Certificate)."""
+
+    element_balance: NDArray[np.float64]
+    stationarity: NDArray[np.float64]
+    complementarity: NDArray[np.float64]
+    min_amount: NDArray[np.float64]
+    certified: NDArray[np.bool_]
+    solver: tuple[str, ...]
+    iterations: NDArray[np.int_]
+
+    def __len__(self) -> int:
+        return len(self.certified)
+
+    def __getitem__(self, i: int) -> Certificate:
+        return Certificate(
+            element_balance=float(self.element_balance[i]),
+            stationarity=float(self.stationarity[i]),
+            complementarity=float(self.complementarity[i]),
+            min_amount=float(self.min_amount[i]),
+            solver=self.solver[i],
+            iterations=int(self.iterations[i]),
+            certified=bool(self.certified[i]),
         )
-        certificates.append(Certificate(
-            element_balance=float(element_balance[i]),
-            stationarity=float(stationarity[i]),
-            complementarity=float(complementarity[i]),
-            min_amount=float(min_amount[i]),
-            solver=result.method[i],
-            iterations=int(result.iterations[i]),
-            certified=ok,
-        ))
-    return certificates
+
+    def __iter__(self):
+        return (self[i] for i in range(len(self)))
+
+
+@njit(cache=True)
+def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
+    """Residuals of every point: out[p] = (element balance, stationarity, complementarity, min amount)."""
+    M, S = A.shape
+    for p in range(b.shape[0]):
+        ln_N = -np.inf
+        total = 0.0
+        for j in range(n_gas):
+            total += math.exp(ln_n_gas[p, j])
+        ln_N = math.log(total)
+        worst_b = 0.0
+        scale = 0.0
+        for k in range(M):
+            s = -b[p, k]
+            for j in range(n_gas):
+                s += A[k, j] * math.exp(ln_n_gas[p, j])
+            for c in range(S - n_gas):
+                s += A[k, n_gas + c] * n_condensed[p, c]
+            worst_b = max(worst_b, abs(s))
+            scale = max(scale, abs(b[p, k]))
+        stationarity = 0.0
+        complementarity = np.inf
+        min_amount = np.inf
+        for j in range(S):
+            potential = 0.0
+            for k in range(M):
+                potential += A[k, j] * pi[p, k]
+            if j < n_gas:
+                stationarity = max(stationarity, abs(mu0[p, j] + ln_n_gas[p, j] - ln_N - potential))
+            elif present[p, j - n_gas]:
+                stationarity = max(stationarity, abs(mu0[p, j] - potential))
+                min_amount = min(min_amount, n_condensed[p, j - n_gas])
+            elif allowed[p, j]:
+                complementarity = min(complementarity, mu0[p, j] - potential)
+        out[p, 0] = worst_b / scale
+        out[p, 1] = stationarity
+        out[p, 2] = complementarity
+        out[p, 3] = min_amount
+
+
+def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances()) -> CertificateBatch:
+    """Certificates of every point of a batch."""
+    out = np.empty((problem.batch_size, 4))
+    _residuals(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
+               problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, out)
+    balance, stationarity, complementarity, min_amount = out.T
+    certified = (
+        result.converged
+        & (balance <= tolerances.element_balance)
+        & (stationarity <= tolerances.stationarity)
+        & (complementarity >= -tolerances.complementarity)
+        & (min_amount >= 0.0)
+    )
+    return CertificateBatch(balance.copy(), stationarity.copy(), complementarity.copy(), min_amount.copy(),
+                            certified, tuple(result.method), np.asarray(result.iterations))

@@ -25,6 +25,7 @@ carries its own phase set.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -72,11 +73,17 @@ def cold_start(problem: Problem) -> SolverResult:
     )
 
 
-def _same_composition(A_c: np.ndarray) -> np.ndarray:
-    """Pairs of condensed species with identical element vectors (liquid and solid water, say)."""
+@functools.lru_cache(maxsize=64)
+def _same_composition_of(A_c_bytes: bytes, shape: tuple[int, int]) -> np.ndarray:
+    A_c = np.frombuffer(A_c_bytes).reshape(shape)
     same = np.all(np.isclose(A_c[:, :, None], A_c[:, None, :]), axis=0)
     np.fill_diagonal(same, False)
     return same
+
+
+def _same_composition(A_c: np.ndarray) -> np.ndarray:
+    """Pairs of condensed species with identical element vectors (liquid and solid water, say)."""
+    return _same_composition_of(A_c.tobytes(), A_c.shape)
 
 
 def solve_newton(problem: Problem, start: SolverResult | None = None,
