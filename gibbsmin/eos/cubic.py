@@ -20,8 +20,10 @@ closed form (T da/dT - a) / (b R T Delta) L + Z - 1 would not.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any, NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -30,7 +32,7 @@ from ..errors import InputError
 from ..thermo.nasa7 import R
 from .families import CubicFamily
 from .inputs import check_conditions
-from .quantum import QUANTUM_GASES, QuantumGas, QuantumTable
+from .quantum import QuantumGas, QuantumTable, quantum_gases_of
 from .result import GasProperties
 from .roots import vapour_root
 
@@ -64,30 +66,6 @@ def _interaction_matrix(kij: ArrayLike | None, n_species: int) -> FloatArray | N
     return None if not k.any() else 1.0 - k
 
 
-def _quantum_gases(quantum: Sequence[str | QuantumGas | None] | None, n_species: int) -> dict[int, QuantumGas]:
-    if quantum is None:
-        return {}
-    if len(quantum) != n_species:
-        raise InputError(
-            f"quantum must have one entry per species ({n_species}), got {len(quantum)}; "
-            "use None for ordinary species"
-        )
-    gases = {}
-    for i, entry in enumerate(quantum):
-        if entry is None or entry is False:
-            continue
-        if isinstance(entry, QuantumGas):
-            gases[i] = entry
-        elif entry in QUANTUM_GASES:
-            gases[i] = QUANTUM_GASES[entry]
-        else:
-            raise InputError(
-                f"quantum entry {entry!r} of species {i} is not a known quantum gas; "
-                f"use one of {sorted(QUANTUM_GASES)}, a QuantumGas, or None"
-            )
-    return gases
-
-
 @dataclass(frozen=True, eq=False)
 class _Species:
     """Per-species constants of the model that do not depend on T."""
@@ -114,10 +92,11 @@ class CubicModel:
     kij : array_like, shape (S, S), optional
         Binary interaction parameters, symmetric with zero diagonal, [-]; zero by default.
     quantum : sequence, optional
-        One entry per species: None for an ordinary species, or a quantum gas
-        ("H2", "He" or a :class:`QuantumGas`) whose critical constants become
-        the temperature-dependent Gunn-Chueh-Prausnitz values with omega = 0.
-        Tc, Pc and omega given for such a species are then not used.
+        One entry per species: None or False for an ordinary species; for a
+        quantum gas "H2", "He", a :class:`QuantumGas`, or True when ``names``
+        gives the species as "H2" or "He".  Their critical constants become the
+        temperature-dependent Gunn-Chueh-Prausnitz values with omega = 0, and
+        the Tc, Pc and omega given for them are not used.
     quantum_correction : bool
         False ignores ``quantum`` and uses Tc, Pc and omega for every species.
     names : sequence of str, optional
@@ -138,7 +117,7 @@ class CubicModel:
         omega: ArrayLike,
         *,
         kij: ArrayLike | None = None,
-        quantum: Sequence[str | QuantumGas | None] | None = None,
+        quantum: Sequence[str | QuantumGas | bool | None] | None = None,
         quantum_correction: bool = True,
         names: Sequence[str] | None = None,
     ):
@@ -148,7 +127,7 @@ class CubicModel:
         omega = _as_vector(omega, "omega", n_species)
         if names is not None and len(names) != n_species:
             raise InputError(f"names must have one entry per species ({n_species}), got {len(names)}")
-        gases = _quantum_gases(quantum, n_species) if quantum_correction else {}
+        gases = quantum_gases_of(quantum, names, n_species) if quantum_correction else {}
         for i in range(n_species):
             if i in gases:
                 continue
@@ -166,18 +145,16 @@ class CubicModel:
         omega = omega.copy()
         Tc = Tc.copy()
         Pc = Pc.copy()
-        quantum_index = list(gases)
-        omega[quantum_index] = 0.0
-        # Placeholders only: the T-dependent values replace them at each call.
-        Tc[quantum_index] = 1.0
-        Pc[quantum_index] = 1.0
+        for i, gas in gases.items():
+            # The classical limits; the T-dependent values replace them at each call.
+            Tc[i], Pc[i], omega[i] = gas.Tc0, gas.Pc0, 0.0
         self._species = _Species(
             sqrt_ac=np.sqrt(family.omega_a) * R * Tc / np.sqrt(Pc),
             b=family.omega_b * R * Tc / Pc,
             Tc=Tc,
             kappa=np.asarray(family.kappa(omega), dtype=float),
         )
-        self._quantum = QuantumTable.of(gases) if gases else None
+        self._quantum = QuantumTable.of(gases, Tc, Pc) if gases else None
 
     @property
     def name(self) -> str:
@@ -189,26 +166,16 @@ class CubicModel:
         return f"CubicModel({self.family.name!r}, S={self.n_species}{species})"
 
     # -- per-species parameters at T ---------------------------------------------------
+    # T and P are floats with y of shape (S,) for one condition, or (B, 1) with
+    # y of shape (B, S) for a batch; the same expressions serve both by broadcasting.
 
-    def _pure(self, T: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
-        """sqrt(a_i) and b_i at T, with their T-derivatives; shapes broadcast to (B, S)."""
+    def _pure(self, T):
+        """sqrt(a_i) and b_i at T, with their T-derivatives, shape (S,) or (B, S)."""
         sp = self._species
         sqrt_ac, b, Tc = sp.sqrt_ac, sp.b, sp.Tc
         dlnTc = dlnPc = 0.0
         if self._quantum is not None:
-            q = self._quantum
-            n_batch = T.shape[0]
-            Tc_q, Pc_q, dlnTc_q, dlnPc_q = q.critical(T)
-            sqrt_ac = np.repeat(sqrt_ac[None, :], n_batch, axis=0)
-            b = np.repeat(b[None, :], n_batch, axis=0)
-            Tc = np.repeat(Tc[None, :], n_batch, axis=0)
-            dlnTc = np.zeros_like(Tc)
-            dlnPc = np.zeros_like(Tc)
-            sqrt_ac[:, q.index] = np.sqrt(self.family.omega_a) * R * Tc_q / np.sqrt(Pc_q)
-            b[:, q.index] = self.family.omega_b * R * Tc_q / Pc_q
-            Tc[:, q.index] = Tc_q
-            dlnTc[:, q.index] = dlnTc_q
-            dlnPc[:, q.index] = dlnPc_q
+            sqrt_ac, b, Tc, dlnTc, dlnPc = self._with_quantum_gases(T)
         sqrt_Tr = np.sqrt(T / Tc)
         m = 1.0 + sp.kappa * (1.0 - sqrt_Tr)
         # sqrt(a_i) = sqrt(ac_i) |m|: the published alpha = m^2 is kept as it
@@ -219,14 +186,28 @@ class CubicModel:
         dm_dT = -0.5 * sp.kappa * dTr_dT / sqrt_Tr
         dsqrt_a_dT = sqrt_a * (dlnTc - 0.5 * dlnPc) + sqrt_ac * np.sign(m) * dm_dT
         db_dT = b * (dlnTc - dlnPc)
-        return sqrt_a, dsqrt_a_dT, np.broadcast_to(b, sqrt_a.shape), db_dT
+        return sqrt_a, dsqrt_a_dT, b, db_dT
 
-    def _mix(self, y: FloatArray, sqrt_a: FloatArray) -> FloatArray:
-        """sum_j (1 - k_ij) y_j sqrt(a_j), shape (B, S)."""
-        ys = y * sqrt_a
+    def _with_quantum_gases(self, T):
+        """sqrt(ac_i), b_i, Tc_i and d ln Tc_i/dT, d ln Pc_i/dT with the quantum gases' values at T."""
+        q = self._quantum
+        # Full-length arrays with c1/M = c2/M = 0 for ordinary species, which
+        # leaves their Tc and Pc unchanged: cheaper than scattering Q columns.
+        x1 = q.c1_M / T
+        x2 = q.c2_M / T
+        one_x1 = 1.0 + x1
+        one_x2 = 1.0 + x2
+        Tc = q.Tc0 / one_x1
+        Pc = q.Pc0 / one_x2
+        sqrt_ac = (np.sqrt(self.family.omega_a) * R) * Tc / np.sqrt(Pc)
+        b = (self.family.omega_b * R) * Tc / Pc
+        return sqrt_ac, b, Tc, x1 / (T * one_x1), x2 / (T * one_x2)
+
+    def _mix(self, y, sqrt_a):
+        """sum_j (1 - k_ij) y_j sqrt(a_j): shape (S,) or (B, S), or broadcastable to it without kij."""
         if self._one_minus_k is None:
-            return np.broadcast_to(ys.sum(axis=1, keepdims=True), ys.shape)
-        return ys @ self._one_minus_k
+            return _weighted_sum(y, sqrt_a)
+        return (y * sqrt_a) @ self._one_minus_k
 
     # -- evaluation --------------------------------------------------------------------
 
@@ -247,85 +228,109 @@ class CubicModel:
         Returns
         -------
         GasProperties
-            Scalars and (S,) arrays for one condition, with a leading batch axis otherwise.
+            Floats and (S,) arrays for one condition, with a leading batch axis
+            of length B otherwise.
         """
-        T2, P2, y2, single = check_conditions(T, P, y, self.n_species)
+        T, P, y, single = check_conditions(T, P, y, self.n_species)
+        log = math.log if single else np.log
         fam = self.family
         delta1, delta2 = fam.delta1, fam.delta2
         Delta = delta1 - delta2
-        u, w = delta1 + delta2, delta1 * delta2
 
-        sqrt_a, dsqrt_a, b_i, db_i = self._pure(T2)
-        q = self._mix(y2, sqrt_a)
-        a = np.sum(y2 * sqrt_a * q, axis=1, keepdims=True)
-        b = np.sum(y2 * b_i, axis=1, keepdims=True)
-        RT = R * T2
-        A = a * P2 / (RT * RT)
-        B = b * P2 / RT
-        Z = vapour_root(-(1.0 + B - u * B), A + w * B * B - u * B * (1.0 + B), -B * (A + w * B * (1.0 + B)), B)
+        sqrt_a, dsqrt_a, b_i, db_i = self._pure(T)
+        q = self._mix(y, sqrt_a)
+        a = _weighted_sum(y, sqrt_a * q)
+        b = _weighted_sum(y, b_i)
+        RT = R * T
+        A = a * P / (RT * RT)
+        B = b * P / RT
+        Z = vapour_root(*fam.cubic_coefficients(A, B), B)
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
-        L = np.log(Zpd1 / Zpd2)
-        ln_Z_B = np.log(Z - B)
+        L = log(Zpd1 / Zpd2)
+        ln_Z_B = log(Z - B)
         beta = b_i / b
-        abar = 2.0 * sqrt_a * q / a
+        abar = (2.0 / a) * sqrt_a * q
         A_BD = A / (B * Delta)
-        ln_phi = beta * (Z - 1.0) - ln_Z_B - A_BD * (abar - beta) * L
+        ln_phi = beta * (Z - 1.0) - ln_Z_B - A_BD * L * (abar - beta)
         g = Z - 1.0 - ln_Z_B - A_BD * L
 
-        da = 2.0 * np.sum(y2 * dsqrt_a * q, axis=1, keepdims=True)
-        db = np.sum(y2 * db_i, axis=1, keepdims=True)
-        dA = A * (da / a - 2.0 / T2)
-        dB = B * (db / b - 1.0 / T2)
+        da = 2.0 * _weighted_sum(y, dsqrt_a * q)
+        db = _weighted_sum(y, db_i) if self._quantum is not None else 0.0
+        dA = A * (da / a - 2.0 / T)
+        dB = B * (db / b - 1.0 / T)
         g_A = -L / (B * Delta)
         L_B = delta1 / Zpd1 - delta2 / Zpd2
         g_B = 1.0 / (Z - B) + A_BD * L / B - A_BD * L_B
-        H_res = -T2 * (g_A * dA + g_B * dB)
+        H_res = -T * (g_A * dA + g_B * dB)
 
         dln_phi = None
         if dT:
-            dln_phi = self._dln_phi_dT(
-                T2, y2, Z, A, B, dA, dB, L, L_B, beta, abar, sqrt_a, dsqrt_a, q, a, da, b, db_i, db
-            )
-        return self._result(Z, ln_phi, H_res, H_res - g, dln_phi, single)
+            local = _Local(T, y, Z, A, B, dA, dB, L, L_B, beta, abar, sqrt_a, dsqrt_a, q, a, da, b, db_i, db)
+            dln_phi = self._dln_phi_dT(local)
+        if single:
+            return GasProperties(self.name, Z, ln_phi, H_res, H_res - g, dln_phi)
+        return GasProperties(self.name, Z[:, 0], ln_phi, H_res[:, 0], (H_res - g)[:, 0], dln_phi)
 
     def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike) -> FloatArray:
         """ln phi of each species [-], shape (S,) or (B, S); see :meth:`properties`."""
         return self.properties(T, P, y).ln_phi
 
-    def _dln_phi_dT(self, T, y, Z, A, B, dA, dB, L, L_B, beta, abar, sqrt_a, dsqrt_a, q, a, da, b, db_i, db):
+    def _dln_phi_dT(self, s: _Local) -> FloatArray:
         """d ln phi_i / dT at constant P and y: the chain rule through Z, A, B, b_i/b and abar_i."""
         fam = self.family
         delta1, delta2 = fam.delta1, fam.delta2
         Delta = delta1 - delta2
         u, w = delta1 + delta2, delta1 * delta2
-        c2 = -(1.0 + B - u * B)
-        c1 = A + w * B * B - u * B * (1.0 + B)
+        Z, A, B = s.Z, s.A, s.B
+        c2, c1, _ = fam.cubic_coefficients(A, B)
         # Implicit differentiation of the cubic F(Z; A, B) = 0.
         F_Z = (3.0 * Z + 2.0 * c2) * Z + c1
         F_A = Z - B
         F_B = (u - 1.0) * Z * Z + (2.0 * w * B - u - 2.0 * u * B) * Z - (A + 2.0 * w * B + 3.0 * w * B * B)
-        dZ = -(F_A * dA + F_B * dB) / F_Z
+        dZ = -(F_A * s.dA + F_B * s.dB) / F_Z
 
-        Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
-        L_Z = 1.0 / Zpd1 - 1.0 / Zpd2
+        L_Z = 1.0 / (Z + delta1 * B) - 1.0 / (Z + delta2 * B)
         A_BD = A / (B * Delta)
-        excess = abar - beta
-        dbeta = (db_i - beta * db) / b
-        dq = self._mix(y, dsqrt_a)
-        dabar = 2.0 * (dsqrt_a * q + sqrt_a * dq) / a - abar * da / a
+        excess = s.abar - s.beta
+        dbeta = (s.db_i - s.beta * s.db) / s.b
+        dq = self._mix(s.y, s.dsqrt_a)
+        dabar = 2.0 * (s.dsqrt_a * s.q + s.sqrt_a * dq) / s.a - s.abar * s.da / s.a
         return (
-            (beta - 1.0 / (Z - B) - A_BD * excess * L_Z) * dZ
-            - excess * L / (B * Delta) * dA
-            + (1.0 / (Z - B) + A_BD * excess * L / B - A_BD * excess * L_B) * dB
-            + (Z - 1.0 + A_BD * L) * dbeta
-            - A_BD * L * dabar
+            (s.beta - 1.0 / (Z - B) - A_BD * excess * L_Z) * dZ
+            - excess * s.L / (B * Delta) * s.dA
+            + (1.0 / (Z - B) + A_BD * excess * s.L / B - A_BD * excess * s.L_B) * s.dB
+            + (Z - 1.0 + A_BD * s.L) * dbeta
+            - A_BD * s.L * dabar
         )
 
-    def _result(self, Z, ln_phi, H_res, S_res, dln_phi, single: bool) -> GasProperties:
-        if single:
-            return GasProperties(
-                self.name, float(Z[0, 0]), ln_phi[0], float(H_res[0, 0]), float(S_res[0, 0]),
-                None if dln_phi is None else dln_phi[0],
-            )
-        return GasProperties(self.name, Z[:, 0], ln_phi, H_res[:, 0], S_res[:, 0], dln_phi)
+
+class _Local(NamedTuple):
+    """Intermediate values of one evaluation that the T-derivative reuses."""
+
+    T: Any
+    y: Any
+    Z: Any
+    A: Any
+    B: Any
+    dA: Any
+    dB: Any
+    L: Any
+    L_B: Any
+    beta: Any
+    abar: Any
+    sqrt_a: Any
+    dsqrt_a: Any
+    q: Any
+    a: Any
+    da: Any
+    b: Any
+    db_i: Any
+    db: Any
+
+
+def _weighted_sum(y, x):
+    """sum_i y_i x_i: a float for y of shape (S,), shape (B, 1) for y of shape (B, S)."""
+    if y.ndim == 1:
+        return float(np.dot(y, x))
+    return np.sum(y * x, axis=1, keepdims=True)

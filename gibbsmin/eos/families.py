@@ -45,6 +45,14 @@ class CubicFamily:
     omega_b: float
     kappa: Callable[[FloatArray], FloatArray]
 
+    def cubic_coefficients(self, A, B):
+        """c2, c1, c0 of Z^3 + c2 Z^2 + c1 Z + c0 = 0 for A = a P/(R T)^2 and B = b P/(R T).
+
+        With u = delta1 + delta2 and w = delta1 delta2 (PR: 2, -1; SRK: 1, 0).
+        """
+        u, w = self.delta1 + self.delta2, self.delta1 * self.delta2
+        return -(1.0 + B - u * B), A + w * B * B - u * B * (1.0 + B), -B * (A + w * B * (1.0 + B))
+
 
 def _kappa_peng_robinson(omega: FloatArray) -> FloatArray:
     omega = np.asarray(omega, dtype=float)

@@ -25,10 +25,13 @@ Sources of the numbers:
 
 from __future__ import annotations
 
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
+
+from ..errors import InputError
 
 _BAR = 1.0e5  # Pa
 
@@ -77,51 +80,79 @@ HELIUM = QuantumGas("He", Tc0=10.47, Pc0=6.76 * _BAR, c1=21.8, c2=44.2, molar_ma
 QUANTUM_GASES: dict[str, QuantumGas] = {gas.name: gas for gas in (HYDROGEN, HELIUM)}
 
 
+def quantum_gases_of(
+    entries: Sequence[str | QuantumGas | bool | None] | None, names: Sequence[str] | None, n_species: int
+) -> dict[int, QuantumGas]:
+    """The quantum gases marked in ``entries`` (one per species), by species position.
+
+    An entry is None or False for an ordinary species; "H2", "He" or a
+    QuantumGas for a quantum gas; or True, which takes the gas from ``names``.
+
+    Raises
+    ------
+    InputError
+        Entries of the wrong length, an unknown gas, or True without a known name.
+    """
+    if entries is None:
+        return {}
+    if len(entries) != n_species:
+        raise InputError(
+            f"quantum must have one entry per species ({n_species}), got {len(entries)}; "
+            "use None for ordinary species"
+        )
+    known = f"use one of {sorted(QUANTUM_GASES)}, a QuantumGas, or None"
+    gases = {}
+    for i, entry in enumerate(entries):
+        if isinstance(entry, bool | np.bool_):
+            if not entry:
+                continue
+            name = names[i] if names is not None else None
+            if name not in QUANTUM_GASES:
+                raise InputError(
+                    f"quantum entry True of species {i} ({name!r}) does not say which gas it is; "
+                    f"name the species {' or '.join(sorted(QUANTUM_GASES))} in names, or {known}"
+                )
+            entry = name
+        if entry is None:
+            continue
+        if isinstance(entry, QuantumGas):
+            gases[i] = entry
+        elif isinstance(entry, str) and entry in QUANTUM_GASES:
+            gases[i] = QUANTUM_GASES[entry]
+        else:
+            raise InputError(f"quantum entry {entry!r} of species {i} is not a known quantum gas; {known}")
+    return gases
+
+
 @dataclass(frozen=True)
 class QuantumTable:
-    """The quantum gases of a species set, arranged for vectorised evaluation.
+    """Critical constants of a species set in the Gunn-Chueh-Prausnitz form, for vectorised evaluation.
+
+    Every species gets Tc(T) = Tc0 / (1 + (c1/M) / T) and Pc(T) = Pc0 / (1 + (c2/M) / T);
+    ordinary species have c1/M = c2/M = 0 and so keep Tc0 and Pc0.
 
     Attributes
     ----------
-    index : ndarray of int, shape (Q,)
-        Positions of the quantum gases in the species set.
-    Tc0, Pc0 : ndarray, shape (Q,)
-        Classical-limit critical constants, [K] and [Pa].
-    c1_M, c2_M : ndarray, shape (Q,)
-        c1 / M and c2 / M, [K].
+    Tc0, Pc0 : ndarray, shape (S,)
+        Classical-limit critical constants of the quantum gases and the true
+        ones of the other species, [K] and [Pa].
+    c1_M, c2_M : ndarray, shape (S,)
+        c1 / M and c2 / M, [K]; zero for ordinary species.
     """
 
-    index: NDArray[np.intp]
     Tc0: NDArray[np.float64]
     Pc0: NDArray[np.float64]
     c1_M: NDArray[np.float64]
     c2_M: NDArray[np.float64]
 
     @classmethod
-    def of(cls, gases: dict[int, QuantumGas]) -> QuantumTable:
-        order = sorted(gases)
-        chosen = [gases[i] for i in order]
-        return cls(
-            index=np.array(order, dtype=np.intp),
-            Tc0=np.array([g.Tc0 for g in chosen]),
-            Pc0=np.array([g.Pc0 for g in chosen]),
-            c1_M=np.array([g.c1 / g.molar_mass for g in chosen]),
-            c2_M=np.array([g.c2 / g.molar_mass for g in chosen]),
-        )
-
-    def __len__(self) -> int:
-        return len(self.index)
-
-    def critical(self, T: NDArray[np.float64]) -> tuple[NDArray[np.float64], ...]:
-        """Tc [K], Pc [Pa] and their logarithmic T-derivatives [1/K], shape T.shape + (Q,).
-
-        ``T`` must carry a trailing axis of length one so that it broadcasts.
-        """
-        x1 = self.c1_M / T
-        x2 = self.c2_M / T
-        Tc = self.Tc0 / (1.0 + x1)
-        Pc = self.Pc0 / (1.0 + x2)
-        # d ln(1 / (1 + c/T)) / dT = (c / T^2) / (1 + c / T)
-        dlnTc_dT = x1 / (T * (1.0 + x1))
-        dlnPc_dT = x2 / (T * (1.0 + x2))
-        return Tc, Pc, dlnTc_dT, dlnPc_dT
+    def of(cls, gases: Mapping[int, QuantumGas], Tc: ArrayLike, Pc: ArrayLike) -> QuantumTable:
+        """The table for ordinary species with critical constants Tc [K], Pc [Pa] and the quantum ``gases``."""
+        Tc0 = np.array(Tc, dtype=float)
+        Pc0 = np.array(Pc, dtype=float)
+        c1_M = np.zeros_like(Tc0)
+        c2_M = np.zeros_like(Tc0)
+        for i, gas in gases.items():
+            Tc0[i], Pc0[i] = gas.Tc0, gas.Pc0
+            c1_M[i], c2_M[i] = gas.c1 / gas.molar_mass, gas.c2 / gas.molar_mass
+        return cls(Tc0, Pc0, c1_M, c2_M)

@@ -10,10 +10,10 @@ from ..errors import ConvergenceError
 _MAX_ITERATIONS = 200
 _STEP_TOLERANCE = 1e-13
 
+Real = float | NDArray[np.float64]
 
-def vapour_root(
-    c2: NDArray[np.float64], c1: NDArray[np.float64], c0: NDArray[np.float64], B: NDArray[np.float64]
-) -> NDArray[np.float64]:
+
+def vapour_root(c2: Real, c1: Real, c0: Real, B: Real) -> Real:
     """Largest real root of Z^3 + c2 Z^2 + c1 Z + c0 = 0, elementwise.
 
     Why the largest root: of up to three real roots, the smallest is the
@@ -33,18 +33,18 @@ def vapour_root(
 
     Parameters
     ----------
-    c2, c1, c0 : ndarray
+    c2, c1, c0 : float or ndarray
         Coefficients of the monic cubic in Z, [-].
-    B : ndarray
+    B : float or ndarray
         Dimensionless co-volume b P / (R T), [-].
 
     Returns
     -------
-    ndarray
+    float or ndarray
         Z of the vapour root, [-].
     """
-    if B.size == 1:
-        return np.full_like(B, _scalar_root(float(c2.flat[0]), float(c1.flat[0]), float(c0.flat[0]), float(B.flat[0])))
+    if isinstance(B, float):
+        return _scalar_root(c2, c1, c0, B)
     Z = 1.0 + B
     for _ in range(_MAX_ITERATIONS):
         f = ((Z + c2) * Z + c1) * Z + c0
@@ -57,8 +57,8 @@ def vapour_root(
 
 
 def _scalar_root(c2: float, c1: float, c0: float, B: float) -> float:
-    # The same iteration on Python floats: about ten times faster than on
-    # one-element arrays, and one condition is the common case in a solver loop.
+    # The same iteration on Python floats, about ten times faster than on
+    # one-element arrays: one condition is the common case in a solver loop.
     Z = 1.0 + B
     for _ in range(_MAX_ITERATIONS):
         f = ((Z + c2) * Z + c1) * Z + c0
