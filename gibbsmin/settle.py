@@ -115,7 +115,16 @@ def prepare(
                 omitted[record.name] = f"no data from {T_lo:g} K to {T_hi:g} K (fitted {record.T_min:g} to {record.T_max:g} K)"
         records = kept
     system = System.from_records(records, inert=inert_names)
-    return Setup(system, amounts, system.element_totals(amounts), omitted, frozenset(explicit))
+    feed_records = db.resolve(list(amounts))
+    missing = sorted({el for r in feed_records if r.name not in inert_names for el in r.elements}
+                     - set(system.elements))
+    if missing:
+        raise InputError(
+            f"element(s) {', '.join(missing)} in the feed cannot be carried by any species of the set; "
+            "add a species that contains them"
+        )
+    b = system.element_matrix(feed_records) @ np.array(list(amounts.values()))
+    return Setup(system, amounts, b, omitted, frozenset(explicit))
 
 
 def build_problem(setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64],

@@ -69,6 +69,13 @@ def _is_hydrocarbon(record: SpeciesRecord) -> bool:
     return set(record.elements) == {"C", "H"}
 
 
+def counted_carbon(record: SpeciesRecord, carbon_basis: str) -> float:
+    """Carbon atoms of one species that a steam-to-carbon ratio on ``carbon_basis`` counts."""
+    if carbon_basis == "all" or _is_hydrocarbon(record):
+        return record.elements.get("C", 0.0)
+    return 0.0
+
+
 def _check_carbon_basis(carbon_basis: object) -> str:
     if carbon_basis not in CARBON_BASES:
         raise InputError(
@@ -391,10 +398,8 @@ class Stream:
         """Carbon flow counted on ``basis``, [mol/s]; warns, at ``stacklevel``, of carbon the basis leaves out."""
         counted, uncounted = [], []
         for record, flow in zip(self._records, self.flow_mol_s):
-            carbon = record.elements.get("C", 0.0) * flow
-            if basis == "all" or _is_hydrocarbon(record):
-                counted.append(carbon)
-            elif carbon > 0 and record.name not in _NOT_ORGANIC_CARBON:
+            counted.append(counted_carbon(record, basis) * flow)
+            if counted[-1] == 0 and record.elements.get("C", 0.0) * flow > 0 and record.name not in _NOT_ORGANIC_CARBON:
                 uncounted.append(record.name)
         if uncounted:
             warnings.warn(

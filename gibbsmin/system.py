@@ -77,10 +77,20 @@ class System:
     def index(self, name: str) -> int:
         return self.names.index(name)
 
-    def element_totals(self, amounts: Mapping[str, float]) -> NDArray[np.float64]:
-        """Element totals b = A n for species amounts [mol] (names not in the set are ignored)."""
-        n = np.array([amounts.get(name, 0.0) for name in self.names])
-        return self.A @ n
+    def element_matrix(self, records: Sequence[SpeciesRecord]) -> NDArray[np.float64]:
+        """Atoms of each of the system's element rows in each of ``records`` (which may lie outside the set).
+
+        Feed species need not belong to the species set (a feed of methanol
+        may settle to a set without it); their atoms still count.
+        """
+        columns = []
+        for record in records:
+            if record.name in self.inert:
+                column = [1.0 if el == inert_element(record.name) else 0.0 for el in self.elements]
+            else:
+                column = [record.elements.get(el, 0.0) for el in self.elements]
+            columns.append(column)
+        return np.array(columns, dtype=float).T.reshape(len(self.elements), len(records))
 
     @classmethod
     def from_records(

@@ -205,11 +205,47 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     return max_iterations, NOT_CONVERGED
 
 
-@njit(cache=True, parallel=True)
-def iterate_batch(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi, iterations, status,
-                  tol, max_iterations, phase_tol, max_phase_changes):
-    """Iterate every point of a batch (threads share the points)."""
-    for p in prange(b.shape[0]):
+@njit(cache=True)
+def _iterate_chain(first, last, A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
+                   iterations, status, tol, max_iterations, phase_tol, max_phase_changes):
+    """Points first..last-1 in order, each started from its predecessor's answer when that converged.
+
+    A point that fails from the warm start is tried again from its own start.
+    """
+    for p in range(first, last):
+        own_ln_n = ln_n[p].copy()
+        own_n_c = n_c[p].copy()
+        own_active = active[p].copy()
+        warm = p > first and status[p - 1] == CONVERGED
+        if warm:
+            ln_n[p] = ln_n[p - 1]
+            for c in range(n_c.shape[1]):
+                active[p, c] = active[p - 1, c] and allowed[p, c]
+                n_c[p, c] = n_c[p - 1, c] if active[p, c] else 0.0
         iterations[p], status[p] = iterate_point(
             A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
             tol, max_iterations, phase_tol, max_phase_changes)
+        if warm and status[p] != CONVERGED:
+            ln_n[p] = own_ln_n
+            n_c[p] = own_n_c
+            active[p] = own_active
+            extra, status[p] = iterate_point(
+                A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
+                tol, max_iterations, phase_tol, max_phase_changes)
+            iterations[p] += extra
+
+
+@njit(cache=True, parallel=True)
+def iterate_batch(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi, iterations, status,
+                  tol, max_iterations, phase_tol, max_phase_changes, chains):
+    """Iterate every point of a batch, cut into ``chains`` runs of neighbours solved in parallel threads.
+
+    Within a run each point starts from the previous answer (warm start), so
+    ordering a batch along a sweep axis pays; chains = B gives independent cold starts.
+    """
+    B = b.shape[0]
+    chains = max(1, min(chains, B))
+    for c in prange(chains):
+        _iterate_chain(c * B // chains, (c + 1) * B // chains, A_g, A_c, b, mu0_g, mu0_c, allowed, same,
+                       ln_n, n_c, active, pi, iterations, status, tol, max_iterations, phase_tol,
+                       max_phase_changes)

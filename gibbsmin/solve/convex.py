@@ -17,7 +17,6 @@ from __future__ import annotations
 import functools
 import warnings
 
-import cvxpy as cp
 import numpy as np
 from numpy.typing import NDArray
 
@@ -28,6 +27,8 @@ from .result import SolverResult, merge
 
 @functools.lru_cache(maxsize=64)
 def _compiled(A_bytes: bytes, shape: tuple[int, int], n_gas: int, condensed: tuple[int, ...]):
+    import cvxpy as cp  # imported on first use: it costs seconds, and most answers never need it
+
     A = np.frombuffer(A_bytes).reshape(shape)
     A_g, A_c = A[:, :n_gas], A[:, list(condensed)]
     n_g = cp.Variable(n_gas, nonneg=True)
@@ -46,6 +47,8 @@ def _compiled(A_bytes: bytes, shape: tuple[int, int], n_gas: int, condensed: tup
 
 
 def _solve_point(problem: Problem, i: int) -> tuple[NDArray, NDArray, bool]:
+    import cvxpy as cp
+
     G = problem.n_gas
     allowed = tuple(int(G + c) for c in np.flatnonzero(problem.allowed[i, G:]))
     A = np.ascontiguousarray(problem.A, dtype=float)

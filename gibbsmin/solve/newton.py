@@ -87,7 +87,7 @@ def _same_composition(A_c: np.ndarray) -> np.ndarray:
 
 
 def solve_newton(problem: Problem, start: SolverResult | None = None,
-                 options: NewtonOptions = NewtonOptions()) -> SolverResult:
+                 options: NewtonOptions = NewtonOptions(), chains: int | None = None) -> SolverResult:
     """Solve a batch of problems by the element-potential Newton method.
 
     Parameters
@@ -98,6 +98,10 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         Starting amounts and phase sets (a neighbouring solution, or the convex
         solver's answer to polish); a cold start when omitted.
     options : NewtonOptions
+    chains : int, optional
+        Cut the batch into this many runs of consecutive points; within a run
+        each point starts from its predecessor's answer (order the batch along
+        a sweep axis to profit).  Default: every point starts on its own.
 
     Returns
     -------
@@ -123,6 +127,7 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         np.ascontiguousarray(problem.mu0[:, :G]), np.ascontiguousarray(problem.mu0[:, G:]),
         allowed, _same_composition(A_c), ln_n, n_c, active, pi, iterations, status,
         options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
+        B if chains is None else int(chains),
     )
     return SolverResult(
         ln_n_gas=ln_n + np.log(scale)[:, None],

@@ -1,0 +1,8 @@
+"""Sweeps: grids of independent equilibrium problems, solved in batches, streamed to disk, resumable."""
+
+from .chunk import solve_points as solve_points
+from .grid import Axis as Axis
+from .grid import SweepSpec as SweepSpec
+from .grid import grid as grid
+from .run import SweepOutput as SweepOutput
+from .run import run_sweep as run_sweep

@@ -1,0 +1,91 @@
+"""Solving a run of sweep points as batches, with certified answers only.
+
+Every executor (in-process, local processes, a Dask cluster) calls
+``solve_points`` on a range of point numbers; the answer depends on nothing
+else, so a chunk solved twice gives the same table.
+"""
+
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+import pandas as pd
+
+from ..settle import Setup, build_problem, prepare
+from ..solve import certify, solve_convex, solve_newton
+from ..solve.result import merge
+from ..thermo.database import default_database
+from .grid import SweepSpec
+
+#: Columns every sweep table has besides the axes and the species.
+SUMMARY_COLUMNS = ("point", "T_K", "P_Pa", "certified", "solver", "iterations",
+                   "element_balance", "stationarity", "condensed_margin")
+
+
+@functools.lru_cache(maxsize=8)
+def _setup(spec_json: str) -> Setup:
+    spec = SweepSpec.from_json(spec_json)
+    names = spec.feed_species()
+    # Unit amounts only fix the species set and element rows; each point brings its own totals.
+    return prepare({n: 1.0 for n in names}, species=spec.species, exclude=spec.exclude, inert=spec.inert,
+                   T_span=spec.T_span())
+
+
+def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
+    """The table of points first..last-1: axis values, T, P, gas mole fractions, condensed amounts, certificate.
+
+    Points are solved by Newton in runs along the last axis (each point
+    warm-started from its neighbour); any point it cannot certify is solved on
+    the cone and marked by its ``solver``; a point no solver certifies keeps
+    ``certified = False``.  No point is dropped.
+    """
+    db = default_database()
+    setup = _setup(spec.to_json())
+    system = setup.system
+    T, P, feed, shown = spec.conditions(first, last, db)
+    feed_matrix = system.element_matrix(db.resolve(spec.feed_species(db)))
+    b = feed @ feed_matrix.T
+    B = last - first
+    n_gas = system.n_gas
+    y = np.zeros((B, n_gas))
+    n_condensed = np.zeros((B, len(system.names) - n_gas))
+    summary = {name: np.zeros(B) for name in ("element_balance", "stationarity", "condensed_margin")}
+    certified = np.zeros(B, dtype=bool)
+    iterations = np.zeros(B, dtype=int)
+    solver = np.empty(B, dtype=object)
+    run = spec.shape[-1]
+    for group in _element_groups(b):
+        problem = build_problem(setup, T[group], P[group], b=b[group])
+        result = solve_newton(problem, chains=max(1, group.size // run))
+        certificates = certify(problem, result)
+        bad = np.flatnonzero(~certificates.certified)
+        if bad.size:
+            result = merge(result, solve_convex(problem.take(bad)), bad)
+            certificates = certify(problem, result)
+        keep = problem.keep
+        gas_keep = keep[keep < n_gas]
+        ln_y = result.ln_n_gas - np.log(np.exp(result.ln_n_gas).sum(axis=1, keepdims=True))
+        y[np.ix_(group, gas_keep)] = np.exp(ln_y)
+        n_condensed[np.ix_(group, keep[keep >= n_gas] - n_gas)] = result.n_condensed
+        certified[group] = certificates.certified
+        iterations[group] = certificates.iterations
+        solver[group] = certificates.solver
+        summary["element_balance"][group] = certificates.element_balance
+        summary["stationarity"][group] = certificates.stationarity
+        summary["condensed_margin"][group] = certificates.complementarity
+    columns: dict[str, object] = {"point": np.arange(first, last)}
+    columns.update(shown)
+    columns.update({"T_K": T, "P_Pa": P})
+    columns.update({f"y_{name}": y[:, j] for j, name in enumerate(system.gas_names)})
+    columns.update({f"n_{name}": n_condensed[:, j] for j, name in enumerate(system.condensed_names)})
+    columns.update({"certified": certified, "solver": solver.astype(str), "iterations": iterations})
+    columns.update(summary)
+    return pd.DataFrame(columns)
+
+
+def _element_groups(b: np.ndarray) -> list[np.ndarray]:
+    """Points grouped by which elements they contain (a solve needs one element set)."""
+    present = b / np.maximum(b.max(axis=1, keepdims=True), 1e-300) > 1e-14
+    patterns, which = np.unique(present, axis=0, return_inverse=True)
+    return [np.flatnonzero(which.ravel() == k) for k in range(len(patterns))]

@@ -1,0 +1,187 @@
+"""A sweep: a base case and the axes along which it varies, as a grid of independent problems.
+
+Points are numbered in C order (the last axis varies fastest), so that
+consecutive points are neighbours along the last axis: a chunk of them is
+solved as one batch with warm starts along that axis.  Nothing here solves or
+writes anything; it only says what point i is.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+from numpy.typing import NDArray
+
+from ..errors import InputError
+from ..streams import CARBON_BASES, counted_carbon
+from ..thermo.database import SpeciesDatabase, default_database
+
+#: Axis names with a meaning of their own; any other name is a feed species.
+SPECIAL_AXES = ("T", "P", "S/C")
+
+
+@dataclass(frozen=True)
+class Axis:
+    """One varied quantity.
+
+    Attributes
+    ----------
+    name : str
+        "T" [K], "P" [Pa], "S/C" (steam-to-carbon ratio, [-]) or a feed species
+        name (its amount, in the feed's own basis, e.g. mol or mol/s).
+    values : tuple of float
+        The values in those units.
+    unit : str
+        The unit the user wrote, for labels ("degC", "bar", ...).
+    shown : tuple of float
+        The values in that unit.
+    """
+
+    name: str
+    values: tuple[float, ...]
+    unit: str = ""
+    shown: tuple[float, ...] = ()
+
+    def __post_init__(self) -> None:
+        if not self.values:
+            raise InputError(f"axis {self.name!r} has no values")
+        if not all(np.isfinite(self.values)):
+            raise InputError(f"axis {self.name!r} has a value that is not a finite number")
+        if not self.shown:
+            object.__setattr__(self, "shown", tuple(self.values))
+
+    @property
+    def label(self) -> str:
+        return f"{self.name} [{self.unit}]" if self.unit else self.name
+
+
+@dataclass(frozen=True)
+class SweepSpec:
+    """The whole sweep: base case plus axes.
+
+    Attributes
+    ----------
+    feed : dict
+        Base feed, species to amount [mol] (or a consistent flow basis).
+    T, P : float
+        Base temperature [K] and pressure [Pa], used where no axis varies them.
+    axes : tuple of Axis
+    species, exclude, inert : species-set options as for ``equilibrate``.
+    carbon_basis : str
+        Which carbon an S/C axis counts: "hydrocarbon" (the trade's
+        convention, CO and CO2 excluded) or "all".
+    method : str
+        Solver for the points Newton cannot certify is always the cone; this
+        is the first solver tried ("auto" = Newton first).
+    """
+
+    feed: Mapping[str, float]
+    T: float
+    P: float
+    axes: tuple[Axis, ...]
+    species: tuple[str, ...] | None = None
+    exclude: tuple[str, ...] = ()
+    inert: tuple[str, ...] = ()
+    carbon_basis: str = "hydrocarbon"
+    method: str = "auto"
+    _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        if not self.axes:
+            raise InputError("a sweep needs at least one axis, e.g. Axis('T', (900.0, 1000.0))")
+        names = [a.name for a in self.axes]
+        if len(set(names)) != len(names):
+            raise InputError(f"an axis is given twice: {', '.join(names)}")
+        if self.carbon_basis not in CARBON_BASES:
+            raise InputError(f"carbon_basis must be one of {', '.join(CARBON_BASES)}, not {self.carbon_basis!r}")
+        for axis in self.axes:
+            if axis.name in ("T", "P") and min(axis.values) <= 0:
+                raise InputError(f"axis {axis.name} must hold positive values in K or Pa")
+            if axis.name not in ("T", "P") and min(axis.values) < 0:
+                raise InputError(f"axis {axis.name} must not hold negative values")
+        object.__setattr__(self, "_shape", tuple(len(a.values) for a in self.axes))
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return self._shape
+
+    @property
+    def n_points(self) -> int:
+        return int(np.prod(self._shape))
+
+    def axis(self, name: str) -> Axis | None:
+        return next((a for a in self.axes if a.name == name), None)
+
+    def T_span(self) -> tuple[float, float]:
+        axis = self.axis("T")
+        return (min(axis.values), max(axis.values)) if axis else (self.T, self.T)
+
+    def feed_species(self, db: SpeciesDatabase | None = None) -> list[str]:
+        """Every species that any point feeds (base feed, component axes, and steam for S/C)."""
+        db = db or default_database()
+        names = [db[n].name for n in self.feed]
+        for axis in self.axes:
+            if axis.name not in SPECIAL_AXES and db[axis.name].name not in names:
+                names.append(db[axis.name].name)
+        if self.axis("S/C") and "H2O" not in names:
+            names.append("H2O")
+        return names
+
+    def conditions(self, first: int, last: int, db: SpeciesDatabase | None = None
+                   ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], dict[str, NDArray]]:
+        """T [K], P [Pa], feed amounts (B, len(feed_species)) and the axis values of points first..last-1."""
+        db = db or default_database()
+        index = np.arange(first, last)
+        position = np.unravel_index(index, self._shape)
+        values = {a.name: np.asarray(a.values)[position[k]] for k, a in enumerate(self.axes)}
+        shown = {a.label: np.asarray(a.shown)[position[k]] for k, a in enumerate(self.axes)}
+        B = index.size
+        T = values.get("T", np.full(B, self.T))
+        P = values.get("P", np.full(B, self.P))
+        names = self.feed_species(db)
+        feed = np.zeros((B, len(names)))
+        for j, name in enumerate(names):
+            feed[:, j] = next((v for k, v in self.feed.items() if db[k].name == name), 0.0)
+        for axis in self.axes:
+            if axis.name not in SPECIAL_AXES:
+                feed[:, names.index(db[axis.name].name)] = values[axis.name]
+        if "S/C" in values:
+            carbon = feed @ np.array([counted_carbon(db[n], self.carbon_basis) for n in names])
+            if np.any(carbon <= 0):
+                raise InputError(f"an S/C axis needs carbon ({self.carbon_basis} basis) in every feed of the sweep")
+            feed[:, names.index("H2O")] = values["S/C"] * carbon
+        return np.asarray(T, float), np.asarray(P, float), feed, shown
+
+    def to_json(self) -> str:
+        """A canonical text form (also the basis of the fingerprint)."""
+        return json.dumps({
+            "feed": dict(self.feed), "T": self.T, "P": self.P,
+            "axes": [{"name": a.name, "values": list(a.values), "unit": a.unit, "shown": list(a.shown)}
+                     for a in self.axes],
+            "species": list(self.species) if self.species is not None else None,
+            "exclude": list(self.exclude), "inert": list(self.inert),
+            "carbon_basis": self.carbon_basis, "method": self.method,
+        }, sort_keys=True)
+
+    @classmethod
+    def from_json(cls, text: str) -> SweepSpec:
+        data = json.loads(text)
+        return cls(
+            feed=data["feed"], T=data["T"], P=data["P"],
+            axes=tuple(Axis(a["name"], tuple(a["values"]), a["unit"], tuple(a["shown"])) for a in data["axes"]),
+            species=tuple(data["species"]) if data["species"] is not None else None,
+            exclude=tuple(data["exclude"]), inert=tuple(data["inert"]),
+            carbon_basis=data["carbon_basis"], method=data["method"],
+        )
+
+    def fingerprint(self) -> str:
+        return hashlib.sha256(self.to_json().encode()).hexdigest()[:16]
+
+
+def grid(name: str, values: Sequence[float], unit: str = "", shown: Sequence[float] = ()) -> Axis:
+    """An axis from a name and its values (in K, Pa, or the feed's basis)."""
+    return Axis(name, tuple(float(v) for v in values), unit, tuple(float(v) for v in shown))
