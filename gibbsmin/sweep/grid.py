@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
+import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
@@ -185,3 +187,50 @@ class SweepSpec:
 def grid(name: str, values: Sequence[float], unit: str = "", shown: Sequence[float] = ()) -> Axis:
     """An axis from a name and its values (in K, Pa, or the feed's basis)."""
     return Axis(name, tuple(float(v) for v in values), unit, tuple(float(v) for v in shown))
+
+
+_RANGE = re.compile(r"^\s*([-+0-9.eE]+)\s*:\s*([-+0-9.eE]+)\s*:\s*([-+0-9.eE]+)\s*$")
+
+
+def axis_from_text(text: str) -> Axis:
+    """An axis from the command line's form: NAME=START:STOP:STEP[unit] or NAME=V1,V2,...[unit].
+
+    Examples: ``T=700:1000:25degC``, ``P=20,30,40bar``, ``P=25:35:5bar(g)``,
+    ``S/C=2:4:0.5``, ``CO2=0:0.2:0.05`` (a feed species, in the feed's basis).
+    The stop value is included when the steps reach it.
+    """
+    from ..units import to_kelvin, to_pascal
+
+    name, sep, rest = text.partition("=")
+    name = name.strip()
+    if not sep or not name or not rest.strip():
+        raise InputError(f"cannot read axis {text!r}: write NAME=START:STOP:STEP[unit] or NAME=V1,V2,...[unit], "
+                         "e.g. T=700:1000:25degC")
+    match = re.match(r"^(.*?[0-9.])\s*([A-Za-z(][A-Za-z0-9()/ ]*)?$", rest.strip())
+    if match is None:
+        raise InputError(f"cannot read the values of axis {text!r}")
+    numbers, unit = match.group(1), (match.group(2) or "").strip()
+    ranged = _RANGE.match(numbers)
+    try:
+        parts = [float(v) for v in (ranged.groups() if ranged else numbers.split(","))]
+    except ValueError:
+        raise InputError(f"cannot read the numbers of axis {text!r}") from None
+    if ranged:
+        start, stop, step = parts
+        if step == 0 or (stop - start) / step < 0:
+            raise InputError(f"axis {text!r}: the step must be non-zero and lead from start to stop")
+        count = int(math.floor((stop - start) / step + 1e-9)) + 1
+        shown = [start + k * step for k in range(count)]
+    else:
+        shown = parts
+    if name == "T":
+        unit = unit or "K"
+        values = [to_kelvin(f"{v} {unit}") for v in shown]
+    elif name == "P":
+        unit = unit or "Pa"
+        values = [to_pascal(f"{v} {unit}") for v in shown]
+    elif unit:
+        raise InputError(f"axis {name} takes plain numbers (the ratio, or amounts in the feed's basis), not {unit!r}")
+    else:
+        values = shown
+    return Axis(name, tuple(values), unit, tuple(shown))
