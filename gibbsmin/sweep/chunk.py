@@ -53,7 +53,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     summary = {name: np.zeros(B) for name in ("element_balance", "stationarity", "condensed_margin")}
     certified = np.zeros(B, dtype=bool)
     iterations = np.zeros(B, dtype=int)
-    solver = np.empty(B, dtype=object)
+    solver = np.empty(B, dtype="<U16")
     run = spec.shape[-1]
     for group in _element_groups(b):
         problem = build_problem(setup, T[group], P[group], b=b[group])
@@ -79,7 +79,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     columns.update({"T_K": T, "P_Pa": P})
     columns.update({f"y_{name}": y[:, j] for j, name in enumerate(system.gas_names)})
     columns.update({f"n_{name}": n_condensed[:, j] for j, name in enumerate(system.condensed_names)})
-    columns.update({"certified": certified, "solver": solver.astype(str), "iterations": iterations})
+    columns.update({"certified": certified, "solver": pd.Categorical(solver), "iterations": iterations})
     columns.update(summary)
     return pd.DataFrame(columns)
 
@@ -87,5 +87,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
 def _element_groups(b: np.ndarray) -> list[np.ndarray]:
     """Points grouped by which elements they contain (a solve needs one element set)."""
     present = b / np.maximum(b.max(axis=1, keepdims=True), 1e-300) > 1e-14
-    patterns, which = np.unique(present, axis=0, return_inverse=True)
-    return [np.flatnonzero(which.ravel() == k) for k in range(len(patterns))]
+    if np.all(present == present[0]):
+        return [np.arange(b.shape[0])]
+    codes = present @ (1 << np.arange(present.shape[1], dtype=np.int64))
+    return [np.flatnonzero(codes == code) for code in np.unique(codes)]
