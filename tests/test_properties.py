@@ -105,8 +105,9 @@ def test_solvers_agree_and_every_answer_is_optimal(feed, T, P):
     _check_same(newton, convex)
 
 
-# Solver bugs the property test found, kept as named cases so that each stays
-# visible whatever hypothesis draws.  Diagnosis, in short:
+# Solver faults the property test once found (now fixed), kept as named
+# regression cases so that each stays covered whatever hypothesis draws.
+# The diagnosis, as found:
 #
 # 1. Feeds made of one molecule per element set (steam, CO2, steam + CO2,
 #    steam + N2) leave the dissociation products (O2 and H2 near 1e-7 in steam
@@ -127,7 +128,9 @@ def test_solvers_agree_and_every_answer_is_optimal(feed, T, P):
 #    system has no solution, and Newton drops a phase only after converging,
 #    so it runs out of iterations; the raw cone answer (stationarity 110) is
 #    refused.  method="convex" raises ConvergenceError; "auto" is rescued by Newton.
-SOLVER_BUG_CASES = [
+# The fixes: Newton's step test weighs each change by the species' share of
+# the gas, and a condensed amount driven below zero drops its phase at once.
+ONCE_FAILING_CASES = [
     # feed [mol], T [K], P [Pa]
     ({"H2O": 1.0}, 1000.0, 1e5),
     ({"H2O": 3.47}, 1384.5, 7.76e5),
@@ -140,9 +143,9 @@ SOLVER_BUG_CASES = [
 
 
 @pytest.mark.parametrize("method", ["auto", "newton", "convex"])
-@pytest.mark.parametrize("feed, T, P", SOLVER_BUG_CASES,
+@pytest.mark.parametrize("feed, T, P", ONCE_FAILING_CASES,
                          ids=["steam", "steam-hot", "steam-N2", "steam-CO2", "CO2", "CO-600K", "CO-1000K"])
-def test_BUG_single_molecule_feeds_are_solved_and_certified(feed, T, P, method):
+def test_single_molecule_feeds_are_solved_and_certified(feed, T, P, method):
     with warnings.catch_warnings():
         warnings.simplefilter("error", RuntimeWarning)  # an "imprecise" answer is a failure here
         eq = gibbsmin.equilibrate(feed, T, P, method=method)
@@ -150,7 +153,7 @@ def test_BUG_single_molecule_feeds_are_solved_and_certified(feed, T, P, method):
 
 
 @pytest.mark.parametrize("T", [599.0, 600.0])
-def test_BUG_convex_polish_starts_with_absent_liquid_water(T):
+def test_convex_polish_recovers_from_a_spurious_liquid_water_start(T):
     feed = {"H2": 1.0, "CO": 1.0}
     eq = gibbsmin.equilibrate(feed, T, 1e5, method="convex")
     _check_optimal(eq, feed)

@@ -174,8 +174,12 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
             for k in range(M):
                 d += A_g[k, j] * pi[k]
             d_ln_n[j] = d
-            worst = max(worst, abs(d))
             ln_y = ln_n[j] - ln_N
+            # Changes count in proportion to the species' share of the gas before
+            # or after the step: a trace species whose amount is pinned by a
+            # nearly cancelling balance (O2 in steam) carries round-off in its
+            # logarithm that it cannot shed, yet is exact to its own precision.
+            worst = max(worst, abs(d) * math.exp(min(0.0, max(ln_y, ln_y + d - d_ln_N))))
             if ln_y > LN_TRACE:
                 biggest = max(biggest, abs(d))
             elif d - d_ln_N > 0.0:
@@ -196,6 +200,19 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
             if active[c]:
                 n_c[c] += lam * x[M + c]
                 worst_c = max(worst_c, abs(x[M + c]))
+        # A phase set with no solution shows itself as a condensed amount
+        # driven below zero: drop that phase now rather than iterate in vain.
+        dropped = -1
+        for c in range(C):
+            if active[c] and n_c[c] < 0.0 and (dropped < 0 or n_c[c] < n_c[dropped]):
+                dropped = c
+        if dropped >= 0:
+            active[dropped] = False
+            n_c[dropped] = 0.0
+            changes += 1
+            if changes > max_phase_changes:
+                return iteration, CYCLING
+            continue
         if lam == 1.0 and worst <= tol and abs(d_ln_N) <= tol and worst_c <= tol:
             if not _manage_phases(pi, mu0_c, A_c, allowed, same, n_c, active, phase_tol):
                 return iteration, CONVERGED

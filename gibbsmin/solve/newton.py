@@ -42,8 +42,10 @@ class NewtonOptions:
     Attributes
     ----------
     tol : float
-        Converged when every |d ln n_j|, |d ln N| and |d n_c| (amounts scaled
-        to sum(b) = 1) is below this.
+        Converged when every y_j |d ln n_j| (y_j the larger of the mole
+        fractions before and after the step), |d ln N| and |d n_c| (amounts
+        scaled to sum(b) = 1) is below this; the last step is a full one, so
+        every trace species then sits exactly where the element potentials put it.
     max_iterations : int
         Iterations per point, counting those after phase changes.
     phase_tol : float
@@ -52,7 +54,7 @@ class NewtonOptions:
         Guard against cycling between phase sets.
     """
 
-    tol: float = 1e-11
+    tol: float = 1e-12
     max_iterations: int = 300
     phase_tol: float = 1e-10
     max_phase_changes: int = 30

@@ -1,0 +1,39 @@
+"""The README's promises: its commands match CI, and its Python examples run."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent
+README = (ROOT / "README.md").read_text(encoding="utf-8")
+PYTHON_BLOCKS = re.findall(r"```python\n(.*?)```", README, flags=re.S)
+SETUP = "python3 -m venv .venv && .venv/bin/pip install -e '.[test]'"
+
+
+def test_the_first_paragraph_states_the_job():
+    first = README.split("\n\n")[1]
+    for words in ("reformers", "equilibrium", "Gibbs energy", "carbon"):
+        assert words in first
+
+
+def test_the_two_commands_are_there_and_ci_runs_the_tests_command():
+    commands = re.findall(r"```\n(python3 -m venv[^\n]*)\n```", README)
+    assert len(commands) == 2
+    assert all(c.startswith(SETUP) for c in commands)
+    assert commands[0].endswith("gibbsmin settle examples/reformer.toml")
+    test_command = commands[1].split("&& ")[-1].replace(".venv/bin/", "")
+    ci = (ROOT / ".ci" / "run").read_text()
+    assert test_command in ci.replace(".venv/bin/", "")
+
+
+def test_the_readme_carries_the_safety_caution():
+    assert "licensed engineering practice" in README and "local" in README
+
+
+@pytest.mark.parametrize("block", PYTHON_BLOCKS, ids=[f"block{i}" for i in range(len(PYTHON_BLOCKS))])
+def test_python_examples_run(block, tmp_path, monkeypatch, capsys):
+    monkeypatch.chdir(tmp_path)
+    exec(compile(block, "README.md", "exec"), {})
