@@ -1,0 +1,327 @@
+"""The ``gibbsmin`` command: settle a case file, audit a heat-and-mass balance, list species.
+
+Thin by design: it reads arguments, calls the library, writes what was asked
+for.  Exit codes: 0 success; 1 the audit found failures and ``--fail-on`` asked
+to be told; 2 bad input (one line on stderr, no traceback); 3 no certified
+answer; 130 interrupted.  ``--traceback`` shows the Python traceback of an error
+(for reporting a bug).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import warnings
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+from . import __version__
+from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
+
+#: Exit codes.
+OK, CHECKS_FAILED, BAD_INPUT, NOT_CERTIFIED, INTERRUPTED = 0, 1, 2, 3, 130
+
+SETTLE_EXAMPLE = """\
+example:
+  gibbsmin settle examples/reformer.toml
+  gibbsmin settle examples/reformer.toml --json > outlet.json
+  gibbsmin settle examples/reformer.toml --html reformer.html --xlsx reformer.xlsx
+
+A case file, e.g. reformer.toml:
+
+  [case]
+  title = "Steam reformer outlet"
+
+  [feed]
+  unit = "kmol/h"
+  CH4 = 1000.0
+  H2O = 3000.0
+
+  [conditions]
+  T = "850 degC"
+  P = "30 bar(g)"
+
+`gibbsmin settle --keys` lists every key a case file may hold.
+"""
+
+SPECIES_EXAMPLE = """\
+example:
+  gibbsmin species              every species of the database
+  gibbsmin species CH           names, formulas or aliases containing 'CH'
+  gibbsmin species --element S  every species holding sulfur
+  gibbsmin species methanol --json
+"""
+
+AUDIT_EXAMPLE = """\
+example:
+  gibbsmin audit examples/plant/streams.csv examples/plant/units.toml
+  gibbsmin audit examples/plant/streams.xlsx examples/plant/units.toml --html audit.html --fail-on fail
+
+The stream table (CSV or XLSX) has one column per stream; the unit description
+(TOML) says which streams enter and leave each unit and what the unit is.
+`gibbsmin audit --keys` lists every key of the unit description and every row
+label of the stream table.
+"""
+
+
+class _Parser(argparse.ArgumentParser):
+    """An argument parser whose usage errors are one line on stderr and exit code 2."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        self.exit(BAD_INPUT, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
+
+
+def _one_line(text: str) -> str:
+    return " ".join(part.strip() for part in str(text).splitlines() if part.strip())
+
+
+def _add_outputs(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--json", action="store_true", help="print a machine-readable JSON document instead of the table")
+    parser.add_argument("--csv", metavar="FILE", help="also write the tables as CSV")
+    parser.add_argument("--xlsx", metavar="FILE", help="also write the tables as an Excel workbook")
+    parser.add_argument("--html", metavar="FILE", help="also write a self-contained HTML report with plots")
+    parser.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+
+
+def _write_outputs(report, args: argparse.Namespace) -> list[Path]:
+    from .report.files import write_atomic
+
+    written = []
+    if args.csv:
+        from .report.spreadsheet import render_csv
+
+        written.append(write_atomic(args.csv, render_csv(report)))
+    if args.xlsx:
+        from .report.spreadsheet import render_xlsx
+
+        written.append(write_atomic(args.xlsx, render_xlsx(report)))
+    if args.html:
+        from .report.html import render_html
+
+        written.append(write_atomic(args.html, render_html(report)))
+    return written
+
+
+def _print_json(document: dict) -> None:
+    sys.stdout.write(json.dumps(document, indent=2, allow_nan=False) + "\n")
+
+
+def _progress(total: int, what: str):
+    """A progress display on stderr for runs of several steps (silent when stderr is not a terminal)."""
+    from tqdm import tqdm
+
+    return tqdm(total=total, desc=what, unit="step", file=sys.stderr, disable=None, leave=False)
+
+
+def _ticker(bar) -> Callable[[str], None]:
+    """A progress callback: called with the name of each step as it starts."""
+
+    def tick(name: str) -> None:
+        bar.set_postfix_str(name, refresh=False)
+        bar.update(1)
+
+    return tick
+
+
+# --- settle -------------------------------------------------------------------------------------------
+
+
+def _settle(args: argparse.Namespace) -> int:
+    from .case import CASE_KEYS, read_case, settle_case
+    from .report.settle import settle_document, settle_report
+    from .report.text import render_text
+
+    if args.keys:
+        sys.stdout.write(_keys_text(CASE_KEYS))
+        return OK
+    if args.case is None:
+        raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")
+    case = read_case(args.case)
+    with _progress(len(case.stages), "settling") as bar:
+        result = settle_case(case, progress=_ticker(bar))
+    report = settle_report(result)
+    _write_outputs(report, args)
+    if args.json:
+        _print_json(settle_document(result))
+    elif not args.quiet:
+        sys.stdout.write(render_text(report))
+    return OK
+
+
+def _keys_text(keys: dict[str, dict[str, str]]) -> str:
+    lines = []
+    for table, entries in keys.items():
+        lines.append(f"[{table}]")
+        width = max(len(k) for k in entries)
+        lines += [f"  {k:<{width}}  {meaning}" for k, meaning in entries.items()]
+        lines.append("")
+    return "\n".join(lines)
+
+
+# --- species ------------------------------------------------------------------------------------------
+
+
+def _species(args: argparse.Namespace) -> int:
+    from .formula import ATOMIC_WEIGHTS
+    from .thermo import default_database
+
+    if args.element is not None and args.element not in ATOMIC_WEIGHTS:
+        folded = [e for e in ATOMIC_WEIGHTS if e.casefold() == args.element.casefold()]
+        hint = f"; did you mean {folded[0]}?" if folded else "; give an element symbol such as C, H, O, N or S"
+        raise _UsageError(f"unknown element {args.element!r}{hint}")
+    found = default_database().search(args.text or "", element=args.element)
+    if args.json:
+        _print_json({"species": [
+            {"name": r.name, "formula": r.formula, "state": r.state, "T_min_K": r.T_min, "T_max_K": r.T_max,
+             "molar_mass_g_mol": r.molar_mass, "aliases": list(r.aliases), "source": r.source} for r in found]})
+        return OK
+    if not found:
+        what = " and ".join(filter(None, [f"{args.text!r}" if args.text else "", args.element and f"element {args.element}"]))
+        sys.stderr.write(f"gibbsmin species: no species match {what}\n")
+        return OK
+    rows = [(r.name, r.formula, r.state, f"{r.T_min:g}-{r.T_max:g}", f"{r.molar_mass:.3f}", ", ".join(r.aliases))
+            for r in found]
+    header = ("name", "formula", "state", "T range [K]", "M [g/mol]", "aliases")
+    widths = [max(len(h), *(len(row[i]) for row in rows)) for i, h in enumerate(header)]
+    out = ["  ".join(h.ljust(w) for h, w in zip(header, widths)).rstrip()]
+    out += ["  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in rows]
+    out.append(f"({len(found)} species)")
+    sys.stdout.write("\n".join(out) + "\n")
+    return OK
+
+
+# --- audit --------------------------------------------------------------------------------------------
+
+
+def _audit(args: argparse.Namespace) -> int:
+    from . import audit
+    from .report.text import render_text
+
+    if args.keys:
+        sys.stdout.write(_keys_text(audit.AUDIT_KEYS))
+        return OK
+    if args.table is None or args.units is None:
+        raise _UsageError("audit needs a stream table and a unit description, e.g. "
+                          "gibbsmin audit examples/plant/streams.csv examples/plant/units.toml")
+    plant = audit.read_plant(args.units, args.table)
+    with _progress(len(plant.units), "auditing") as bar:
+        result = audit.audit_plant(plant, progress=_ticker(bar))
+    report = audit.audit_report(result)
+    _write_outputs(report, args)
+    if args.json:
+        _print_json(audit.audit_document(result))
+    elif not args.quiet:
+        sys.stdout.write(render_text(report))
+    worst = result.worst
+    if args.fail_on == "fail" and worst == "fail" or args.fail_on == "warn" and worst in ("warn", "fail"):
+        return CHECKS_FAILED
+    return OK
+
+
+# --- the parser ---------------------------------------------------------------------------------------
+
+
+class _UsageError(GibbsminError, ValueError):
+    """A command line that cannot be run as given."""
+
+
+@dataclass(frozen=True)
+class Command:
+    """A subcommand: what it does, a worked example, how it takes its arguments and how it runs."""
+
+    summary: str
+    example: str
+    add_arguments: Callable[[argparse.ArgumentParser], None]
+    run: Callable[[argparse.Namespace], int]
+
+
+def _settle_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("case", nargs="?", help="the case file (TOML)")
+    p.add_argument("--keys", action="store_true", help="list every key a case file may hold, and exit")
+    _add_outputs(p)
+
+
+def _species_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("text", nargs="?", help="part of a name, formula or alias (any case)")
+    p.add_argument("--element", metavar="X", help="only species holding element X (e.g. C, S, N)")
+    p.add_argument("--json", action="store_true", help="print the list as JSON")
+
+
+def _audit_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("table", nargs="?", help="the stream table (CSV or XLSX)")
+    p.add_argument("units", nargs="?", help="the unit description (TOML)")
+    p.add_argument("--keys", action="store_true",
+                   help="list the keys of a unit description and the row labels of a stream table")
+    p.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
+                   help="exit with code 1 when a check fails (or warns); default: never")
+    _add_outputs(p)
+
+
+#: The subcommands by name; another module may add one (``COMMANDS["sweep"] = Command(...)``).
+COMMANDS: dict[str, Command] = {
+    "settle": Command("settle a case file: the equilibrium outlet of each stage", SETTLE_EXAMPLE,
+                      _settle_arguments, _settle),
+    "audit": Command("audit a heat-and-mass balance: a stream table against its units", AUDIT_EXAMPLE,
+                     _audit_arguments, _audit),
+    "species": Command("list and search the species database", SPECIES_EXAMPLE, _species_arguments, _species),
+}
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="gibbsmin", description="Chemical equilibrium by Gibbs energy minimisation, for reformer, "
+                     "shift, methanation, ammonia and methanol engineers.",
+                     epilog="`gibbsmin COMMAND --help` shows a worked example of each command.")
+    parser.add_argument("--version", action="version", version=f"gibbsmin {__version__}")
+    parser.add_argument("--traceback", action="store_true", help="show the Python traceback of an error")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name, cmd in COMMANDS.items():
+        p = sub.add_parser(name, help=cmd.summary, description=cmd.summary[0].upper() + cmd.summary[1:] + ".",
+                           epilog=cmd.example, formatter_class=argparse.RawDescriptionHelpFormatter)
+        cmd.add_arguments(p)
+        p.set_defaults(run=cmd.run)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit code (the console script passes it to the shell)."""
+    parser = build_parser()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exit_:
+        return int(exit_.code or 0)
+    if args.command is None:
+        parser.print_help(sys.stderr)
+        return BAD_INPUT
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            code = args.run(args)
+        for w in caught:
+            sys.stderr.write(f"gibbsmin: warning: {_one_line(w.message)}\n")
+        return code
+    except KeyboardInterrupt:
+        sys.stderr.write("gibbsmin: interrupted; no partial output files were left behind\n")
+        return INTERRUPTED
+    except ConvergenceError as exc:
+        if args.traceback:
+            raise
+        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        return NOT_CERTIFIED
+    except (GibbsminError, UnknownSpeciesError) as exc:
+        if args.traceback:
+            raise
+        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        return BAD_INPUT
+    except OSError as exc:
+        if args.traceback:
+            raise
+        where = f" {exc.filename}" if exc.filename else ""
+        sys.stderr.write(f"gibbsmin: error: cannot use{where}: {exc.strerror or exc}\n")
+        return BAD_INPUT
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,36 @@
+"""How numbers are written in reports: readable for engineers, exact enough for trace species."""
+
+from __future__ import annotations
+
+import math
+
+
+def format_cell(value: object, style: str) -> str:
+    """The text of one table cell in a column of ``style`` (see :class:`~gibbsmin.report.document.Column`)."""
+    if value is None:
+        return ""
+    if isinstance(value, str) or style in ("text", "verdict"):
+        return str(value)
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    x = float(value)
+    if not math.isfinite(x):
+        return "-" if math.isnan(x) else ("inf" if x > 0 else "-inf")
+    if style == "percent":
+        return _fixed_or_exp(x, 4, 1e-3)
+    if style == "flow":
+        return _fixed_or_exp(x, 2, 1e-2) if abs(x) < 1e7 else f"{x:.6g}"
+    if style == "fixed2":
+        return f"{x:.2f}"
+    if style == "fixed1":
+        return f"{x:.1f}"
+    if style == "exp":
+        return f"{x:.3e}"
+    return f"{x:.6g}"
+
+
+def _fixed_or_exp(x: float, decimals: int, smallest_fixed: float) -> str:
+    """Fixed decimals where they carry digits, three significant digits in e-notation below."""
+    if x == 0.0 or abs(x) >= smallest_fixed:
+        return f"{x:.{decimals}f}"
+    return f"{x:.3g}"
