@@ -1,0 +1,247 @@
+"""Restricted equilibrium: reactions held at a temperature approach, species held at fixed amounts.
+
+Both are solved by the same minimiser as an ordinary equilibrium.
+
+A reaction r held at K_r(T_r) instead of K_r(T) is a change of the standard
+potentials: offsets delta are added to g0/RT such that
+
+    nu_r . delta = ln K_r(T) - ln K_r(T_r)   for each held reaction,
+    nu_s . delta = 0                         for every other reaction s of a complete independent set,
+
+(the least-norm delta, which has no part along the rows of the element
+matrix; those would change nothing).  The minimum of G with these potentials
+is the state in which each held reaction has Q_r = K_r(T_r) while every other
+reaction of the set keeps Q_s = K_s(T).  With the sign convention of
+:mod:`gibbsmin.reactions` (positive approach = short of equilibrium), a held
+reaction settles at T_r = T - approach when endothermic and T + approach when
+exothermic, so the approach temperatures of the answer are the ones asked for.
+
+Which reactions stay at equilibrium is part of the question: holding reforming
+back while the water-gas shift stays at K(T) is not the same as holding it back
+while dry reforming stays at K(T).  The set is that of
+:func:`gibbsmin.reactions.independent_reactions` (the held reactions first,
+then any the caller lists, then the trade's named reactions), and the answer
+lists it in ``extras["reactions at equilibrium"]``.
+
+A frozen species keeps a fixed amount: its feed amount, or one the caller
+chooses.  It gets a private pseudo-element, like an inert species (it still
+dilutes the gas), and when its amount differs from the feed the difference in
+atoms is given to, or taken from, the other species.
+
+The element potentials and G/RT of a restricted answer belong to the shifted
+potentials; use quotients (:mod:`gibbsmin.reactions`, :mod:`gibbsmin.carbon`),
+not element potentials, to judge it.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import numbers
+from collections.abc import Mapping, Sequence
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .equilibrium import Equilibrium
+from .errors import InputError
+from .reactions import Reaction, independent_reactions, reaction
+from .settle import Setup, check_feed, check_method, checked, prepare, solve_fixed
+from .streams import Stream
+from .system import System
+from .thermo.database import SpeciesDatabase, default_database
+from .units import to_kelvin, to_pascal
+
+__all__ = ["equilibrate_with_approach", "reaction_offsets", "settling_temperature"]
+
+
+def settling_temperature(rx: Reaction, T: float, approach_K: float) -> float:
+    """The temperature [K] whose K a reaction with approach ``approach_K`` [K] at ``T`` [K] settles at.
+
+    T - approach for an endothermic reaction, T + approach for an exothermic one.
+    """
+    return T - math.copysign(1.0, rx.enthalpy(T)) * approach_K
+
+
+def reaction_offsets(system: System, reactions: Sequence[Reaction], ln_K_shift: Sequence[float]) -> NDArray[np.float64]:
+    """Least-norm offsets to g0/RT [-] that move ln K of each reaction by minus its shift.
+
+    Parameters
+    ----------
+    system : System
+    reactions : list of Reaction
+        A set of independent reactions among the system's species; reactions
+        left out of it are unconstrained, so pass a complete set.
+    ln_K_shift : list of float
+        ln K_r(T) - ln K_r(T_r) for each reaction (zero for a reaction held at equilibrium), [-].
+
+    Returns
+    -------
+    ndarray, shape (S,)
+        Offsets in the system's species order, for ``settle.solve_fixed(..., offsets=...)``.
+    """
+    if not reactions:
+        return np.zeros(len(system.names))
+    N = np.array([r.vector(system.names) for r in reactions])
+    offsets, *_ = np.linalg.lstsq(N, np.asarray(ln_K_shift, dtype=float), rcond=None)
+    return offsets
+
+
+def _finite(value: object, what: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, numbers.Real) or not math.isfinite(value):
+        raise InputError(f"{what} must be a finite number, got {value!r}")
+    return float(value)
+
+
+def _frozen_amounts(frozen, feed: Mapping[str, float], db: SpeciesDatabase) -> dict[str, float]:
+    """Frozen species to their fixed amount [mol]."""
+    if frozen is None:
+        return {}
+    if isinstance(frozen, str):
+        raise InputError("frozen takes a list of names (held at their feed amount) or a mapping of name to amount in mol")
+    chosen = frozen if isinstance(frozen, Mapping) else dict.fromkeys(frozen)
+    amounts: dict[str, float] = {}
+    for name, amount in chosen.items():
+        record = db[str(name)]
+        if not record.is_gas:
+            raise InputError(f"frozen species must be gases; {record.name} is not (leave it out with exclude=[...] instead)")
+        if amount is None:
+            if record.name not in feed:
+                raise InputError(f"{record.name} is not in the feed, so it has no feed amount to keep; "
+                                 f"give its amount, e.g. frozen={{'{record.name}': 0.001}}")
+            amount = feed[record.name]
+        amount = _finite(amount, f"frozen amount of {record.name}")
+        if amount < 0:
+            raise InputError(f"frozen amount of {record.name} is negative ({amount}); give zero or a positive amount in mol")
+        amounts[record.name] = amount
+    return amounts
+
+
+def _with_frozen_totals(setup: Setup, feed: Mapping[str, float], frozen: Mapping[str, float]) -> Setup:
+    """The setup's element totals with each frozen species' atoms beyond its fixed amount given back to the rest."""
+    system = setup.system
+    b = setup.b.copy()
+    for name, amount in frozen.items():
+        released = feed.get(name, 0.0) - amount
+        record = system.records[system.index(name)]
+        for k, element in enumerate(system.elements):
+            b[k] += released * record.elements.get(element, 0.0)
+    scale = max(float(np.abs(b).max()), 1e-300)
+    short = [system.elements[k] for k in np.flatnonzero(b < -1e-12 * scale)]
+    if short:
+        raise InputError(
+            f"the frozen amounts need more {', '.join(short)} than the feed holds; lower them or add to the feed"
+        )
+    return dataclasses.replace(setup, b=np.maximum(b, 0.0))
+
+
+def _check_held(rx: Reaction, setup: Setup, frozen: Mapping[str, float]) -> None:
+    system = setup.system
+    missing = [s for s in rx.species if s not in system.names]
+    if missing:
+        raise InputError(
+            f"the approach on {rx.name!r} involves {', '.join(missing)}, which the species set lacks (excluded, or "
+            f"not made of the feed's elements); put {'them' if len(missing) > 1 else 'it'} in species=[...] or drop that approach"
+        )
+    fixed = [s for s in rx.species if s in frozen]
+    if fixed:
+        raise InputError(f"the approach on {rx.name!r} involves {', '.join(fixed)}, which is frozen and cannot react")
+    b = dict(zip(system.elements, setup.b))
+    absent = sorted({el for r in rx.records for el in r.elements if b.get(el, 0.0) <= 0.0})
+    if absent:
+        raise InputError(f"the approach on {rx.name!r} needs {', '.join(absent)}, which the feed does not contain")
+
+
+def equilibrate_with_approach(
+    feed: Mapping[str, float] | Stream,
+    T: float | str,
+    P: float | str,
+    approach: Mapping[str | Reaction, float] | None = None,
+    *,
+    frozen: Sequence[str] | Mapping[str, float] | None = None,
+    species: Sequence[str] | None = None,
+    exclude: Sequence[str] = (),
+    reactions: Sequence[str | Reaction] = (),
+    method: str = "auto",
+    ln_phi: Mapping[str, float] | None = None,
+    db: SpeciesDatabase | None = None,
+    allow_extrapolation: bool = False,
+) -> Equilibrium:
+    """Equilibrium at fixed T and P with reactions held at a temperature approach and species frozen.
+
+    Parameters
+    ----------
+    feed : mapping or Stream
+        Species to amount [mol] (or a Stream, whose mol/s serve as mol).
+    T : float or str
+        Temperature, [K] (or text such as ``"850 degC"``).
+    P : float or str
+        Pressure, [Pa] (or text such as ``"30 bar(g)"``).
+    approach : mapping, optional
+        Reaction (name, equation or Reaction) to its approach, [K]: positive =
+        short of equilibrium, e.g. ``{"steam methane reforming": 10.0}``.
+    frozen : list or mapping, optional
+        Gas species held at their feed amount (a list), or at a chosen amount
+        [mol] (a mapping); they do not react but dilute the gas.
+    species, exclude
+        The species set, as for :func:`gibbsmin.equilibrate`.
+    reactions : list, optional
+        Reactions that must stay at equilibrium, placed in the independent set
+        before the default choice (see the module docstring).
+    method : {"auto", "newton", "convex"}
+    ln_phi : mapping, optional
+        Gas species to ln of its fugacity coefficient, held fixed for the solve.
+    db : SpeciesDatabase, optional
+    allow_extrapolation : bool
+
+    Returns
+    -------
+    Equilibrium
+        With ``extras``: "approach K", "settling temperature K", "reactions at
+        equilibrium" (equations) and "frozen mol".
+
+    Examples
+    --------
+    >>> eq = equilibrate_with_approach({"CH4": 1.0, "H2O": 3.0}, "850 degC", "30 bar",
+    ...                                approach={"steam methane reforming": 10.0})
+    >>> round(eq.extras["settling temperature K"]["steam methane reforming"], 2)
+    1113.15
+    """
+    db = db or default_database()
+    T, P = to_kelvin(T), to_pascal(P)
+    check_method(method)
+    feed = feed.feed_mol() if isinstance(feed, Stream) else feed
+    if approach is None:
+        approach = {}
+    if not isinstance(approach, Mapping):
+        raise InputError("approach takes a mapping of reaction to approach in K, e.g. {'steam methane reforming': 10.0}")
+    held = [(reaction(spec, db=db), _finite(value, f"approach of {spec}")) for spec, value in approach.items()]
+    settle = [settling_temperature(rx, T, dT) for rx, dT in held]
+    canonical_feed = check_feed(feed, db)
+    frozen_mol = _frozen_amounts(frozen, canonical_feed, db)
+    setup = prepare({**canonical_feed, **frozen_mol}, species=species, exclude=exclude, inert=list(frozen_mol),
+                    T_span=(T, T), db=db, allow_extrapolation=allow_extrapolation)
+    setup = _with_frozen_totals(setup, canonical_feed, frozen_mol)
+    for rx, _ in held:
+        _check_held(rx, setup, frozen_mol)
+    complete = independent_reactions(setup.system, include=[rx for rx, _ in held] + list(reactions), db=db)
+    shift = {rx.name: rx.ln_K(T, allow_extrapolation=allow_extrapolation)
+             - rx.ln_K(T_r, allow_extrapolation=allow_extrapolation) for (rx, _), T_r in zip(held, settle)}
+    offsets = reaction_offsets(setup.system, complete, [shift.get(r.name, 0.0) for r in complete])
+    ln_phi_gas = None
+    if ln_phi is not None:
+        by_name = {db[str(s)].name: _finite(v, f"ln_phi of {s}") for s, v in ln_phi.items()}
+        ln_phi_gas = np.array([by_name.get(s, 0.0) for s in setup.system.gas_names])
+    parts = [f"{rx.name} at {dT:g} K approach" for rx, dT in held] + [f"{s} frozen" for s in frozen_mol]
+    eq, _, _ = solve_fixed(setup, T, P, method=method, offsets=offsets, ln_phi=ln_phi_gas,
+                           allow_extrapolation=allow_extrapolation,
+                           specification="; ".join(["T and P"] + parts))
+    eq = checked(eq)
+    extras = {
+        **eq.extras,
+        "approach K": {rx.name: dT for rx, dT in held},
+        "settling temperature K": {rx.name: T_r for (rx, _), T_r in zip(held, settle)},
+        "reactions at equilibrium": [r.equation for r in complete if r.name not in shift],
+        "frozen mol": dict(frozen_mol),
+    }
+    return dataclasses.replace(eq, extras=extras)
