@@ -9,6 +9,12 @@ from pathlib import Path
 from ..errors import InputError
 
 
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def write_atomic(path: str | os.PathLike[str], data: bytes | str) -> Path:
     """Write ``data`` to ``path`` through a temporary file in the same folder and a rename.
 
@@ -26,6 +32,7 @@ def write_atomic(path: str | os.PathLike[str], data: bytes | str) -> Path:
             stream.write(payload)
             stream.flush()
             os.fsync(stream.fileno())
+        os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes the file private; give it the usual mode
         os.replace(temporary, path)
     except BaseException:
         try:

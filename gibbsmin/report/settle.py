@@ -5,34 +5,37 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 
+import numpy as np
+
 from .. import __version__
 from ..case import CaseResult, ReportSpec, StageResult
+from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
 from ..thermo import default_database
 from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
 from .caution import CAUTION
-from .document import Column, Report, Table
+from .document import Column, Plot, Report, Series, Table
 
 
-def _temperature(T: float, spec: ReportSpec) -> str:
-    return f"{from_kelvin(T, spec.temperature_unit):.2f} {spec.temperature_unit}"
-
-
-def _is_gauge(unit: str) -> bool:
+def is_gauge(unit: str) -> bool:
+    """Whether a pressure unit is a gauge unit (it reads zero at one standard atmosphere)."""
     return from_pascal(101325.0, unit) == 0.0
 
 
-def _pressure(P: float, spec: ReportSpec) -> str:
-    absolute = "" if _is_gauge(spec.pressure_unit) else " (abs)"
-    return f"{from_pascal(P, spec.pressure_unit):.6g} {spec.pressure_unit}{absolute}"
+def temperature_text(T: float, unit: str) -> str:
+    return f"{from_kelvin(T, unit):.2f} {unit}"
 
 
-def _flow(species: str, mol_s: float, unit: str) -> float:
-    molar_mass = default_database()[species].molar_mass
-    return from_mol_s(mol_s, unit, molar_mass=molar_mass)
+def pressure_text(P: float, unit: str) -> str:
+    return f"{from_pascal(P, unit):.6g} {unit}{'' if is_gauge(unit) else ' (abs)'}"
 
 
-def _cutoff_text(cutoff: float) -> str:
+def flow_in(species: str, mol_s: float, unit: str) -> float:
+    """A species flow [mol/s] in ``unit`` (molar, normal-volume or mass)."""
+    return from_mol_s(mol_s, unit, molar_mass=default_database()[species].molar_mass)
+
+
+def cutoff_text(cutoff: float) -> str:
     if cutoff >= 1e-4:
         return f"{from_fraction(cutoff, 'mol%'):g} mol%"
     if cutoff >= 1e-7:
@@ -40,60 +43,78 @@ def _cutoff_text(cutoff: float) -> str:
     return f"{from_fraction(cutoff, 'ppbv'):g} ppbv"
 
 
+def _absolute(unit: str) -> str:
+    """An absolute pressure unit for partial pressures and Kp: the report's own, or bar where it is gauge."""
+    return "bar" if is_gauge(unit) else unit
+
+
 def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     """The outlet of one stage: species, phase, flow, mol% wet and dry (and partial pressures if asked)."""
     eq = result.equilibrium
     wet, dry = eq.mole_fractions, eq.dry_mole_fractions
+    partial_unit = _absolute(spec.pressure_unit)
     columns = [Column("species", "text"), Column("phase", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
                Column("mol% wet", "percent"), Column("mol% dry", "percent")]
-    partial_unit = "bar" if _is_gauge(spec.pressure_unit) else spec.pressure_unit
     if spec.partial_pressures:
         columns.append(Column(f"partial pressure [{partial_unit}]", "number"))
+    extra = [None] if spec.partial_pressures else []
     shown = [s for s in sorted(wet, key=lambda s: -wet[s]) if _shown(s, wet[s], spec)]
-    rows = []
+    rows: list[tuple[object, ...]] = []
     for s in shown:
-        row: list[object] = [s, "gas", _flow(s, eq.amounts[s], spec.flow_unit), 100 * wet[s],
-                             100 * dry[s] if s in dry else None]
-        if spec.partial_pressures:
-            row.append(from_pascal(wet[s] * eq.P, partial_unit))
-        rows.append(tuple(row))
+        pressure = [from_pascal(wet[s] * eq.P, partial_unit)] if spec.partial_pressures else []
+        rows.append((s, "gas", flow_in(s, eq.amounts[s], spec.flow_unit), 100 * wet[s],
+                     100 * dry[s] if s in dry else None, *pressure))
     for s, n in eq.condensed.items():
-        row = [s, "condensed", _flow(s, n, spec.flow_unit), None, None]
-        if spec.partial_pressures:
-            row.append(None)
-        rows.append(tuple(row))
-    total = sum(_flow(s, n, spec.flow_unit) for s, n in eq.amounts.items()
-                if eq.phase_of[s] == "gas") if spec.flow_unit else None
-    total_row: list[object] = ["total gas", "gas", total, 100.0, 100.0 if dry else None]
-    if spec.partial_pressures:
-        total_row.append(None)
-    rows.append(tuple(total_row))
+        rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), None, None, *extra))
+    gas_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items() if eq.phase_of[s] == "gas")
+    rows.append(("total gas", "gas", gas_flow, 100.0, 100.0 if dry else None, *extra))
     notes = []
     hidden = len(wet) - len(shown)
     if hidden:
-        notes.append(f"({hidden} gas species below {_cutoff_text(spec.cutoff)} not shown"
-                     + (" or not listed in [report] show" if spec.show else "") + ")")
-    title = (f"{result.stage.name}: {_temperature(eq.T, spec)}, {_pressure(eq.P, spec)}; "
-             f"phases: {', '.join(eq.phases_present)}")
+        why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)}"
+        notes.append(f"({hidden} gas species {why} not shown)")
+    title = (f"{result.stage.name}: {temperature_text(eq.T, spec.temperature_unit)}, "
+             f"{pressure_text(eq.P, spec.pressure_unit)}; phases: {', '.join(eq.phases_present)}")
     return Table(title, tuple(columns), tuple(rows), tuple(notes), key=result.stage.name)
 
 
 def _shown(species: str, y: float, spec: ReportSpec) -> bool:
-    if spec.show is not None:
-        return species in spec.show
-    return y >= spec.cutoff
+    return species in spec.show if spec.show is not None else y >= spec.cutoff
 
 
 def feed_table(result: CaseResult) -> Table:
     spec = result.case.report
-    rows = []
     feed = result.case.mixed_feed()
     total = sum(feed.values())
-    for s, n in feed.items():
-        rows.append((s, _flow(s, n, spec.flow_unit), 100 * n / total))
-    rows.append(("total", sum(_flow(s, n, spec.flow_unit) for s, n in feed.items()), 100.0))
+    rows = [(s, flow_in(s, n, spec.flow_unit), 100 * n / total) for s, n in feed.items()]
+    rows.append(("total", sum(flow_in(s, n, spec.flow_unit) for s, n in feed.items()), 100.0))
     return Table("Feed (all feeds mixed)", (Column("species", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
                                             Column("mol% wet", "percent")), tuple(rows), key="feed")
+
+
+def stages_table(result: CaseResult) -> Table:
+    """One row per stage: inlet and outlet temperature, pressure, what was fixed, duty, certificate."""
+    spec = result.case.report
+    rows = []
+    for stage in result.stages:
+        eq = stage.equilibrium
+        T_in = set(stage.inlet.temperatures.values())
+        inlet_T = from_kelvin(T_in.pop(), spec.temperature_unit) if len(T_in) == 1 and None not in T_in else None
+        duty = stage.duty_W
+        rows.append((stage.stage.name, inlet_T, from_kelvin(eq.T, spec.temperature_unit),
+                     from_pascal(eq.P, spec.pressure_unit), eq.specification,
+                     None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
+    notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
+             "to the outlet; ideal-gas enthalpies on the formation basis"]
+    if not FEATURES["energy"].available():
+        notes = ["duty: not computed (the energy balance is not available in this version)"]
+    elif not result.case.feed_temperatures_known:
+        notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
+    unit = spec.temperature_unit
+    return Table("Stages", (Column("stage", "text"), Column(f"T in [{unit}]", "fixed2"),
+                            Column(f"T out [{unit}]", "fixed2"), Column(f"P [{spec.pressure_unit}]", "number"),
+                            Column("fixed", "text"), Column("duty [MW]", "number"), Column("certified", "verdict")),
+                 tuple(rows), tuple(notes), key="stages")
 
 
 def certificate_table(result: CaseResult) -> Table:
@@ -101,54 +122,168 @@ def certificate_table(result: CaseResult) -> Table:
     for stage in result.stages:
         c = stage.equilibrium.certificate
         rows.append((stage.stage.name, "pass" if c.certified else "fail", c.solver, c.iterations,
-                     c.element_balance, c.stationarity,
-                     None if math.isinf(c.complementarity) else c.complementarity))
+                     c.element_balance, c.stationarity, None if math.isinf(c.complementarity) else c.complementarity))
     return Table("Certificate of each answer (optimality conditions recomputed from the answer)",
                  (Column("stage", "text"), Column("certified", "verdict"), Column("solver", "text"),
                   Column("iterations", "number"), Column("element balance", "exp"), Column("stationarity", "exp"),
                   Column("condensed-phase margin", "exp")), tuple(rows),
-                 ("element balance: max |A n - b| / max b; stationarity: max |mu/RT - a.lambda|; "
-                  "margin: smallest (g0/RT - a.lambda) of an absent condensed species, >= 0 when right",),
+                 ("element balance: max |A n - b| / max b; stationarity: max |mu/RT - a.lambda|; margin: "
+                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",),
                  key="certificate")
 
 
+def approach_table(result: CaseResult) -> Table | None:
+    """Approach temperatures at each outlet: the reactions the report asks for and those a stage held."""
+    from ..reactions import approach_temperatures
+
+    spec = result.case.report
+    rows = []
+    for stage in result.stages:
+        wanted = list(dict.fromkeys([*stage.stage.approach, *spec.approach]))
+        if not wanted:
+            continue
+        eq = stage.equilibrium
+        for name, a in approach_temperatures(eq, reactions=wanted).items():
+            T_eq = None if math.isnan(a.T_eq) else from_kelvin(a.T_eq, spec.temperature_unit)
+            rows.append((stage.stage.name, name, a.reaction.equation, T_eq, a.approach_K, a.note or None))
+    if not rows:
+        return None
+    unit = spec.temperature_unit
+    return Table("Approach to equilibrium at each outlet",
+                 (Column("stage", "text"), Column("reaction", "text"), Column("equation", "text"),
+                  Column(f"T equilibrium [{unit}]", "fixed2"), Column("approach [K]", "fixed2"),
+                  Column("note", "text")), tuple(rows),
+                 ("approach: positive = short of equilibrium in the direction written (T - T_eq for an endothermic "
+                  "reaction, T_eq - T for an exothermic one)",), key="approach")
+
+
+def kp_table(result: CaseResult) -> Table | None:
+    """Kp of each reaction asked for at each outlet temperature, with its units, and the outlet's quotient."""
+    from ..reactions import quotients, reaction
+
+    spec = result.case.report
+    if not spec.kp:
+        return None
+    unit = _absolute(spec.pressure_unit)
+    per_bar = from_pascal(1e5, unit)  # one bar in the report's unit
+    rows = []
+    for stage in result.stages:
+        eq = stage.equilibrium
+        for text in spec.kp:
+            rx = reaction(text)
+            dn = rx.delta_n_gas
+            Q_bar = quotients(eq, reactions=[rx])[rx.name]
+            kp_unit = "-" if abs(dn) < 1e-12 else f"{unit}^{dn:g}"
+            rows.append((stage.stage.name, rx.equation, float(rx.K(eq.T, unit)), Q_bar * per_bar**dn, kp_unit,
+                         float(rx.enthalpy(eq.T)) / 1e3))
+    return Table("Equilibrium constants Kp (partial pressures) and the outlet's quotient",
+                 (Column("stage", "text"), Column("reaction", "text"), Column("Kp", "number"),
+                  Column("Qp of outlet", "number"), Column("unit", "text"), Column("dH_r [kJ/mol]", "number")),
+                 tuple(rows), (f"Kp = product of (partial pressure in {unit})^nu, standard state ideal gas at "
+                               "1 bar; at equilibrium the quotient Qp equals Kp",), key="kp")
+
+
+def carbon_table(result: CaseResult) -> Table | None:
+    from ..carbon import CARBON_REACTIONS, carbon_activity
+
+    if not result.case.report.carbon:
+        return None
+    rows = []
+    for stage in result.stages:
+        eq = stage.equilibrium
+        activity = carbon_activity(eq)
+        verdict = "fail" if activity.possible else "pass"
+        rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), verdict,
+                     activity.verdict))
+    return Table("Carbon activity against graphite at each outlet",
+                 (Column("stage", "text"), *(Column(f"a_C by {r}", "number") for r in CARBON_REACTIONS),
+                  Column("carbon-free", "verdict"), Column("verdict", "text")), tuple(rows),
+                 ("a_C > 1: graphite is thermodynamically possible (whether it forms depends on kinetics "
+                  "and catalyst)",), key="carbon")
+
+
+def curve_plot(result: CaseResult) -> Plot | None:
+    curve = result.curve
+    if curve is None:
+        return None
+    spec = result.case.report
+    scale = 1.0 if curve.spec.conversion else 100.0
+    what = f"conversion of {curve.spec.species} [-]" if curve.spec.conversion else f"{curve.spec.species} [mol%]"
+    x = tuple(from_kelvin(T, spec.temperature_unit) for T in curve.T)
+    series = [Series(f"equilibrium at {pressure_text(curve.P, spec.pressure_unit)}", x,
+                     tuple(scale * v for v in curve.value))]
+    for label, T_line, v_line in curve.lines:
+        finite = [(from_kelvin(T, spec.temperature_unit), scale * v) for T, v in zip(T_line, v_line)
+                  if math.isfinite(T)]
+        if finite:
+            style = "dashed" if label.startswith("cooling") else ("line+points" if len(finite) > 1 else "points")
+            series.append(Series(label, tuple(p[0] for p in finite), tuple(p[1] for p in finite), style))
+    return Plot(f"Equilibrium curve and operating lines: {result.case.title}", "line",
+                f"temperature [{spec.temperature_unit}]", what, tuple(series))
+
+
+def composition_plot(result: CaseResult) -> Plot:
+    """A bar chart of the final outlet's dry composition (species above the cutoff)."""
+    eq = result.outlet
+    dry = eq.dry_mole_fractions
+    shown = [s for s in sorted(dry, key=lambda s: -dry[s]) if dry[s] >= max(result.case.report.cutoff, 1e-4)]
+    return Plot(f"{result.stages[-1].stage.name}: dry composition", "bar", "", "mol% dry",
+                categories=tuple(shown), values=tuple(100 * dry[s] for s in shown))
+
+
 def settle_report(result: CaseResult) -> Report:
-    """The report of a settled case: feed, each stage's outlet, certificates, omitted species, caution."""
+    """The report of a settled case: feed, stages, each outlet, approaches, Kp, carbon, certificates, caution."""
     case, spec = result.case, result.case.report
     first = result.stages[0].equilibrium
-    facts = [("case file", case.source), ("specification", first.specification),
-             ("gas model", first.gas_model), ("amounts", "flows; the feed's flows taken as amounts per second")]
-    normal = case.feeds[0].stream.normal
-    if "Nm3" in spec.flow_unit:
-        facts.append(("normal conditions", normal.describe()))
+    facts = [("case file", case.source), ("gas model", first.gas_model),
+             ("amounts", "flows; the feed's flows are taken as amounts per second")]
+    facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
     for feed in case.feeds:
         stream = feed.stream
-        text = (f"{stream.total_flow(spec.flow_unit):.6g} {spec.flow_unit} at {_temperature(stream.T, spec)}, "
-                f"{_pressure(stream.P, spec)}")
+        text = f"{stream.total_flow(spec.flow_unit):.6g} {spec.flow_unit}"
+        if feed.T_given:
+            text += f" at {temperature_text(stream.T, spec.temperature_unit)}"
+        text += f", {pressure_text(stream.P, spec.pressure_unit)}"
         try:
             text += f", S/C {stream.steam_to_carbon():.3f} ({stream.carbon_basis} basis)"
         except ValueError:
-            pass
+            pass  # no hydrocarbon carbon: S/C says nothing
         facts.append((f"feed {feed.name}", text))
-    tables = [feed_table(result), *(stage_table(s, spec) for s in result.stages), certificate_table(result)]
+    tables = [feed_table(result), stages_table(result), *(stage_table(s, spec) for s in result.stages)]
+    optional = [
+        approach_table(result) if FEATURES["reactions"].available() else None,
+        kp_table(result) if FEATURES["reactions"].available() else None,
+        carbon_table(result) if FEATURES["carbon"].available() else None,
+    ]
+    tables += [t for t in optional if t is not None]
+    tables.append(certificate_table(result))
+    plots = [p for p in (curve_plot(result), composition_plot(result)) if p is not None]
     notes = []
     by_reason: dict[str, list[str]] = {}
     for species, why in result.outlet.omitted.items():
         by_reason.setdefault(why, []).append(species)
     for why, names in by_reason.items():
         notes.append(f"Left out of the species set ({why}): {', '.join(names)}.")
-    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), (), tuple(notes))
+    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), tuple(plots), tuple(notes))
 
 
-def _finite(value: object) -> object:
-    """JSON has no NaN or infinity: write null for them."""
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
+# --- JSON -------------------------------------------------------------------------------------------
+
+
+def json_ready(value: object) -> object:
+    """Plain JSON values: no NaN or infinity (null instead), numpy numbers as floats, other objects as text."""
+    if isinstance(value, bool) or value is None or isinstance(value, (str, int)):
+        return value
+    if isinstance(value, (float, np.floating)):
+        value = float(value)
+        return value if math.isfinite(value) else None
+    if isinstance(value, np.ndarray):
+        return json_ready(value.tolist())
     if isinstance(value, Mapping):
-        return {k: _finite(v) for k, v in value.items()}
+        return {str(k): json_ready(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
-        return [_finite(v) for v in value]
-    return value
+        return [json_ready(v) for v in value]
+    return str(value)
 
 
 def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
@@ -156,7 +291,8 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
     return {
         "name": stage.stage.name,
         **eq.to_dict(),
-        "flows": {s: _flow(s, n, flow_unit) for s, n in eq.amounts.items()},
+        "inlet_temperatures_K": dict(stage.inlet.temperatures),
+        "flows": {s: flow_in(s, n, flow_unit) for s, n in eq.amounts.items()},
         "dry_mole_fractions": eq.dry_mole_fractions,
     }
 
@@ -167,11 +303,12 @@ def settle_document(result: CaseResult) -> dict[str, object]:
     The top level holds the final outlet (``T_K``, ``P_Pa``, ``species`` with
     ``amount_mol`` and ``mole_fraction_in_phase``, ``certificate`` ...); every
     stage is under ``stages``.  Amounts are the feed's flows taken per second,
-    so ``amount_mol`` reads as mol/s; ``flows`` are in ``flow_unit``.
+    so ``amount_mol`` reads as mol/s and ``duty_W`` is in W; ``flows`` are in
+    ``flow_unit``.
     """
     spec = result.case.report
     stages = [_stage_document(s, spec.flow_unit) for s in result.stages]
-    return _finite({
+    document: dict[str, object] = {
         "gibbsmin_version": __version__,
         "case": {"title": result.case.title, "source": result.case.source},
         "amount_basis": "mol/s",
@@ -179,5 +316,11 @@ def settle_document(result: CaseResult) -> dict[str, object]:
         "feed_mol_s": result.case.mixed_feed(),
         **stages[-1],
         "stages": stages,
-        "caution": CAUTION,
-    })
+    }
+    if result.curve is not None:
+        document["curve"] = {"T_K": result.curve.T, "value": result.curve.value, "P_Pa": result.curve.P,
+                             "quantity": ("conversion of " if result.curve.spec.conversion else "mole fraction of ")
+                             + result.curve.spec.species,
+                             "lines": [{"name": n, "T_K": T, "value": v} for n, T, v in result.curve.lines]}
+    document["caution"] = CAUTION
+    return json_ready(document)

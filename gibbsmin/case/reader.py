@@ -1,0 +1,338 @@
+"""Reading a case file into a :class:`~gibbsmin.case.spec.Case`, key by key, with the line of every error."""
+
+from __future__ import annotations
+
+import difflib
+import numbers
+import os
+from collections.abc import Callable, Mapping
+from pathlib import Path
+
+from ..errors import InputError, UnknownSpeciesError
+from ..streams import CARBON_BASES, Stream
+from ..thermo import SpeciesDatabase, default_database
+from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal
+from .features import missing
+from .spec import CASE_KEYS, Case, CurveSpec, Feed, ReportSpec, SpeciesSpec, Stage
+from .toml import CaseError, NotAvailableError, Section, TomlSource, kind
+from .values import (
+    choice,
+    flow_unit,
+    read_bool,
+    read_fraction,
+    read_names,
+    read_normal_conditions,
+    read_positive_int,
+    read_positive_number,
+    read_power,
+    read_pressure,
+    read_temperature,
+    read_temperature_difference,
+    read_text,
+)
+
+_TABLES = ("case", "feed", "conditions", "stage", "species", "curve", "report")
+_FEED_SETTINGS = tuple(k for k in CASE_KEYS["feed"] if not k.startswith("<"))
+_STAGE_KEYS = tuple(CASE_KEYS["conditions"])
+_GAS_MODELS = ("ideal", "peng-robinson", "srk")
+
+
+def read_case(path: str | os.PathLike[str], db: SpeciesDatabase | None = None) -> Case:
+    """Read and check a case file; raises :class:`CaseError` naming the line of the first problem."""
+    return _read(TomlSource.from_file(path), db)
+
+
+def parse_case(text: str, name: str = "<case>", db: SpeciesDatabase | None = None) -> Case:
+    """As :func:`read_case`, from the text of a case file."""
+    return _read(TomlSource(text, name), db)
+
+
+def _read(source: TomlSource, db: SpeciesDatabase | None) -> Case:
+    db = db or default_database()
+    root = source.root()
+    head = root.section("case")
+    title, normal = Path(source.name).stem, NORMAL_DIN_1343
+    if head is not None:
+        title = head.get("title", read_text, title)
+        normal = head.get("normal_conditions", read_normal_conditions, normal)
+        head.finish(tuple(CASE_KEYS["case"]))
+    feeds = _read_feeds(root, normal, db)
+    species = _read_species(root.section("species"), db)
+    stages = _read_stages(root)
+    curve = _read_curve(root, db)
+    report = _read_report(root.section("report"), db)
+    root.finish(_TABLES)
+    case = Case(title, feeds, species, stages, report, curve, source.name)
+    _check_energy_inputs(root, case)
+    return case
+
+
+def _need(section: Section, key: str, feature: str) -> None:
+    problem = missing(feature)
+    if problem is not None:
+        raise section.error(key, problem, NotAvailableError)
+
+
+# --- feeds ------------------------------------------------------------------------------------------
+
+
+def _read_feeds(root: Section, normal: ReferenceConditions, db: SpeciesDatabase) -> tuple[Feed, ...]:
+    table = root.section("feed", required=True)
+    assert table is not None
+    named = [k for k in table.keys() if isinstance(table.data[k], dict)]
+    if named and len(named) != len(table.keys()):
+        loose = next(k for k in table.keys() if k not in named)
+        raise table.error(loose, f"[feed] holds named feeds ([feed.{named[0]}]); put {loose!r} inside one of them")
+    sections = [table.section(k) for k in named] if named else [table]
+    feeds = tuple(_read_feed(s, normal, db) for s in sections if s is not None)
+    if not feeds:
+        raise table.error(None, "is empty; give species flows, e.g. unit = \"kmol/h\" and CH4 = 1000.0")
+    return feeds
+
+
+def _components(section: Section, db: SpeciesDatabase) -> dict[str, object]:
+    """The keys of a feed table that are species, each checked against the database."""
+    components: dict[str, object] = {}
+    for key in section.keys():
+        if key in _FEED_SETTINGS:
+            continue
+        try:
+            db[key]
+        except UnknownSpeciesError as exc:
+            setting = difflib.get_close_matches(key, _FEED_SETTINGS, n=1, cutoff=0.7)
+            hint = f"did you mean the setting {setting[0]!r}?" if setting else exc.message.split("; ", 1)[1]
+            raise section.error(key, f"is neither a feed setting nor a known species; {hint}") from None
+        value = section.data[key]
+        if isinstance(value, bool) or not isinstance(value, (numbers.Real, str)):
+            raise section.error(key, f"must be a number or a text with a unit, not {kind(value)}")
+        section.mark_used(key)
+        components[key] = value
+    if not components:
+        raise section.error(None, "lists no species; add e.g. CH4 = 1000.0 with unit = \"kmol/h\"")
+    return components
+
+
+def _read_feed(section: Section, normal: ReferenceConditions, db: SpeciesDatabase) -> Feed:
+    unit = section.get("unit", read_text, None)
+    T_given = "T" in section
+    T = section.get("T", read_temperature, 298.15)
+    P = section.get("P", read_pressure, 101325.0)
+    basis = section.get("basis", choice("wet", "dry"), "wet")
+    carbon_basis = section.get("carbon_basis", choice(*CARBON_BASES), "hydrocarbon")
+    normalize = section.get("normalize", read_bool, False)
+    components = _components(section, db)
+    is_composition = basis == "dry" or (unit is not None and not _is_flow_unit(unit))
+    try:
+        if is_composition:
+            total = section.get("total", None, hint="a composition needs the stream's total flow, e.g. "
+                                "total = '25000 Nm3/h'")
+            water = section.get("water_content", None, None)
+            if water is not None and basis != "dry":
+                raise section.error("water_content", "only goes with basis = 'dry' (a wet analysis lists H2O itself)")
+            stream = Stream.from_composition(
+                components, total, T=T, P=P, unit=unit or "mol%", dry_basis=basis == "dry", water=water,
+                normalize=normalize, normal=normal, carbon_basis=carbon_basis, database=db)
+        else:
+            for key in ("total", "water_content", "normalize"):
+                if key in section:
+                    raise section.error(key, "only goes with a composition (unit = 'mol%' and a total flow)")
+            if unit is None and any(not isinstance(v, str) for v in components.values()):
+                raise section.error(None, "gives numbers without a unit; add unit = \"kmol/h\" (or kg/h, Nm3/h, "
+                                    "mol% with a total)")
+            stream = Stream.from_flows(components, unit, T=T, P=P, normal=normal, carbon_basis=carbon_basis,
+                                       database=db)
+    except CaseError:
+        raise
+    except (InputError, UnknownSpeciesError) as exc:
+        raise section.error(_key_of_stream_error(str(exc), components), str(exc)) from None
+    steam_rate = section.get("steam_rate", None, None)
+    ratio = section.get("steam_to_carbon", read_positive_number, None)
+    if steam_rate is not None and ratio is not None:
+        raise section.error("steam_rate", "give either steam_rate or steam_to_carbon, not both")
+    if steam_rate is not None:
+        stream = _wrapped(section, "steam_rate", stream.with_steam, steam_rate)
+    if ratio is not None:
+        stream = _wrapped(section, "steam_to_carbon", stream.with_steam_to_carbon, ratio)
+    section.finish(_FEED_SETTINGS)
+    name = next((p for p in reversed(section.path) if isinstance(p, str)), "feed")
+    return Feed(name, stream, T_given, section.source.line(section.path))
+
+
+def _wrapped(section: Section, key: str, call: Callable, *args):
+    try:
+        return call(*args)
+    except InputError as exc:
+        raise section.error(key, str(exc)) from None
+
+
+def _key_of_stream_error(message: str, components: Mapping[str, object]) -> str | None:
+    """The key a Stream error is about: the species it starts with, the total, or the table itself."""
+    head = message.split(":", 1)[0].strip()
+    if head in components:
+        return head
+    if head.startswith("total flow"):
+        return "total"
+    if head.startswith("H2O") or "water content" in message:
+        return "water_content"
+    return None
+
+
+def _is_flow_unit(unit: str) -> bool:
+    try:
+        from_mol_s(1.0, unit, molar_mass=1.0)
+    except InputError:
+        return False
+    return True
+
+
+# --- species set, stages, curve ---------------------------------------------------------------------
+
+
+def _read_species(section: Section | None, db: SpeciesDatabase) -> SpeciesSpec:
+    if section is None:
+        return SpeciesSpec()
+
+    def names(value: object) -> tuple[str, ...]:
+        return tuple(db[name].name for name in read_names(value))
+
+    spec = SpeciesSpec(
+        only=section.get("only", names, None),
+        exclude=section.get("exclude", names, ()),
+        frozen=section.get("frozen", names, ()),
+        allow_extrapolation=section.get("allow_extrapolation", read_bool, False),
+    )
+    section.finish(tuple(CASE_KEYS["species"]))
+    return spec
+
+
+def _read_stages(root: Section) -> tuple[Stage, ...]:
+    single = root.section("conditions")
+    many = root.sections("stage")
+    if single is not None and many:
+        raise root.error("stage", "give either one [conditions] table or a list of [[stage]] tables, not both")
+    if single is None and not many:
+        raise root.error(None, "needs a [conditions] table with T and P (or [[stage]] tables)")
+    sections = [single] if single is not None else many
+    return tuple(_read_stage(s, i, len(sections)) for i, s in enumerate(sections))
+
+
+def _read_stage(section: Section, index: int, count: int) -> Stage:
+    for key in ("adiabatic", "heat_loss", "heat_input", "T_in"):
+        if key in section:
+            _need(section, key, "energy")
+    if "approach" in section:
+        _need(section, "approach", "approach")
+    gas = section.get("gas", choice(*_GAS_MODELS), "ideal")
+    if gas != "ideal":
+        _need(section, "gas", "gas")
+    adiabatic = section.get("adiabatic", read_bool, False)
+    if adiabatic and "T" in section:
+        raise section.error("T", "an adiabatic stage finds its own outlet temperature; remove T or adiabatic")
+    T = None if adiabatic else section.get("T", read_temperature, hint="e.g. T = '850 degC' (or adiabatic = true)")
+    P = section.get("P", read_pressure, hint="e.g. P = '30 bar(g)'")
+    if "heat_loss" in section and "heat_input" in section:
+        raise section.error("heat_loss", "give heat_loss or heat_input, not both")
+    heat = section.get("heat_input", read_power, 0.0) - section.get("heat_loss", read_power, 0.0)
+    if not adiabatic:
+        for key in ("heat_input", "heat_loss"):
+            if key in section:
+                raise section.error(key, "only goes with adiabatic = true (at a fixed T the duty is a result)")
+    if "T_in" in section and index == 0:
+        raise section.error("T_in", "the first stage takes the feeds as they are; T_in sets a later stage's inlet")
+    T_in = section.get("T_in", read_temperature, None)
+    approach: dict[str, float] = {}
+    table = section.section("approach")
+    if table is not None:
+        if adiabatic or gas != "ideal":
+            raise section.error("approach", "approach temperatures in an adiabatic or non-ideal stage are not "
+                                "available yet; use a fixed T with the ideal gas", NotAvailableError)
+        for reaction in table.keys():
+            approach[reaction] = table.get(reaction, read_temperature_difference)
+            _check_reaction(table, reaction, reaction)
+    stage = Stage(
+        name=section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}"),
+        T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
+        approach=approach, gas=gas, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
+    )
+    section.finish(_STAGE_KEYS)
+    return stage
+
+
+def _check_reaction(section: Section, key: str, text: str) -> None:
+    """A reaction named or written in the case must be one the reactions module can read."""
+    from ..reactions import reaction
+
+    try:
+        reaction(text)
+    except (InputError, UnknownSpeciesError) as exc:
+        raise section.error(key, f"{text!r}: {exc}" if key != text else str(exc)) from None
+
+
+def _read_curve(root: Section, db: SpeciesDatabase) -> CurveSpec | None:
+    section = root.section("curve")
+    if section is None:
+        return None
+    _need(root, "curve", "energy")
+    if ("y" in section) == ("conversion" in section):
+        raise section.error(None, "needs either y = 'NH3' (mol% drawn) or conversion = 'SO2' (conversion drawn)")
+    key = "y" if "y" in section else "conversion"
+    species = section.get(key, lambda v: db[read_text(v)].name)
+    T_from = section.get("T_from", read_temperature, hint="e.g. T_from = '350 degC'")
+    T_to = section.get("T_to", read_temperature, hint="e.g. T_to = '650 degC'")
+    if not T_to > T_from:
+        raise section.error("T_to", "must be above T_from")
+    points = section.get("points", read_positive_int, 41)
+    if points < 3:
+        raise section.error("points", "must be at least 3")
+    section.finish(tuple(CASE_KEYS["curve"]))
+    return CurveSpec(species, key == "conversion", T_from, T_to, points)
+
+
+# --- report -----------------------------------------------------------------------------------------
+
+
+def _unit_checked(convert: Callable[[float, str], float]) -> Callable[[object], str]:
+    def read(value: object) -> str:
+        text = read_text(value)
+        convert(300.0, text)
+        return text
+    return read
+
+
+def _read_report(section: Section | None, db: SpeciesDatabase) -> ReportSpec:
+    if section is None:
+        return ReportSpec()
+    for key, feature in (("kp", "reactions"), ("approach", "reactions"), ("carbon", "carbon")):
+        if key in section:
+            _need(section, key, feature)
+    kp = section.get("kp", read_names, ())
+    approach = section.get("approach", read_names, ())
+    for key, reactions in (("kp", kp), ("approach", approach)):
+        _check_listed(section, key, reactions)
+    spec = ReportSpec(
+        flow_unit=section.get("flow_unit", flow_unit, "kmol/h"),
+        temperature_unit=section.get("temperature_unit", _unit_checked(from_kelvin), "degC"),
+        pressure_unit=section.get("pressure_unit", _unit_checked(from_pascal), "bar"),
+        cutoff=section.get("cutoff", read_fraction, 1e-6),
+        show=section.get("show", lambda v: tuple(db[n].name for n in read_names(v)), None),
+        partial_pressures=section.get("partial_pressures", read_bool, False),
+        kp=kp, approach=approach,
+        carbon=section.get("carbon", read_bool, False),
+    )
+    section.finish(tuple(CASE_KEYS["report"]))
+    return spec
+
+
+def _check_listed(section: Section, key: str, reactions: tuple[str, ...]) -> None:
+    for text in reactions:
+        _check_reaction(section, key, text)
+
+
+def _check_energy_inputs(root: Section, case: Case) -> None:
+    """An energy balance needs every feed's temperature: say which feed lacks one, at read time."""
+    first = case.stages[0]
+    needs_energy = first.adiabatic or case.curve is not None
+    if needs_energy and not case.feed_temperatures_known:
+        feed = next(f for f in case.feeds if not f.T_given)
+        raise CaseError(case.source, feed.line, f"feed.{feed.name}" if len(case.feeds) > 1 else "feed",
+                        "the energy balance needs the feed temperature; add e.g. T = '450 degC'")

@@ -1,0 +1,239 @@
+"""Settling a case: every stage in order, each taking the previous stage's outlet; and its equilibrium curve."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.optimize
+
+from ..equilibrium import Equilibrium
+from ..errors import InputError, UnknownSpeciesError
+from ..settle import equilibrate
+from ..thermo import SpeciesDatabase, default_database
+from .features import FEATURES
+from .spec import Case, CurveSpec, Stage
+from .toml import CaseError
+
+#: Points along each adiabatic operating line.
+_LINE_POINTS = 21
+#: Relative amount below which a species is left out of an enthalpy sum (its data range may not reach T).
+_NEGLIGIBLE = 1e-14
+
+
+@dataclass(frozen=True)
+class Inlet:
+    """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given)."""
+
+    streams: Mapping[str, Mapping[str, float]]
+    temperatures: Mapping[str, float | None]
+
+    @property
+    def mixed(self) -> dict[str, float]:
+        total: dict[str, float] = {}
+        for amounts in self.streams.values():
+            for name, n in amounts.items():
+                total[name] = total.get(name, 0.0) + n
+        return total
+
+    @property
+    def temperatures_known(self) -> bool:
+        return all(T is not None for T in self.temperatures.values())
+
+
+@dataclass(frozen=True)
+class StageResult:
+    """One stage: its specification, its inlet, and its equilibrium (``extras`` hold duty and approaches)."""
+
+    stage: Stage
+    inlet: Inlet
+    equilibrium: Equilibrium
+
+    @property
+    def duty_W(self) -> float | None:
+        """Heat added to the stage, [W], when the energy balance was computed."""
+        duty = self.equilibrium.extras.get("duty_W")
+        return None if duty is None else float(duty)
+
+
+@dataclass(frozen=True)
+class Curve:
+    """An equilibrium curve and operating lines, in K and either mole fraction or conversion [-]."""
+
+    spec: CurveSpec
+    P: float
+    T: tuple[float, ...]
+    value: tuple[float, ...]
+    lines: tuple[tuple[str, tuple[float, ...], tuple[float, ...]], ...]
+
+
+@dataclass(frozen=True)
+class CaseResult:
+    case: Case
+    stages: tuple[StageResult, ...]
+    curve: Curve | None = None
+
+    @property
+    def outlet(self) -> Equilibrium:
+        return self.stages[-1].equilibrium
+
+
+def settle_case(case: Case, db: SpeciesDatabase | None = None,
+                progress: Callable[[str], None] | None = None) -> CaseResult:
+    """Settle every stage of a case in order, each stage taking the previous stage's outlet.
+
+    Parameters
+    ----------
+    case : Case
+    db : SpeciesDatabase, optional
+    progress : callable, optional
+        Called with each step's name as it starts (for a progress display).
+
+    Returns
+    -------
+    CaseResult
+    """
+    db = db or default_database()
+    inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
+                  {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
+    results = []
+    for stage in case.stages:
+        if progress is not None:
+            progress(stage.name)
+        if stage.T_in is not None:
+            inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
+        try:
+            eq = _settle_stage(case, stage, inlet, db)
+        except (InputError, UnknownSpeciesError) as exc:
+            raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
+        results.append(StageResult(stage, inlet, eq))
+        inlet = Inlet({"outlet of " + stage.name: {s: n for s, n in eq.amounts.items() if n > 0.0}},
+                      {"outlet of " + stage.name: eq.T})
+    curve = None
+    if case.curve is not None:
+        if progress is not None:
+            progress("equilibrium curve")
+        curve = equilibrium_curve(case, results, db)
+    return CaseResult(case, tuple(results), curve)
+
+
+def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
+    species = case.species
+    if stage.approach:
+        from ..restricted import equilibrate_with_approach
+
+        eq = equilibrate_with_approach(inlet.mixed, stage.T, stage.P, dict(stage.approach),
+                                       frozen=list(species.frozen) or None, species=species.only,
+                                       exclude=species.exclude, method=stage.method, db=db,
+                                       allow_extrapolation=species.allow_extrapolation)
+        return _with_duty(eq, inlet, db)
+    energy = {}
+    if FEATURES["energy"].available() and inlet.temperatures_known:
+        energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
+    feed = dict(inlet.streams) if energy else inlet.mixed
+    return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
+                       inert=species.frozen, method=stage.method, db=db,
+                       allow_extrapolation=species.allow_extrapolation, **energy)
+
+
+def _with_duty(eq: Equilibrium, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
+    """Add the duty of a fixed-T stage whose solve did not compute it (restricted equilibrium)."""
+    if not (FEATURES["energy"].available() and inlet.temperatures_known):
+        return eq
+    import dataclasses
+
+    H_in = sum(_enthalpy(amounts, inlet.temperatures[name], eq.P, db) for name, amounts in inlet.streams.items())
+    H_out = _enthalpy(eq.amounts, eq.T, eq.P, db)
+    return dataclasses.replace(eq, extras={**eq.extras, "feed_enthalpy_J": H_in, "enthalpy_J": H_out,
+                                           "duty_W": H_out - H_in})
+
+
+def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase) -> float:
+    """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter."""
+    from ..energy import mixture_enthalpy
+
+    total = sum(amounts.values())
+    kept = {s: n for s, n in amounts.items() if n > _NEGLIGIBLE * total}
+    return mixture_enthalpy(kept, T, P, db=db)
+
+
+# --- the equilibrium curve and the operating lines --------------------------------------------------
+
+
+def _curve_value(spec: CurveSpec, amounts: Mapping[str, float], feed: Mapping[str, float], db: SpeciesDatabase) -> float:
+    if spec.conversion:
+        fed = feed.get(spec.species, 0.0)
+        return 1.0 - amounts.get(spec.species, 0.0) / fed
+    gas = sum(n for s, n in amounts.items() if db[s].is_gas)
+    return amounts.get(spec.species, 0.0) / gas
+
+
+def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabase) -> Curve:
+    """The equilibrium curve of the case's feed over T at the first stage's pressure, with each stage's line.
+
+    Equilibrium at a given T and P depends only on the element totals, which
+    every stage shares, so one curve serves all stages at that pressure.  An
+    adiabatic stage's operating line runs from its inlet to its outlet along
+    n(a) = n_in + a (n_out - n_in), each point at the temperature where its
+    enthalpy equals the inlet's plus the share a of the heat input.
+    """
+    spec = case.curve
+    assert spec is not None
+    feed = case.mixed_feed()
+    if spec.conversion and feed.get(spec.species, 0.0) <= 0.0:
+        raise CaseError(case.source, None, "curve.conversion", f"{spec.species} is not in the feed; conversion "
+                        "is measured from the feed")
+    P = case.stages[0].P
+    temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
+    values = []
+    species = case.species
+    for T in temperatures:
+        eq = equilibrate(feed, float(T), P, species=species.only, exclude=species.exclude, inert=species.frozen,
+                         db=db, allow_extrapolation=species.allow_extrapolation)
+        values.append(_curve_value(spec, eq.amounts, feed, db))
+    lines = []
+    for k, result in enumerate(results):
+        T_line, v_line = _operating_line(result, spec, feed, db)
+        if k > 0 and lines:
+            # The cooler between stages: composition fixed, temperature from one outlet to the next inlet.
+            lines.append((f"cooling before {result.stage.name}", (lines[-1][1][-1], T_line[0]),
+                          (lines[-1][2][-1], v_line[0])))
+        lines.append((result.stage.name, T_line, v_line))
+    return Curve(spec, P, tuple(map(float, temperatures)), tuple(values), tuple(lines))
+
+
+def _operating_line(result: StageResult, spec: CurveSpec, feed: Mapping[str, float],
+                    db: SpeciesDatabase) -> tuple[tuple[float, ...], tuple[float, ...]]:
+    eq, inlet = result.equilibrium, result.inlet
+    n_in = inlet.mixed
+    names = sorted(set(n_in) | {s for s, n in eq.amounts.items() if n > 0})
+    start = np.array([n_in.get(s, 0.0) for s in names])
+    end = np.array([eq.amounts.get(s, 0.0) for s in names])
+    if not result.stage.adiabatic or not inlet.temperatures_known:
+        # A fixed-temperature stage has no line from inlet to outlet that the energy balance fixes: show its outlet.
+        return (eq.T,), (_curve_value(spec, eq.amounts, feed, db),)
+    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db) for name, a in inlet.streams.items())
+    T_start = next(iter(inlet.temperatures.values())) if len(inlet.streams) == 1 else eq.T
+    T_points, v_points = [], []
+    for a in np.linspace(0.0, 1.0, _LINE_POINTS):
+        n = dict(zip(names, start + a * (end - start)))
+        target = H_in + a * result.stage.heat_input
+        T = _temperature_of(n, target, eq.P, (min(T_start, eq.T), max(T_start, eq.T)), db)
+        T_points.append(T)
+        v_points.append(_curve_value(spec, n, feed, db))
+    return tuple(T_points), tuple(v_points)
+
+
+def _temperature_of(amounts: Mapping[str, float], H: float, P: float, around: tuple[float, float],
+                    db: SpeciesDatabase) -> float:
+    """The temperature [K] at which a mixture has enthalpy H, searched near the stage's own temperatures."""
+    low, high = max(around[0] - 300.0, 200.0), min(around[1] + 300.0, 6000.0)
+
+    def gap(T: float) -> float:
+        return _enthalpy(amounts, T, P, db) - H
+
+    if gap(low) * gap(high) > 0:
+        return math.nan
+    return float(scipy.optimize.brentq(gap, low, high, xtol=1e-6))

@@ -1,0 +1,220 @@
+"""What a case says: its feeds, species set, stages, curve and report, as frozen dataclasses, and the key reference."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+from ..streams import Stream
+
+
+@dataclass(frozen=True)
+class Feed:
+    """One named feed stream.
+
+    Attributes
+    ----------
+    name : str
+    stream : Stream
+        Flows [mol/s], T [K], P [Pa].
+    T_given : bool
+        Whether the case file gave the feed's temperature (the energy balance needs it).
+    line : int or None
+        Line of the feed's table in the case file.
+    """
+
+    name: str
+    stream: Stream
+    T_given: bool = False
+    line: int | None = None
+
+
+@dataclass(frozen=True)
+class SpeciesSpec:
+    """The species set: an explicit list (``only``) or the default set, less ``exclude``; ``frozen`` keep their feed amount."""
+
+    only: tuple[str, ...] | None = None
+    exclude: tuple[str, ...] = ()
+    frozen: tuple[str, ...] = ()
+    allow_extrapolation: bool = False
+
+
+@dataclass(frozen=True)
+class Stage:
+    """What is held fixed in one equilibrium stage.
+
+    Attributes
+    ----------
+    name : str
+    T : float or None
+        Outlet temperature, [K]; None when adiabatic.
+    P : float
+        Pressure, [Pa].
+    line : int or None
+        Line of the stage's table in the case file.
+    T_in : float or None
+        Temperature the previous stage's outlet is cooled or heated to before this stage, [K].
+    adiabatic : bool
+    heat_input : float
+        Heat added to an adiabatic stage, [W] (negative for a heat loss).
+    approach : dict
+        Reaction (name or equation) to temperature approach, [K]; positive = short of equilibrium.
+    gas : str
+        Gas model name.
+    method : str
+        Solver.
+    """
+
+    name: str
+    T: float | None
+    P: float
+    line: int | None = None
+    T_in: float | None = None
+    adiabatic: bool = False
+    heat_input: float = 0.0
+    approach: Mapping[str, float] = field(default_factory=dict)
+    gas: str = "ideal"
+    method: str = "auto"
+
+
+@dataclass(frozen=True)
+class CurveSpec:
+    """An equilibrium curve over temperature with each adiabatic stage's operating line drawn on it.
+
+    Attributes
+    ----------
+    species : str
+        The species plotted: its mol% (``y``), or its conversion from the feed (``conversion``).
+    conversion : bool
+        Plot the fraction of the feed's ``species`` converted, [-], instead of its mol%.
+    T_from, T_to : float
+        Temperature range of the equilibrium curve, [K].
+    points : int
+    """
+
+    species: str
+    conversion: bool
+    T_from: float
+    T_to: float
+    points: int = 41
+
+
+@dataclass(frozen=True)
+class ReportSpec:
+    """What the report shows.
+
+    Attributes
+    ----------
+    flow_unit, temperature_unit, pressure_unit : str
+    cutoff : float
+        Smallest mole fraction shown, [-].
+    show : tuple of str or None
+        Only these species (None: all above the cutoff).
+    partial_pressures : bool
+    kp : tuple of str
+        Reactions whose equilibrium constant Kp (with its units) is reported with the outlet's quotient.
+    approach : tuple of str
+        Reactions whose approach temperature at each outlet is reported.
+    carbon : bool
+        Report the carbon activity against graphite and the carbon verdict.
+    """
+
+    flow_unit: str = "kmol/h"
+    temperature_unit: str = "degC"
+    pressure_unit: str = "bar"
+    cutoff: float = 1e-6
+    show: tuple[str, ...] | None = None
+    partial_pressures: bool = False
+    kp: tuple[str, ...] = ()
+    approach: tuple[str, ...] = ()
+    carbon: bool = False
+
+
+@dataclass(frozen=True)
+class Case:
+    """A whole case: feeds, species set, stages (run in order, each taking the previous outlet), report."""
+
+    title: str
+    feeds: tuple[Feed, ...]
+    species: SpeciesSpec
+    stages: tuple[Stage, ...]
+    report: ReportSpec
+    curve: CurveSpec | None = None
+    source: str = "<case>"
+
+    def mixed_feed(self) -> dict[str, float]:
+        """All feeds together, species to flow [mol/s]."""
+        total: dict[str, float] = {}
+        for feed in self.feeds:
+            for name, flow in feed.stream.feed_mol().items():
+                total[name] = total.get(name, 0.0) + flow
+        return total
+
+    @property
+    def feed_temperatures_known(self) -> bool:
+        return all(feed.T_given for feed in self.feeds)
+
+
+#: Every key of a case file, by table, with its meaning (the reference printed by `gibbsmin settle --keys`).
+CASE_KEYS: dict[str, dict[str, str]] = {
+    "case": {
+        "title": "a title for the report",
+        "normal_conditions": "what Nm3 means: 'DIN 1343' (0 degC, 1.01325 bar; default), 'ISO 13443' "
+                             "(15 degC), 'US gas' (60 degF, 14.696 psia)",
+    },
+    "feed": {
+        "unit": "unit of the species' numbers: a flow (kmol/h, kg/h, Nm3/h, t/h, lbmol/h) or a composition "
+                "(mol%, fraction, ppmv)",
+        "<species>": "flow or composition of a species, e.g. CH4 = 950.0, or with its own unit: "
+                     "H2O = \"52 t/h\"",
+        "total": "total flow when the species are a composition, e.g. '25000 Nm3/h'",
+        "basis": "'wet' (default) or 'dry': a dry analysis leaves water out",
+        "water_content": "with basis = 'dry': water in the wet stream, e.g. '2 mol%'",
+        "normalize": "true to scale a composition that does not sum to 100 %",
+        "steam_to_carbon": "add steam up to this S/C ratio [mol H2O per mol C]",
+        "steam_rate": "add this much steam, e.g. '52 t/h'",
+        "carbon_basis": "which carbon S/C counts: 'hydrocarbon' (default; CO, CO2 left out) or 'all'",
+        "T": "feed temperature, e.g. '520 degC' (the energy balance needs it)",
+        "P": "feed pressure, e.g. '32 bar(g)'",
+        "<name>": "sub-tables [feed.<name>] with the keys above: several feeds, mixed at the inlet",
+    },
+    "conditions": {
+        "T": "outlet temperature, e.g. '850 degC' (not with adiabatic)",
+        "P": "pressure, e.g. '30 bar(g)', '31 bar', '450 psia'",
+        "adiabatic": "true: the outlet temperature follows from the energy balance",
+        "heat_loss": "with adiabatic: heat lost, e.g. '0.5 MW'",
+        "heat_input": "with adiabatic: heat added, e.g. '85 MW'",
+        "T_in": "stages after the first: temperature the previous outlet is cooled or heated to",
+        "approach": "table of reaction = temperature approach, e.g. \"steam methane reforming\" = '10 K' "
+                    "(positive: short of equilibrium)",
+        "gas": "gas model: 'ideal' (default), 'peng-robinson', 'srk'",
+        "method": "solver: 'auto' (default), 'newton', 'convex'",
+        "name": "a name for the stage in the report",
+    },
+    "stage": {"(keys of [conditions])": "[[stage]] tables, one per stage in order, each taking the last outlet"},
+    "species": {
+        "only": "the species set, e.g. ['CH4', 'H2O', 'CO', 'CO2', 'H2'] (default: every species made of "
+                "the feed's elements)",
+        "exclude": "species left out, e.g. ['C(s)']",
+        "frozen": "species that keep their feed amount (inerts such as N2, Ar), e.g. ['N2']",
+        "allow_extrapolation": "true to use species data outside their fitted temperature ranges",
+    },
+    "curve": {
+        "y": "species whose equilibrium mol% is drawn against T, e.g. 'NH3'",
+        "conversion": "or: species whose conversion from the feed is drawn, e.g. 'SO2'",
+        "T_from": "lowest temperature of the curve, e.g. '350 degC'",
+        "T_to": "highest temperature of the curve, e.g. '650 degC'",
+        "points": "number of points (default 41)",
+    },
+    "report": {
+        "flow_unit": "unit of flows in the report (default kmol/h)",
+        "temperature_unit": "degC (default), K or degF",
+        "pressure_unit": "bar (default), bar(g), MPa, psia, psig, atm ...",
+        "cutoff": "smallest mole fraction shown, e.g. '1 ppmv' (default) or '1 ppbv'",
+        "show": "only these species, e.g. ['H2', 'CO', 'CO2', 'CH4']",
+        "partial_pressures": "true to add partial pressures",
+        "kp": "reactions whose Kp (with its units) is reported, e.g. ['N2O4 = 2 NO2']",
+        "approach": "reactions whose approach temperature at each outlet is reported, e.g. ['shift']",
+        "carbon": "true to report the carbon activity against graphite",
+    },
+}
