@@ -192,7 +192,7 @@ def carbon_table(result: CaseResult) -> Table | None:
     for stage in result.stages:
         eq = stage.equilibrium
         activity = carbon_activity(eq)
-        verdict = "fail" if activity.possible else "pass"
+        verdict = "warn" if activity.possible else "pass"
         rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), verdict,
                      activity.verdict))
     return Table("Carbon activity against graphite at each outlet",
@@ -218,7 +218,7 @@ def curve_plot(result: CaseResult) -> Plot | None:
         if finite:
             style = "dashed" if label.startswith("cooling") else ("line+points" if len(finite) > 1 else "points")
             series.append(Series(label, tuple(p[0] for p in finite), tuple(p[1] for p in finite), style))
-    return Plot(f"Equilibrium curve and operating lines: {result.case.title}", "line",
+    return Plot("Equilibrium curve and operating lines", "line",
                 f"temperature [{spec.temperature_unit}]", what, tuple(series))
 
 

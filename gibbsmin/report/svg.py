@@ -38,6 +38,10 @@ def nice_ticks(low: float, high: float, count: int = 6) -> list[float]:
     return ticks
 
 
+def _short(text: str, length: int) -> str:
+    return text if len(text) <= length else text[: length - 1] + "…"
+
+
 def _tick_text(value: float) -> str:
     return f"{value:.6g}"
 
@@ -47,7 +51,8 @@ def _frame(title: str, x_label: str, y_label: str) -> list[str]:
         f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 {_WIDTH} {_HEIGHT}" width="{_WIDTH}" '
         f'height="{_HEIGHT}" role="img" aria-label="{escape(title)}" font-family="sans-serif" font-size="12">',
         f"<title>{escape(title)}</title>",
-        f'<text x="{_WIDTH / 2}" y="22" text-anchor="middle" font-size="14" font-weight="bold">{escape(title)}</text>',
+        f'<text x="{_WIDTH / 2}" y="22" text-anchor="middle" font-size="13" font-weight="bold">'
+        f'{escape(_short(title, 90))}</text>',
         f'<text x="{_MARGIN["left"] + (_WIDTH - _MARGIN["left"] - _MARGIN["right"]) / 2}" y="{_HEIGHT - 14}" '
         f'text-anchor="middle">{escape(x_label)}</text>',
         f'<text transform="translate(18 {_HEIGHT / 2}) rotate(-90)" text-anchor="middle">{escape(y_label)}</text>',
@@ -89,9 +94,10 @@ def line_chart(plot: Plot) -> str:
         if "points" in series.style:
             parts += [f'<circle cx="{x:.1f}" cy="{y:.1f}" r="3" fill="{colour}"/>' for x, y in points]
         legend_y = top + 14 + 18 * i
+        dash = ' stroke-dasharray="5 4"' if series.style == "dashed" else ""
         parts.append(f'<line x1="{right + 12}" y1="{legend_y - 4}" x2="{right + 32}" y2="{legend_y - 4}" '
-                     f'stroke="{colour}" stroke-width="3"/>')
-        parts.append(f'<text x="{right + 38}" y="{legend_y}">{escape(series.label[:30])}</text>')
+                     f'stroke="{colour}" stroke-width="3"{dash}/>')
+        parts.append(f'<text x="{right + 38}" y="{legend_y}" font-size="11">{escape(_short(series.label, 26))}</text>')
     parts.append("</svg>")
     return "\n".join(parts)
 
