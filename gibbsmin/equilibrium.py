@@ -156,6 +156,8 @@ class Equilibrium:
         hidden = len(y) - len(gas_rows)
         if hidden:
             lines.append(f"({hidden} gas species below {cutoff:g} mole fraction not shown)")
+        if "duty_W" in self.extras:
+            lines.append(f"duty {self.extras['duty_W']:.6g} W ({self.extras.get('duty_sign_convention', '')})")
         lines.append(self.certificate.summary())
         return "\n".join(lines)
 

@@ -194,27 +194,47 @@ def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64
 
 
 def equilibrate(
-    feed: Mapping[str, float],
-    T: float,
-    P: float,
+    feed: Mapping[str, object],
+    T: float | None = None,
+    P: float | None = None,
     *,
+    T_feed: float | Mapping[str, float] | None = None,
+    adiabatic: bool = False,
+    heat_input: float = 0.0,
     species: Sequence[str] | None = None,
     exclude: Sequence[str] = (),
     inert: Sequence[str] = (),
     method: str = "auto",
+    gas: str = "ideal",
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
+    sensitivities: bool = False,
+    T_bounds: tuple[float, float] | None = None,
 ) -> Equilibrium:
-    """Equilibrium of a feed at fixed temperature and pressure.
+    """Equilibrium of a feed at fixed temperature and pressure, or at the temperature the energy balance sets.
 
     Parameters
     ----------
     feed : mapping
-        Species name (or alias) to amount, [mol].
-    T : float
-        Temperature, [K].
+        Species name (or alias) to amount, [mol]; or, for several streams
+        mixed at the inlet, stream name to such a mapping.  Any time basis
+        will do (mol/s makes every heat figure a power in W).
+    T : float, optional
+        Outlet temperature, [K].  Leave it out with ``adiabatic=True`` (or a
+        ``heat_input``) to have the energy balance find it.
     P : float
         Pressure, [Pa].
+    T_feed : float or mapping, optional
+        Inlet temperature, [K]: one number for the whole feed, or a mapping
+        per feed species or per feed stream (each mixed in at its own
+        temperature).  Needed for the energy balance; with ``T`` given it
+        adds the reactor's duty to the result.
+    adiabatic : bool
+        Find the outlet temperature at which the outlet enthalpy equals the
+        inlet enthalpy plus ``heat_input`` (specification "H and P").
+    heat_input : float
+        Heat added to the reactor, [J per the feed amounts; W for mol/s];
+        negative for heat removed or lost.
     species : list of str, optional
         The species set; by default every species of the database made only
         of the feed's elements.
@@ -223,27 +243,92 @@ def equilibrate(
     inert : list of str
         Feed species that do not react but still dilute the gas.
     method : {"auto", "newton", "convex"}
+    gas : {"ideal", "peng-robinson", "srk"}
+        The gas model; the cubic equations of state take their critical
+        constants from the species data and treat species without them as
+        ideal (``gibbsmin.nonideal``).  The result's ``gas_model`` names it.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.
+    sensitivities : bool
+        Add ``extras["sensitivities"]``: d(amounts)/dT, d/dP, d/d(feed) and
+        the equilibrium and frozen heat capacities (``sensitivity.Sensitivities``).
+    T_bounds : (float, float), optional
+        Lowest and highest outlet temperature the energy balance may give,
+        [K]; by default the range where every named gas species has data.
 
     Returns
     -------
     Equilibrium
+        ``extras`` holds ``enthalpy_J`` and ``entropy_J_per_K`` of the outlet;
+        with ``T_feed`` also ``feed_enthalpy_J``, ``duty_W`` (heat added to
+        the reactor, sign convention in ``duty_sign_convention``) and
+        ``energy_balance_residual`` (relative to the gross enthalpy).
 
     Examples
     --------
     >>> eq = equilibrate({"CH4": 1.0, "H2O": 3.0}, T=1100.0, P=30e5)
     >>> round(eq.mole_fractions["H2"], 3) > 0.4
     True
+    >>> flame = equilibrate({"CH4": 1.0, "O2": 2.0, "N2": 7.52}, P=101325.0, T_feed=298.15,
+    ...                     adiabatic=True, exclude=["C(s)", "H2O(l)", "H2O(s)"])
+    >>> 2200 < flame.T < 2250
+    True
     """
-    T = _positive_number(T, "T", "K")
+    # energy.py builds on this module's solve_fixed, so it is imported where it is needed.
+    from . import energy, nonideal, sensitivity
+
+    if P is None:
+        raise InputError("P is required: the pressure in Pa, e.g. P=30e5")
     P = _positive_number(P, "P", "Pa")
     check_method(method)
-    setup = prepare(feed, species=species, exclude=exclude, inert=inert, T_span=(T, T), db=db,
+    db = db or default_database()
+    inlet = energy.read_inlet(feed, T_feed, db)
+    heat = energy.heat_input_of(heat_input)
+    energy_balance = T is None
+    if energy_balance and not (adiabatic or heat):
+        raise InputError("give the outlet temperature T, or adiabatic=True (with T_feed) to have the energy "
+                         "balance find it")
+    if not energy_balance and (adiabatic or heat):
+        raise InputError("T fixes the outlet temperature, so the energy balance cannot also fix it: leave T out "
+                         "for an adiabatic reactor (or one with heat_input), or drop adiabatic/heat_input to get "
+                         "the duty at T (pass T_feed)")
+    if energy_balance:
+        if not inlet.has_temperatures:
+            raise InputError("the energy balance needs the feed temperature: pass T_feed in K (one number, or one "
+                             "per feed species or stream)")
+        T_span = energy.outlet_bounds(db, inlet, species, T_bounds)
+    else:
+        if T_bounds is not None:
+            raise InputError("T_bounds limits the outlet temperature the energy balance may find; with T given "
+                             "there is nothing to find, so leave T_bounds out")
+        T = _positive_number(T, "T", "K")
+        T_span = (T, T)
+    setup = prepare(inlet.total, species=species, exclude=exclude, inert=inert, T_span=T_span, db=db,
                     allow_extrapolation=allow_extrapolation)
-    eq, _, _ = solve_fixed(setup, T, P, method=method, allow_extrapolation=allow_extrapolation)
-    return checked(eq)
+    phase = None if gas == "ideal" else nonideal.gas_phase(setup.system, gas)
+    H_in = inlet.enthalpy(P, db, allow_extrapolation) if inlet.has_temperatures else None
+    if phase is not None and H_in is not None:
+        H_in += nonideal.inlet_residual_enthalpy(phase, inlet, P)
+    gross_in = inlet.gross_enthalpy(P, db) if inlet.has_temperatures else 0.0
+    if energy_balance:
+        eq, problem, result = energy.solve_energy_balance(
+            setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
+            coldest_feed=min(inlet.temperatures.values()), method=method,
+            allow_extrapolation=allow_extrapolation,
+            **({} if phase is None else nonideal.energy_hooks(setup, P, phase, method=method,
+                                                              allow_extrapolation=allow_extrapolation)))
+    elif phase is None:
+        eq, problem, result = solve_fixed(setup, T, P, method=method, allow_extrapolation=allow_extrapolation)
+    else:
+        eq, problem, result = nonideal.solve_nonideal(setup, T, P, phase, method=method,
+                                                      allow_extrapolation=allow_extrapolation)
+    extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
+                                  residual_enthalpy=None if phase is None else phase.residual_enthalpy)
+    if sensitivities:
+        extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
+                                                                        db=db).to_dict()
+    return checked(energy.with_extras(eq, extras))
 
 
 def check_method(method: str) -> None:

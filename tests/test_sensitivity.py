@@ -1,0 +1,122 @@
+"""Equilibrium sensitivities by implicit differentiation against central finite differences.
+
+The derivatives come from the linearised optimality conditions
+(gibbsmin/sensitivity.py); the check differences fixed-T,P equilibria solved
+afresh at T +/- h, P +/- h and n_feed +/- h.  Central differences are exact to
+O(h^2); the steps below keep that error and the solver's round-off both under
+the tolerances.  Cantera (Goodwin et al., Cantera 3.2, 2025) supplies an
+independent equilibrium enthalpy for the heat capacity check.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import gibbsmin
+from cantera_reference import cantera_gas
+
+DB = gibbsmin.default_database()
+CONDENSED = [r.name for r in DB if not r.is_gas]
+BAR = 1.0e5
+
+CASES = {
+    # name: (feed, T [K], P [Pa], keywords); invented services.  No T sits within h of 1000 K, where the
+    # NASA polynomials switch from one fit to the other and cp steps slightly.
+    "steam reformer gas": ({"CH4": 1.0, "H2O": 3.0}, 1050.0, 20 * BAR, dict(exclude=CONDENSED)),
+    "graphite present": ({"CH4": 1.0, "H2O": 0.5}, 900.0, 5 * BAR, dict(exclude=[c for c in CONDENSED if c != "C(s)"])),
+    "liquid water present": ({"H2": 0.45, "CO": 0.02, "CO2": 0.15, "H2O": 0.33, "N2": 0.05}, 400.0, 30 * BAR,
+                             dict(species=["H2", "CO", "CO2", "H2O", "N2", "H2O(l)"])),
+    "ammonia with inert argon": ({"N2": 1.0, "H2": 3.0, "Ar": 0.2}, 750.0, 100 * BAR,
+                                 dict(species=["N2", "H2", "NH3", "Ar"], inert=["Ar"])),
+}
+
+
+def _amounts(feed, T, P, kwargs):
+    eq = gibbsmin.equilibrate(feed, T, P, **kwargs)
+    assert eq.certificate.certified
+    return eq, np.array([eq.amounts[s] for s in eq.species])
+
+
+def _assert_close(analytic, numeric, what):
+    scale = np.max(np.abs(numeric))
+    assert scale > 0, f"{what}: nothing moves, the check would be empty"
+    worst = np.max(np.abs(analytic - numeric))
+    print(f"{what}: worst |analytic - central difference| {worst:.1e} of {scale:.1e}")
+    assert worst <= 1e-5 * scale
+
+
+@pytest.mark.parametrize("case", CASES)
+def test_derivatives_match_central_differences(case):
+    feed, T, P, kwargs = CASES[case]
+    eq, n = _amounts(feed, T, P, dict(kwargs, sensitivities=True))
+    s = eq.extras["sensitivities"]
+    names = list(eq.species)
+    assert eq.condensed.keys() == ({"C(s)"} if case == "graphite present" else
+                                   {"H2O(l)"} if case == "liquid water present" else set())
+
+    h = 1e-3
+    dT = (_amounts(feed, T + h, P, kwargs)[1] - _amounts(feed, T - h, P, kwargs)[1]) / (2 * h)
+    _assert_close(np.array([s["dn_dT_mol_per_K"][k] for k in names]), dT, f"{case} dn/dT")
+
+    h = 1e-5 * P
+    dP = (_amounts(feed, T, P + h, kwargs)[1] - _amounts(feed, T, P - h, kwargs)[1]) / (2 * h)
+    _assert_close(np.array([s["dn_dP_mol_per_Pa"][k] for k in names]), dP, f"{case} dn/dP")
+
+    for species in feed:
+        h = 1e-5 * feed[species]
+        more, less = dict(feed), dict(feed)
+        more[species] += h
+        less[species] -= h
+        d_feed = (_amounts(more, T, P, kwargs)[1] - _amounts(less, T, P, kwargs)[1]) / (2 * h)
+        _assert_close(np.array([s["dn_dfeed_mol_per_mol"][species][k] for k in names]), d_feed,
+                      f"{case} dn/dn({species})")
+
+
+@pytest.mark.parametrize("case", ["steam reformer gas", "graphite present", "liquid water present"])
+def test_equilibrium_heat_capacity_is_the_slope_of_the_equilibrium_enthalpy(case):
+    feed, T, P, kwargs = CASES[case]
+    eq = gibbsmin.equilibrate(feed, T, P, sensitivities=True, **kwargs)
+    h = 1e-3
+    slope = (gibbsmin.equilibrate(feed, T + h, P, **kwargs).extras["enthalpy_J"]
+             - gibbsmin.equilibrate(feed, T - h, P, **kwargs).extras["enthalpy_J"]) / (2 * h)
+    s = eq.extras["sensitivities"]
+    assert s["heat_capacity_equilibrium_J_per_K"] == pytest.approx(slope, rel=1e-6)
+    # Reaction that absorbs heat as T rises adds to the frozen heat capacity (Le Chatelier).
+    assert s["heat_capacity_equilibrium_J_per_K"] > s["heat_capacity_frozen_J_per_K"]
+
+
+def test_equilibrium_heat_capacity_against_cantera_enthalpy_slope():
+    # Cantera's TP equilibrium on the same species, differenced in T: an outside evaluation of dH/dT.
+    feed, T, P, kwargs = CASES["steam reformer gas"]
+    eq = gibbsmin.equilibrate(feed, T, P, sensitivities=True, **kwargs)
+    gas = cantera_gas([s for s in eq.species if eq.phase_of[s] == "gas"])
+    total_mass = None
+
+    def enthalpy(T_):
+        nonlocal total_mass
+        gas.TPX = T_, P, feed
+        total_mass = total_mass or gas.mean_molecular_weight * sum(feed.values()) / 1000.0
+        gas.equilibrate("TP", rtol=1e-12)
+        return gas.enthalpy_mass * total_mass
+
+    h = 1e-2
+    slope = (enthalpy(T + h) - enthalpy(T - h)) / (2 * h)
+    assert eq.extras["sensitivities"]["heat_capacity_equilibrium_J_per_K"] == pytest.approx(slope, rel=1e-5)
+
+
+def test_frozen_heat_capacity_is_the_sum_of_the_species_heat_capacities():
+    eq = gibbsmin.equilibrate({"N2": 1.0, "Ar": 1.0}, 300.0, BAR, species=["N2", "Ar"], sensitivities=True)
+    # Argon: cp = 5/2 R exactly (monatomic ideal gas); N2 at 300 K: 29.125 J/(mol K) (JANAF, Chase 1998).
+    expected = 2.5 * 8.314462618 + 29.125
+    assert eq.extras["sensitivities"]["heat_capacity_frozen_J_per_K"] == pytest.approx(expected, abs=0.01)
+
+
+def test_on_a_two_phase_plateau_temperature_derivatives_do_not_exist():
+    eq = gibbsmin.equilibrate({"N2": 1.0, "H2O": 0.1}, P=101325.0, T_feed=300.0, heat_input=-5300.0,
+                              species=["N2", "H2O", "O2", "H2", "H2O(l)", "H2O(s)"], sensitivities=True)
+    s = eq.extras["sensitivities"]
+    assert "phase_boundary" in eq.extras
+    assert s["heat_capacity_equilibrium_J_per_K"] is None
+    assert s["dn_dT_mol_per_K"]["H2O(s)"] is None
+    assert s["heat_capacity_frozen_J_per_K"] > 0
