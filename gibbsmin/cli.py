@@ -19,6 +19,7 @@ from pathlib import Path
 
 from . import __version__
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
+from .sweep import command as sweep_command
 
 #: Exit codes.
 OK, CHECKS_FAILED, BAD_INPUT, NOT_CERTIFIED, INTERRUPTED = 0, 1, 2, 3, 130
@@ -266,6 +267,8 @@ COMMANDS: dict[str, Command] = {
     "audit": Command("audit a heat-and-mass balance: a stream table against its units", AUDIT_EXAMPLE,
                      _audit_arguments, _audit),
     "species": Command("list and search the species database", SPECIES_EXAMPLE, _species_arguments, _species),
+    "sweep": Command("sweep a case over a grid of T, P, S/C or feed flows", sweep_command.SWEEP_EXAMPLE,
+                     sweep_command.add_arguments, sweep_command.run),
 }
 
 

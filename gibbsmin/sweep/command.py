@@ -1,0 +1,93 @@
+"""``gibbsmin sweep CASE --vary ...``: a case file's first stage over a grid, to Parquet or CSV, with a map."""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import tempfile
+from pathlib import Path
+
+from ..errors import InputError
+from .grid import SweepSpec, axis_from_text
+
+SWEEP_EXAMPLE = """\
+example:
+  gibbsmin sweep examples/reformer.toml --vary T=700:1000:25degC --vary "S/C=1.5:4:0.25" --csv map.csv
+  gibbsmin sweep examples/reformer.toml --vary T=650:950:10degC --vary P=20,30,40bar --out runs/reformer
+  gibbsmin sweep examples/reformer.toml --vary T=650:950:10degC --vary "S/C=0.4:2:0.1" \\
+      --map T,S/C,y_CH4 --png carbon-map.png
+  gibbsmin sweep CASE --vary ... --out runs/x --scheduler tcp://10.0.0.5:8786   (a Dask cluster)
+
+The first stage of the case (fixed T and P) is solved at every point of the
+grid spanned by the --vary axes: T, P (with units), S/C (steam to hydrocarbon
+carbon; the case's steam is replaced) or a feed species' flow in mol/s.
+--out keeps Parquet chunks in a folder and resumes an interrupted run.
+"""
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("case", help="the case file (TOML)")
+    p.add_argument("--vary", action="append", required=True, metavar="AXIS",
+                   help="NAME=START:STOP:STEP[unit] or NAME=V1,V2,...[unit]; repeat for more axes")
+    p.add_argument("--out", metavar="FOLDER", help="Parquet chunks here (resumable)")
+    p.add_argument("--csv", metavar="FILE", help="write the whole table as CSV")
+    p.add_argument("--map", metavar="X,Y,COLUMN", help="draw COLUMN over axes X and Y with the graphite boundary")
+    p.add_argument("--png", metavar="FILE", help="where --map is written (default sweep-map.png)")
+    p.add_argument("--workers", type=int, default=1, help="local worker processes (default 1)")
+    p.add_argument("--scheduler", metavar="ADDRESS", help="run the chunks on this Dask scheduler")
+    p.add_argument("--chunk-size", type=int, default=5000, help="points per chunk (default 5000)")
+
+
+def spec_from_case(case, axes) -> SweepSpec:
+    """The sweep of a case's first stage along ``axes``."""
+    stage = case.stages[0]
+    if stage.T is None or stage.adiabatic or stage.approach or stage.gas != "ideal":
+        raise InputError(f"{case.source}: a sweep runs the first stage at fixed T and P with the ideal gas; "
+                         "stage " + repr(stage.name) + " asks for more (adiabatic, approach or a gas model)")
+    return SweepSpec(feed=case.mixed_feed(), T=stage.T, P=stage.P, axes=tuple(axes),
+                     species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
+                     method=stage.method)
+
+
+def _write_csv(table, target: Path) -> None:
+    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent or ".")
+    os.close(handle)
+    try:
+        table.to_csv(temporary, index=False)
+        os.replace(temporary, target)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..case import read_case
+    from .run import run_sweep
+
+    case = read_case(args.case)
+    spec = spec_from_case(case, [axis_from_text(text) for text in args.vary])
+    result = run_sweep(spec, args.out, chunk_size=args.chunk_size, workers=args.workers,
+                       scheduler=args.scheduler, progress=sys.stderr.isatty())
+    table = result if args.out is None else result.frame()
+    uncertified = int((~table["certified"]).sum())
+    if args.csv:
+        _write_csv(table, Path(args.csv))
+    if args.map:
+        parts = args.map.split(",")
+        if len(parts) != 3:
+            raise InputError(f"--map takes X,Y,COLUMN (e.g. T,S/C,y_CH4), not {args.map!r}")
+        x, y, column = parts
+        labels = {a.name: a.label for a in spec.axes}
+        from .plots import carbon_map
+        figure = carbon_map(table, labels.get(x, x), labels.get(y, y), column, title=case.title)
+        target = Path(args.png or "sweep-map.png")
+        handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".png", dir=target.parent or ".")
+        os.close(handle)
+        figure.savefig(temporary, dpi=120)
+        os.replace(temporary, target)
+    where = f" in {args.out}" if args.out else ""
+    print(f"{spec.n_points} points{where}; {uncertified} not certified; axes: "
+          + ", ".join(f"{a.label} ({len(a.values)})" for a in spec.axes))
+    print("Caution: thermodynamic limits, not designs; local codes and licensed engineering practice govern.")
+    return 0 if uncertified == 0 else 3
