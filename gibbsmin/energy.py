@@ -128,7 +128,8 @@ def entropy(table: Nasa7Table, n_gas: int, n: NDArray[np.float64], T: float, P: 
     if N > 0.0:
         present = gas > 0.0
         # n ln y vanishes for a species that is not there, so absent ones are skipped rather than logged.
-        S += float(gas[present] @ (s[:n_gas][present] - np.log(gas[present] / N * (P / P_REF))))
+        # Logs of the amounts, not of y P / P0, which underflows for species near the smallest float.
+        S += float(gas[present] @ (s[:n_gas][present] - np.log(gas[present]) + np.log(N) - np.log(P / P_REF)))
     return R * S
 
 
