@@ -3,12 +3,11 @@
 from __future__ import annotations
 
 import argparse
-import os
+import io
 import sys
-import tempfile
-from pathlib import Path
 
 from ..errors import InputError
+from ..report.files import write_atomic
 from .grid import SweepSpec, axis_from_text
 
 SWEEP_EXAMPLE = """\
@@ -50,17 +49,6 @@ def spec_from_case(case, axes) -> SweepSpec:
                      method=stage.method)
 
 
-def _write_csv(table, target: Path) -> None:
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent or ".")
-    os.close(handle)
-    try:
-        table.to_csv(temporary, index=False)
-        os.replace(temporary, target)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
 def run(args: argparse.Namespace) -> int:
     from ..case import read_case
     from .run import run_sweep
@@ -72,7 +60,7 @@ def run(args: argparse.Namespace) -> int:
     table = result if args.out is None else result.frame()
     uncertified = int((~table["certified"]).sum())
     if args.csv:
-        _write_csv(table, Path(args.csv))
+        write_atomic(args.csv, table.to_csv(index=False))
     if args.map:
         parts = args.map.split(",")
         if len(parts) != 3:
@@ -81,11 +69,9 @@ def run(args: argparse.Namespace) -> int:
         labels = {a.name: a.label for a in spec.axes}
         from .plots import carbon_map
         figure = carbon_map(table, labels.get(x, x), labels.get(y, y), column, title=case.title)
-        target = Path(args.png or "sweep-map.png")
-        handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".png", dir=target.parent or ".")
-        os.close(handle)
-        figure.savefig(temporary, dpi=120)
-        os.replace(temporary, target)
+        picture = io.BytesIO()
+        figure.savefig(picture, format="png", dpi=120)
+        write_atomic(args.png or "sweep-map.png", picture.getvalue())
     where = f" in {args.out}" if args.out else ""
     print(f"{spec.n_points} points{where}; {uncertified} not certified; axes: "
           + ", ".join(f"{a.label} ({len(a.values)})" for a in spec.axes))

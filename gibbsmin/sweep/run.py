@@ -13,10 +13,10 @@ writes the same table twice: nothing is lost or duplicated.
 
 from __future__ import annotations
 
+import io
 import json
 import multiprocessing
 import os
-import tempfile
 from collections.abc import Callable, Iterable
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from dataclasses import dataclass
@@ -25,6 +25,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import InputError
+from ..report.files import write_atomic
 from .chunk import solve_points
 from .grid import SweepSpec
 
@@ -40,15 +41,10 @@ def _chunk_range(spec: SweepSpec, index: int, chunk_size: int) -> tuple[int, int
     return first, min(spec.n_points, first + chunk_size)
 
 
-def _write_atomically(frame: pd.DataFrame, target: Path) -> None:
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
-    os.close(handle)
-    try:
-        frame.to_parquet(temporary, index=False)
-        os.replace(temporary, target)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
+def _write_table(frame: pd.DataFrame, target: Path) -> None:
+    data = io.BytesIO()
+    frame.to_parquet(data, index=False)
+    write_atomic(target, data.getvalue())
 
 
 def run_chunk(spec_json: str, index: int, chunk_size: int, out: str | None) -> pd.DataFrame | dict:
@@ -62,7 +58,7 @@ def run_chunk(spec_json: str, index: int, chunk_size: int, out: str | None) -> p
     frame = solve_points(spec, first, last)
     if out is None:
         return frame
-    _write_atomically(frame, chunk_path(Path(out), index))
+    _write_table(frame, chunk_path(Path(out), index))
     return {"chunk": index, "points": last - first, "uncertified": int((~frame["certified"]).sum())}
 
 
@@ -98,10 +94,7 @@ def _prepare_folder(out: Path, spec: SweepSpec, chunk_size: int, resume: bool) -
             for stale in out.glob("chunk-*.parquet"):
                 stale.unlink()
         return
-    handle, temporary = tempfile.mkstemp(prefix=".sweep.", suffix=".tmp", dir=out)
-    with os.fdopen(handle, "w") as stream:
-        json.dump(record, stream, indent=1)
-    os.replace(temporary, definition)
+    write_atomic(definition, json.dumps(record, indent=1))
 
 
 def run_sweep(
