@@ -198,23 +198,26 @@ def _species(args: argparse.Namespace) -> int:
 
 def _audit(args: argparse.Namespace) -> int:
     from . import audit
+    from .report.audit import audit_document, audit_report
     from .report.text import render_text
 
     if args.keys:
         sys.stdout.write(_keys_text(audit.AUDIT_KEYS))
         return OK
-    if args.table is None or args.units is None:
-        raise _UsageError("audit needs a stream table and a unit description, e.g. "
-                          "gibbsmin audit examples/plant/streams.csv examples/plant/units.toml")
-    plant = audit.read_plant(args.units, args.table)
+    given = [f for f in (args.table, args.units) if f is not None]
+    descriptions = [f for f in given if f.lower().endswith(".toml")]
+    tables = [f for f in given if not f.lower().endswith(".toml")]
+    if len(descriptions) != 1 or len(tables) > 1:
+        raise _UsageError("audit needs a unit description (.toml) and, unless it names one, a stream table "
+                          "(.csv or .xlsx), e.g. gibbsmin audit examples/plant/streams.csv examples/plant/units.toml")
+    plant = audit.read_plant(descriptions[0], tables[0] if tables else None)
     with _progress(len(plant.units), "auditing") as bar:
         result = audit.audit_plant(plant, progress=_ticker(bar))
-    report = audit.audit_report(result)
-    _write_outputs(report, args)
+    _write_outputs(audit_report(result), args)
     if args.json:
-        _print_json(audit.audit_document(result))
+        _print_json(audit_document(result))
     elif not args.quiet:
-        sys.stdout.write(render_text(report))
+        sys.stdout.write(render_text(audit_report(result, details=args.details)))
     worst = result.worst
     if args.fail_on == "fail" and worst == "fail" or args.fail_on == "warn" and worst in ("warn", "fail"):
         return CHECKS_FAILED
@@ -251,10 +254,13 @@ def _species_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def _audit_arguments(p: argparse.ArgumentParser) -> None:
-    p.add_argument("table", nargs="?", help="the stream table (CSV or XLSX)")
-    p.add_argument("units", nargs="?", help="the unit description (TOML)")
+    p.add_argument("table", nargs="?", help="the stream table (CSV or XLSX); optional when the unit "
+                   "description names it")
+    p.add_argument("units", nargs="?", help="the unit description (TOML); the two may come in either order")
     p.add_argument("--keys", action="store_true",
                    help="list the keys of a unit description and the row labels of a stream table")
+    p.add_argument("--details", action="store_true", help="print the figures behind every check, not only "
+                   "behind those that did not pass")
     p.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
                    help="exit with code 1 when a check fails (or warns); default: never")
     _add_outputs(p)

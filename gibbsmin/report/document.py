@@ -23,7 +23,8 @@ class Column:
     title : str
     style : str
         ``"text"``, ``"percent"`` (mol%), ``"flow"``, ``"number"`` (six significant digits),
-        ``"fixed2"`` (two decimals), ``"exp"`` (scientific) or ``"verdict"`` (pass, warn, fail).
+        ``"fixed2"`` (two decimals), ``"exp"`` (scientific), ``"figure"`` (four significant digits, noise as 0),
+        ``"verdict"`` (pass, warn, fail, n/a) or ``"longtext"`` (text the terminal wraps).
     """
 
     title: str

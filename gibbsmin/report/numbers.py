@@ -26,6 +26,9 @@ def format_cell(value: object, style: str) -> str:
         return f"{x:.1f}"
     if style == "exp":
         return f"{x:.3e}"
+    if style == "figure":
+        # A checked figure: four significant digits, and rounding noise shown as the zero it is.
+        return "0" if abs(x) < 5e-5 else f"{x:.4g}"
     return f"{x:.6g}"
 
 

@@ -43,7 +43,7 @@ def _short(text: str, length: int) -> str:
 
 
 def _tick_text(value: float) -> str:
-    return f"{value:.6g}"
+    return f"{value + 0.0:.6g}" if value != 0 else "0"
 
 
 def _frame(title: str, x_label: str, y_label: str) -> list[str]:
@@ -128,7 +128,8 @@ def bar_chart(plot: Plot) -> str:
         x0, x1 = sorted((sx(0.0), sx(value)))
         parts.append(f'<rect x="{x0:.1f}" y="{y:.1f}" width="{max(x1 - x0, 0.5):.1f}" height="{band * 0.7:.1f}" '
                      f'fill="{colour}"><title>{escape(category)}: {_tick_text(value)}</title></rect>')
-        parts.append(f'<text x="{left - 6}" y="{y + band * 0.35 + 4:.1f}" text-anchor="end">{escape(category[:26])}</text>')
+        parts.append(f'<text x="{left - 6}" y="{y + band * 0.35 + 4:.1f}" text-anchor="end">{escape(_short(category, 26))}</text>')
+        parts.append(f'<text x="{x1 + 4:.1f}" y="{y + band * 0.35 + 4:.1f}" font-size="11">{_tick_text(float(f"{value:.4g}"))}</text>')
     parts.append(f'<line x1="{sx(0.0):.1f}" y1="{top}" x2="{sx(0.0):.1f}" y2="{bottom}" stroke="#444"/>')
     for label, value in plot.limits:
         parts.append(f'<line x1="{sx(value):.1f}" y1="{top}" x2="{sx(value):.1f}" y2="{bottom}" stroke="#c0392b" '

@@ -9,20 +9,28 @@ from .document import Report, Table
 from .numbers import format_cell
 
 
-def render_table(table: Table) -> str:
-    """A table with aligned columns: text left, numbers right."""
+def render_table(table: Table, width: int = 120) -> str:
+    """A table with aligned columns: text left, numbers right; a last ``longtext`` column wraps."""
     header = [c.title for c in table.columns]
     body = [[format_cell(v, c.style) for v, c in zip(row, table.columns)] for row in table.rows]
+    wraps = bool(table.columns) and table.columns[-1].style == "longtext"
     widths = [max(len(h), *(len(r[i]) for r in body)) if body else len(h) for i, h in enumerate(header)]
-    left = [c.style in ("text", "verdict") for c in table.columns]
+    if wraps:
+        widths[-1] = max(len(header[-1]), width - sum(w + 2 for w in widths[:-1]), 30)
+    left = [c.style in ("text", "verdict", "longtext") for c in table.columns]
 
-    def line(cells: list[str]) -> str:
-        parts = [cell.ljust(w) if is_left else cell.rjust(w) for cell, w, is_left in zip(cells, widths, left)]
-        return "  ".join(parts).rstrip()
+    def lines_of(cells: list[str]) -> list[str]:
+        last = textwrap.wrap(cells[-1], widths[-1]) or [""] if wraps else [cells[-1]]
+        first = [cell.ljust(w) if is_left else cell.rjust(w) for cell, w, is_left in zip(cells[:-1], widths, left)]
+        out = ["  ".join([*first, last[0].ljust(widths[-1]) if left[-1] else last[0].rjust(widths[-1])]).rstrip()]
+        indent = sum(w + 2 for w in widths[:-1])
+        out += [" " * indent + more for more in last[1:]]
+        return out
 
-    lines = [table.title, line(header), "  ".join("-" * w for w in widths)]
-    lines += [line(r) for r in body]
-    lines += table.notes
+    lines = [table.title, *lines_of(header), "  ".join("-" * w for w in widths)]
+    for row in body:
+        lines += lines_of(row)
+    lines += [textwrap.fill(note, width) for note in table.notes]
     return "\n".join(lines)
 
 
@@ -33,7 +41,7 @@ def render_text(report: Report, width: int | None = None) -> str:
     if report.facts:
         label_width = max(len(label) for label, _ in report.facts)
         parts.append("\n".join(f"{label:<{label_width}}  {text}" for label, text in report.facts))
-    parts += [render_table(t) for t in report.tables]
+    parts += [render_table(t, width) for t in report.tables]
     if report.notes:
         parts.append("\n".join(textwrap.fill(n, width) for n in report.notes))
     parts.append(textwrap.fill(report.caution, width))
