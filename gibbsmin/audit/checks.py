@@ -23,7 +23,7 @@ import numpy as np
 
 from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
-from ..errors import GibbsminError, InputError, UnknownSpeciesError
+from ..errors import GibbsminError, UnknownSpeciesError
 from ..thermo import SpeciesDatabase, default_database
 from .plant import Limit, Plant, UnitSpec
 from .table import TableStream
@@ -361,7 +361,7 @@ def audit_unit(plant: Plant, spec: UnitSpec, db: SpeciesDatabase) -> UnitAudit:
         checks.append(_splitter_check(where, inlets, outlets, plant.limits["splitter_composition"]))
     try:
         checks.append(_energy_check(where, spec, inlets, outlets, plant.limits["energy_balance"]))
-    except (InputError, UnknownSpeciesError) as exc:
+    except (GibbsminError, UnknownSpeciesError) as exc:
         checks.append(Check(where, "energy balance", None, "K", "warn", f"cannot be computed: {exc}"))
     findings: list[ReactionFinding] = []
     eq, stated = None, {}

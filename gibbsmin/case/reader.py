@@ -11,7 +11,7 @@ from pathlib import Path
 from ..errors import InputError, UnknownSpeciesError
 from ..streams import CARBON_BASES, Stream
 from ..thermo import SpeciesDatabase, default_database
-from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal
+from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal, to_fraction
 from .features import missing
 from .spec import CASE_KEYS, Case, CurveSpec, Feed, ReportSpec, SpeciesSpec, Stage
 from .toml import CaseError, NotAvailableError, Section, TomlSource, kind
@@ -64,7 +64,18 @@ def _read(source: TomlSource, db: SpeciesDatabase | None) -> Case:
     root.finish(_TABLES)
     case = Case(title, feeds, species, stages, report, curve, source.name)
     _check_energy_inputs(root, case)
+    _check_frozen(root, case)
     return case
+
+
+def _check_frozen(root: Section, case: Case) -> None:
+    fed = case.mixed_feed()
+    for name in case.species.frozen:
+        if fed.get(name, 0.0) <= 0.0:
+            section = root.section("species")
+            assert section is not None
+            raise section.error("frozen", f"{name} is not in the feed; a frozen species keeps its feed amount, "
+                                "so it must be fed (or leave it out of the species set with exclude)")
 
 
 def _need(section: Section, key: str, feature: str) -> None:
@@ -121,6 +132,8 @@ def _read_feed(section: Section, normal: ReferenceConditions, db: SpeciesDatabas
     carbon_basis = section.get("carbon_basis", choice(*CARBON_BASES), "hydrocarbon")
     normalize = section.get("normalize", read_bool, False)
     components = _components(section, db)
+    if unit is not None:
+        _check_unit(section, unit)
     is_composition = basis == "dry" or (unit is not None and not _is_flow_unit(unit))
     try:
         if is_composition:
@@ -144,7 +157,11 @@ def _read_feed(section: Section, normal: ReferenceConditions, db: SpeciesDatabas
     except CaseError:
         raise
     except (InputError, UnknownSpeciesError) as exc:
-        raise section.error(_key_of_stream_error(str(exc), components), str(exc)) from None
+        key = _key_of_stream_error(str(exc), components)
+        message = str(exc).replace("pass normalize=True", "add normalize = true")
+        if key is not None and message.startswith(f"{key}: "):
+            message = message[len(key) + 2:]  # the key is named in front already
+        raise section.error(key, message) from None
     steam_rate = section.get("steam_rate", None, None)
     ratio = section.get("steam_to_carbon", read_positive_number, None)
     if steam_rate is not None and ratio is not None:
@@ -175,6 +192,21 @@ def _key_of_stream_error(message: str, components: Mapping[str, object]) -> str 
     if head.startswith("H2O") or "water content" in message:
         return "water_content"
     return None
+
+
+def _check_unit(section: Section, unit: str) -> None:
+    """A feed unit must be a flow or a composition unit; say which kind of flow it is not, if neither."""
+    if _is_flow_unit(unit):
+        return
+    try:
+        to_fraction(f"1 {unit}")
+    except InputError as exc:
+        if "unknown composition unit" not in str(exc):
+            raise section.error("unit", str(exc)) from None
+        try:
+            from_mol_s(1.0, unit, molar_mass=1.0)
+        except InputError as flow_exc:
+            raise section.error("unit", f"{flow_exc}; or a composition such as mol% with a total") from None
 
 
 def _is_flow_unit(unit: str) -> bool:

@@ -10,7 +10,7 @@ import numpy as np
 import scipy.optimize
 
 from ..equilibrium import Equilibrium
-from ..errors import InputError, UnknownSpeciesError
+from ..errors import ConvergenceError, GibbsminError, UnknownSpeciesError
 from ..settle import equilibrate
 from ..thermo import SpeciesDatabase, default_database
 from .features import FEATURES
@@ -106,7 +106,9 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
             inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
         try:
             eq = _settle_stage(case, stage, inlet, db)
-        except (InputError, UnknownSpeciesError) as exc:
+        except ConvergenceError:
+            raise
+        except (GibbsminError, UnknownSpeciesError) as exc:
             raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
         results.append(StageResult(stage, inlet, eq))
         inlet = Inlet({"outlet of " + stage.name: {s: n for s, n in eq.amounts.items() if n > 0.0}},
@@ -132,7 +134,9 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
     energy = {}
     if FEATURES["energy"].available() and inlet.temperatures_known:
         energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
-    feed = dict(inlet.streams) if energy else inlet.mixed
+    if stage.gas != "ideal":
+        energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
+    feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
     return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
                        inert=species.frozen, method=stage.method, db=db,
                        allow_extrapolation=species.allow_extrapolation, **energy)

@@ -280,7 +280,8 @@ class Section:
             folded = [a for a in allowed if a.casefold() == key.casefold()]
             suggestion = folded or close
             hint = f"did you mean {suggestion[0]!r}?" if suggestion else f"allowed keys: {', '.join(allowed)}"
-            raise self.error(key, f"unknown key in [{self.name}]; {hint}")
+            where = f"in [{self.name}]" if self.path else "at the top level (a table name)"
+            raise self.error(key, f"unknown key {where}; {hint}")
 
 
 def kind(value: object) -> str:
