@@ -91,6 +91,20 @@ def _scan_lines(text: str) -> Iterator[tuple[int, str, int]]:
         yield number, "".join(out), start_depth
 
 
+def _first_equals(line: str) -> int | None:
+    """Position of the first '=' outside quotes (a quoted key may hold '=')."""
+    quote = None
+    for i, ch in enumerate(line):
+        if quote:
+            if ch == quote:
+                quote = None
+        elif ch in "\"'":
+            quote = ch
+        elif ch == "=":
+            return i
+    return None
+
+
 def _split_key(text: str) -> tuple[str, ...] | None:
     """The parts of a (possibly dotted, possibly quoted) TOML key, read by tomllib itself; None if not a key."""
     try:
@@ -160,8 +174,9 @@ class TomlSource:
                     table = self._with_array_indices(parts, counters)
                     self._lines.setdefault(table, number)
                 continue
-            if "=" in stripped:
-                parts = _split_key(stripped.split("=", 1)[0])
+            equals = _first_equals(stripped)
+            if equals is not None:
+                parts = _split_key(stripped[:equals])
                 if parts is not None:
                     self._lines.setdefault((*table, *parts), number)
 
