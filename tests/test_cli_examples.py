@@ -1,0 +1,117 @@
+"""The shipped classic cases, end to end through the command line, checked against Cantera's equilibrium.
+
+Cantera 3.2 (Goodwin et al., 2025) is handed the same NASA 7-coefficient data
+(tests/cantera_reference.py), so agreement tests the case reading, the staging,
+the energy balance and the reports, not the data.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from gibbsmin.case import FEATURES
+from gibbsmin.cli import main
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
+cantera_reference = pytest.importorskip("cantera_reference")
+needs_energy = pytest.mark.skipif(not FEATURES["energy"].available(), reason="the energy balance has not landed")
+
+
+def settle_json(name, capsys):
+    code = main(["settle", str(EXAMPLES / name), "--json"])
+    out, err = capsys.readouterr()
+    assert code == 0, err
+    return json.loads(out)
+
+
+def fractions(stage):
+    return {s: e["mole_fraction_in_phase"] for s, e in stage["species"].items() if e["phase"] == "gas"}
+
+
+def cantera_hp(species, feed_mol_s, T_feed, P):
+    gas = cantera_reference.cantera_gas(species)
+    gas.TPX = T_feed, P, {s: n for s, n in feed_mol_s.items() if s in species and n > 0}
+    gas.equilibrate("HP")
+    return gas
+
+
+def test_n2o4_kp_in_atm(capsys):
+    doc = settle_json("n2o4.toml", capsys)
+    y = fractions(doc)
+    P_atm = doc["P_Pa"] / 101325.0
+    gas = cantera_reference.cantera_gas(["N2O4", "NO2"])
+    gas.TPX = doc["T_K"], doc["P_Pa"], {"N2O4": 1.0}
+    gas.equilibrate("TP")
+    assert y["NO2"] == pytest.approx(gas["NO2"].X[0], rel=1e-6)
+    kp_cantera = gas["NO2"].X[0] ** 2 / gas["N2O4"].X[0] * P_atm  # atm^1
+    text_code = main(["settle", str(EXAMPLES / "n2o4.toml")])
+    table = capsys.readouterr().out
+    assert text_code == 0 and "atm^1" in table
+    row = next(line for line in table.splitlines() if line.startswith("outlet  N2O4 = 2 NO2"))
+    kp_shown, q_shown = float(row.split()[5]), float(row.split()[6])
+    assert kp_shown == pytest.approx(kp_cantera, rel=1e-5)
+    assert q_shown == pytest.approx(kp_shown, rel=1e-5)  # at equilibrium the quotient equals Kp
+
+
+@needs_energy
+def test_ammonia_bed_adiabatic_outlet_and_curve(capsys):
+    doc = settle_json("ammonia_bed.toml", capsys)
+    species = ["N2", "H2", "NH3", "CH4", "Ar"]  # CH4 and Ar cannot react in this set: frozen either way
+    gas = cantera_hp(species, doc["feed_mol_s"], 380 + 273.15, doc["P_Pa"])
+    assert doc["T_K"] == pytest.approx(gas.T, abs=0.02)
+    assert fractions(doc)["NH3"] == pytest.approx(gas["NH3"].X[0], rel=1e-5)
+    curve = doc["curve"]
+    assert len(curve["T_K"]) == 51 and curve["quantity"] == "mole fraction of NH3"
+    assert all(a > b for a, b in zip(curve["value"], curve["value"][1:]))  # NH3 falls with T (exothermic)
+    line = curve["lines"][0]
+    assert line["T_K"][0] == pytest.approx(380 + 273.15, abs=1e-3) and line["T_K"][-1] == pytest.approx(doc["T_K"], abs=1e-3)
+
+
+@needs_energy
+def test_so2_converter_beds_with_intercooling(capsys):
+    doc = settle_json("so2_converter.toml", capsys)
+    species = ["SO2", "O2", "SO3", "N2"]
+    bed1, bed2, bed3 = doc["stages"]
+    gas = cantera_hp(species, doc["feed_mol_s"], 420 + 273.15, bed1["P_Pa"])
+    assert bed1["T_K"] == pytest.approx(gas.T, abs=0.02)
+    outlet1 = {s: e["amount_mol"] for s, e in bed1["species"].items()}
+    gas = cantera_hp(species, outlet1, 440 + 273.15, bed2["P_Pa"])
+    assert bed2["T_K"] == pytest.approx(gas.T, abs=0.02)
+    assert fractions(bed2)["SO3"] == pytest.approx(gas["SO3"].X[0], rel=1e-5)
+    assert bed3["duty_W"] == pytest.approx(-0.2e6, rel=1e-9)  # the stated shell loss
+    conversion = 1 - bed3["species"]["SO2"]["amount_mol"] / doc["feed_mol_s"]["SO2"]
+    assert doc["curve"]["lines"][-1]["value"][-1] == pytest.approx(conversion, rel=1e-9)
+    assert conversion > 0.95
+
+
+def test_shift_held_at_its_approach(capsys):
+    doc = settle_json("shift_approach.toml", capsys)
+    # With CH4 and N2 frozen only the shift reacts; it has no change in moles, so its composition is that of
+    # shift equilibrium at T + 12 K whatever the dilution (exothermic: positive approach = settles hotter).
+    gas = cantera_reference.cantera_gas(["CO", "H2O", "CO2", "H2"])
+    feed = {s: n for s, n in doc["feed_mol_s"].items() if s in ("CO", "H2O", "CO2", "H2")}
+    gas.TPX = doc["T_K"] + 12.0, 1e5, feed
+    gas.equilibrate("TP")
+    total = sum(doc["species"][s]["amount_mol"] for s in feed)
+    for s in feed:
+        assert doc["species"][s]["amount_mol"] / total == pytest.approx(gas[s].X[0], rel=1e-6)
+    code = main(["settle", str(EXAMPLES / "shift_approach.toml")])
+    table = capsys.readouterr().out
+    assert code == 0
+    row = next(line for line in table.splitlines() if line.startswith("outlet  water-gas shift"))
+    assert "12.00" in row
+    assert "carbon possible" in table  # shift gas at 430 degC is beyond graphite saturation by Boudouard
+
+
+@needs_energy
+def test_html_of_a_curve_case_is_written(tmp_path, capsys):
+    out = tmp_path / "ammonia.html"
+    assert main(["settle", str(EXAMPLES / "ammonia_bed.toml"), "--html", str(out), "--csv",
+                 str(tmp_path / "a.csv"), "--xlsx", str(tmp_path / "a.xlsx"), "--quiet"]) == 0
+    page = out.read_text()
+    assert page.count("<svg") == 2 and "Equilibrium curve and operating lines" in page
+    assert (tmp_path / "a.csv").read_text().startswith("\"gibbsmin 0.1.0 - Invented ammonia")
+    assert capsys.readouterr().out == ""
