@@ -129,3 +129,31 @@ def test_console_script_runs_in_a_subprocess(tmp_path):
     assert done.returncode == 2
     assert done.stderr.count("\n") == 1 and "Traceback" not in done.stderr
     assert "line 5" in done.stderr and "conditions.T" in done.stderr
+
+
+def test_duty_agrees_with_cantera_enthalpies(reformer_json):
+    cantera_reference = pytest.importorskip("cantera_reference")
+    from gibbsmin.case import FEATURES
+
+    if not FEATURES["energy"].available():
+        pytest.skip("the energy balance has not landed")
+    # Feeds at 520 degC, outlet at 865 degC: the duty is the enthalpy rise, species by species (ideal gas).
+    feed = reformer_json["feed_mol_s"]
+    outlet = {s: e["amount_mol"] for s, e in reformer_json["species"].items() if e["amount_mol"] > 1e-12}
+    names = sorted(set(feed) | set(outlet))
+    gas = cantera_reference.cantera_gas(names)
+
+    def enthalpy(amounts, T):
+        gas.TPX = T, 1e5, amounts
+        return gas.enthalpy_mole / 1000.0 * sum(amounts.values())  # J/kmol to J/mol, times mol/s
+
+    duty = enthalpy(outlet, 865 + 273.15) - enthalpy(feed, 520 + 273.15)
+    assert reformer_json["duty_W"] == pytest.approx(duty, rel=1e-6)
+
+
+def test_reformer_report_shows_approach_and_carbon_verdict(capsys):
+    code, out, _ = run(["settle", REFORMER], capsys)
+    assert code == 0
+    row = next(line for line in out.splitlines() if line.startswith("outlet  steam methane reforming"))
+    assert row.split()[-1] == "0.00"  # an equilibrium outlet has a zero approach
+    assert "no carbon" in out and "duty [MW]" in out

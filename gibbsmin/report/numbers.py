@@ -20,10 +20,9 @@ def format_cell(value: object, style: str) -> str:
         return _fixed_or_exp(x, 4, 1e-3)
     if style == "flow":
         return _fixed_or_exp(x, 2, 1e-2) if abs(x) < 1e7 else f"{x:.6g}"
-    if style == "fixed2":
-        return f"{x:.2f}"
-    if style == "fixed1":
-        return f"{x:.1f}"
+    if style in ("fixed2", "fixed1"):
+        decimals = 2 if style == "fixed2" else 1
+        return f"{round(x, decimals) + 0.0:.{decimals}f}"  # + 0.0: a rounded -0.001 reads 0.00, not -0.00
     if style == "exp":
         return f"{x:.3e}"
     if style == "figure":
