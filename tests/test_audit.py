@@ -208,3 +208,15 @@ def test_mass_flows_liquid_phase_and_semicolons(tmp_path):
     stream = table["W"]
     assert stream.phase == "liquid"
     assert stream.flows == pytest.approx({"H2O(l)": 100 * KMOL_H}, rel=1e-4)  # M(H2O) = 18.015 g/mol
+
+
+def test_cells_are_named_by_their_place_in_the_sheet_even_after_blank_rows(tmp_path):
+    from gibbsmin.errors import InputError
+
+    path = write(tmp_path, "Stream,unit,1\n\nTemperature,degC,40\nPressure,bar,2\nCH4,mol% dry,90\n"
+                           "CO2,mol% (dry),10\nH2O,kmol/h,x\nDry flow,kmol/h,10\n")
+    with pytest.raises(InputError, match=r"cell C7 \(stream 1, H2O\): 'x' is not a number"):
+        read_stream_table(path)
+    path.write_text(path.read_text().replace(",x\n", ",5\n"))
+    assert read_stream_table(path)["1"].flows == pytest.approx({"CH4": 9 * KMOL_H, "CO2": 1 * KMOL_H,
+                                                                "H2O": 5 * KMOL_H})

@@ -31,7 +31,6 @@ import scipy.optimize
 
 from gibbsmin.energy import mixture_enthalpy
 from gibbsmin.restricted import equilibrate_with_approach
-from gibbsmin.settle import equilibrate
 
 HERE = Path(__file__).resolve().parent
 ATM = 101325.0

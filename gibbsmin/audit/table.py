@@ -39,7 +39,7 @@ from pathlib import Path
 from ..errors import InputError, UnknownSpeciesError
 from ..streams import Stream
 from ..thermo import SpeciesDatabase, default_database
-from ..units import NORMAL_DIN_1343, ReferenceConditions, from_mol_s, to_fraction, to_kelvin, to_mol_s, to_pascal
+from ..units import NORMAL_DIN_1343, ReferenceConditions, to_fraction, to_kelvin, to_mol_s, to_pascal
 
 __all__ = ["ROW_LABELS", "StreamTable", "TableStream", "read_stream_table"]
 
@@ -207,12 +207,14 @@ def read_stream_table(path: str | os.PathLike[str], *, normal: ReferenceConditio
     db = db or default_database()
     path = Path(path)
     rows, name = _read_rows(path)
+    # Keep each row's number in the sheet for messages, then drop the empty rows.
+    row_number = {id(r): i + 1 for i, r in enumerate(rows)}
     rows = [r for r in rows if any(_text(c) for c in r)]
     if not rows:
         raise InputError(f"{name} is empty; the first row must hold 'Stream' and the stream numbers")
     header = rows[0]
     if _label(_text(header[0])) != "stream":
-        raise InputError(f"{name}, cell A1: the first row must start with 'Stream' followed by the unit column "
+        raise InputError(f"{name}, cell A{row_number[id(header)]}: the first row must start with 'Stream' followed by the unit column "
                          f"and the stream numbers, not {_text(header[0])!r}")
     ids = [(j, _text(c)) for j, c in enumerate(header) if j >= 2 and _text(c)]
     if not ids:
@@ -220,11 +222,10 @@ def read_stream_table(path: str | os.PathLike[str], *, normal: ReferenceConditio
     seen: set[str] = set()
     for j, stream_id in ids:
         if stream_id in seen:
-            raise InputError(f"{name}, cell {_column_letter(j)}1: stream {stream_id!r} appears twice")
+            raise InputError(f"{name}, cell {_column_letter(j)}{row_number[id(header)]}: stream {stream_id!r} appears twice")
         seen.add(stream_id)
     properties: dict[str, tuple[int, str, list[object]]] = {}
     species_rows: list[tuple[int, str, str, list[object]]] = []
-    row_number = {id(r): i + 1 for i, r in enumerate(rows)}
     for row in rows[1:]:
         label = _text(row[0]) if row else ""
         if not label or label.startswith("#"):
@@ -332,23 +333,17 @@ def _read_column(name: str, j: int, stream_id: str, properties, species_rows, no
 
 
 def _composition_basis(unit: str) -> tuple[str | None, str]:
-    """('wet' or 'dry', the fraction unit) for a composition unit; (None, unit) for a flow unit."""
-    text = unit.strip()
-    lowered = text.lower()
-    for marker in (" dry", "(dry)", " db", "dry "):
-        if lowered.endswith(marker.strip()) or marker in lowered:
-            bare = lowered.replace("(dry)", "").replace("dry", "").replace(" db", "").strip()
-            return "dry", bare
-    for wet in (" wet", "(wet)"):
-        if lowered.endswith(wet.strip()):
-            return "wet", lowered.replace("(wet)", "").replace("wet", "").strip()
+    """('wet' or 'dry', the fraction unit) for a composition unit ('mol% dry', 'ppmv (dry)'); (None, unit) for a flow."""
+    words = unit.strip().replace("(", " ").replace(")", " ").split()
+    basis = "dry" if "dry" in words else "wet"
+    bare = " ".join(w for w in words if w not in ("dry", "wet")) or unit.strip()
     try:
-        to_fraction(f"1 {text}")
+        to_fraction(f"1 {bare}")
     except InputError as exc:
         if "unknown composition unit" in str(exc):
-            return None, text
-        return "wet", text  # a composition unit the reader refuses with its own reason (ppm, wt%)
-    return "wet", text
+            return None, unit.strip()
+        # A composition unit the reader refuses with its own reason (ppm, wt%): let the conversion say why.
+    return basis, bare
 
 
 def _total(quantity, flows, wet, dry, db) -> float:
@@ -404,7 +399,3 @@ def _combine(flows, wet, dry, stated_total, dry_flow, where, stream_id, name) ->
     if water:
         result["H2O"] = water
     return result, total
-
-
-def describe_flow(mol_s: float, unit: str = "kmol/h") -> str:
-    return f"{from_mol_s(mol_s, unit):.6g} {unit}"
