@@ -112,6 +112,6 @@ def test_html_of_a_curve_case_is_written(tmp_path, capsys):
     assert main(["settle", str(EXAMPLES / "ammonia_bed.toml"), "--html", str(out), "--csv",
                  str(tmp_path / "a.csv"), "--xlsx", str(tmp_path / "a.xlsx"), "--quiet"]) == 0
     page = out.read_text()
-    assert page.count("<svg") == 2 and "Equilibrium curve and operating lines" in page
+    assert page.count("<svg") == 2 and "Equilibrium curve at 145 bar and operating lines" in page
     assert (tmp_path / "a.csv").read_text().startswith("\"gibbsmin 0.1.0 - Invented ammonia")
     assert capsys.readouterr().out == ""

@@ -210,15 +210,15 @@ def curve_plot(result: CaseResult) -> Plot | None:
     scale = 1.0 if curve.spec.conversion else 100.0
     what = f"conversion of {curve.spec.species} [-]" if curve.spec.conversion else f"{curve.spec.species} [mol%]"
     x = tuple(from_kelvin(T, spec.temperature_unit) for T in curve.T)
-    series = [Series(f"equilibrium at {pressure_text(curve.P, spec.pressure_unit)}", x,
-                     tuple(scale * v for v in curve.value))]
+    series = [Series("equilibrium", x, tuple(scale * v for v in curve.value))]
     for label, T_line, v_line in curve.lines:
         finite = [(from_kelvin(T, spec.temperature_unit), scale * v) for T, v in zip(T_line, v_line)
                   if math.isfinite(T)]
         if finite:
             style = "dashed" if label.startswith("cooling") else ("line+points" if len(finite) > 1 else "points")
             series.append(Series(label, tuple(p[0] for p in finite), tuple(p[1] for p in finite), style))
-    return Plot("Equilibrium curve and operating lines", "line",
+    pressure = f"{from_pascal(curve.P, spec.pressure_unit):.4g} {spec.pressure_unit}"
+    return Plot(f"Equilibrium curve at {pressure} and operating lines", "line",
                 f"temperature [{spec.temperature_unit}]", what, tuple(series))
 
 
