@@ -16,24 +16,31 @@ from .result import SolverResult, merge
 __all__ = ["solve", "SOLVERS", "Certificate", "CertificateBatch", "Tolerances", "SolverResult", "NewtonOptions", "certify"]
 
 
-def _auto(problem: Problem, start: SolverResult | None) -> SolverResult:
+def _certified(problem: Problem, result: SolverResult) -> tuple[SolverResult, CertificateBatch]:
+    return result, certify(problem, result)
+
+
+def _auto(problem: Problem, start: SolverResult | None, chains: int | None
+          ) -> tuple[SolverResult, CertificateBatch]:
     """Newton first; every point it cannot certify is solved again on the cone."""
-    result = solve_newton(problem, start=start)
-    bad = np.flatnonzero(~certify(problem, result).certified)
+    result, certificates = _certified(problem, solve_newton(problem, start=start, chains=chains))
+    bad = np.flatnonzero(~certificates.certified)
     if bad.size == 0:
-        return result
-    return merge(result, solve_convex(problem.take(bad)), bad)
+        return result, certificates
+    return _certified(problem, merge(result, solve_convex(problem.take(bad)), bad))
 
 
-SOLVERS: dict[str, Callable[[Problem, SolverResult | None], SolverResult]] = {
-    "newton": lambda problem, start: solve_newton(problem, start=start),
-    "convex": lambda problem, start: solve_convex(problem),
+Solver = Callable[[Problem, "SolverResult | None", "int | None"], tuple[SolverResult, CertificateBatch]]
+
+SOLVERS: dict[str, Solver] = {
+    "newton": lambda problem, start, chains: _certified(problem, solve_newton(problem, start=start, chains=chains)),
+    "convex": lambda problem, start, chains: _certified(problem, solve_convex(problem)),
     "auto": _auto,
 }
 
 
-def solve(problem: Problem, method: str = "auto",
-          start: SolverResult | None = None) -> tuple[SolverResult, CertificateBatch]:
+def solve(problem: Problem, method: str = "auto", start: SolverResult | None = None,
+          chains: int | None = None) -> tuple[SolverResult, CertificateBatch]:
     """Solve a batch of problems and certify every point.
 
     Parameters
@@ -44,8 +51,10 @@ def solve(problem: Problem, method: str = "auto",
         wherever Newton's answer cannot be certified.
     start : SolverResult, optional
         Warm start for Newton (ignored by "convex").
+    chains : int, optional
+        Newton solves the batch in this many runs of neighbours, each point
+        warm-started from the one before (see ``solve_newton``).
     """
     if method not in SOLVERS:
         raise InputError(f"unknown method {method!r}; choose one of {', '.join(SOLVERS)}")
-    result = SOLVERS[method](problem, start)
-    return result, certify(problem, result)
+    return SOLVERS[method](problem, start, chains)

@@ -13,8 +13,7 @@ import numpy as np
 import pandas as pd
 
 from ..settle import Setup, build_problem, prepare
-from ..solve import certify, solve_convex, solve_newton
-from ..solve.result import merge
+from ..solve import solve
 from ..thermo.database import default_database
 from .grid import SweepSpec
 
@@ -35,10 +34,10 @@ def _setup(spec_json: str) -> Setup:
 def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     """The table of points first..last-1: axis values, T, P, gas mole fractions, condensed amounts, certificate.
 
-    Points are solved by Newton in runs along the last axis (each point
-    warm-started from its neighbour); any point it cannot certify is solved on
-    the cone and marked by its ``solver``; a point no solver certifies keeps
-    ``certified = False``.  No point is dropped.
+    Points are solved by the sweep's method (by default Newton in runs along
+    the last axis, each point warm-started from its neighbour, and the cone for
+    any point Newton cannot certify), marked by its ``solver``; a point no
+    solver certifies keeps ``certified = False``.  No point is dropped.
     """
     db = default_database()
     setup = _setup(spec.to_json())
@@ -57,12 +56,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     run = spec.shape[-1]
     for group in _element_groups(b):
         problem = build_problem(setup, T[group], P[group], b=b[group])
-        result = solve_newton(problem, chains=max(1, group.size // run))
-        certificates = certify(problem, result)
-        bad = np.flatnonzero(~certificates.certified)
-        if bad.size:
-            result = merge(result, solve_convex(problem.take(bad)), bad)
-            certificates = certify(problem, result)
+        result, certificates = solve(problem, spec.method, chains=max(1, group.size // run))
         keep = problem.keep
         gas_keep = keep[keep < n_gas]
         ln_y = result.ln_n_gas - np.log(np.exp(result.ln_n_gas).sum(axis=1, keepdims=True))
