@@ -40,14 +40,15 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from numpy.typing import NDArray
 
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError
-from .eos import GasModel, GasProperties, IdealGasModel, gas_model_for_species
+from .eos import (GasModel, GasProperties, IdealGasModel, canonical_model_name, default_interactions,
+                  gas_model_for_species)
 from .settle import Setup, build_problem, solve_fixed, to_equilibrium
 from .solve import SolverResult, certify, solve
 from .system import Problem, System
@@ -94,6 +95,10 @@ class GasPhase:
         All gas species of the System, in its order.
     ideal_species : tuple of str
         Gas species treated as ideal for lack of critical constants.
+    kij : mapping
+        The non-zero binary interaction parameters in use, ``{(a, b): kij}``.
+    kij_origin : str
+        Where they come from: "shipped table", "none" (all zero) or "given".
     """
 
     name: str
@@ -101,6 +106,8 @@ class GasPhase:
     described: NDArray[np.int_]
     gas_names: tuple[str, ...]
     ideal_species: tuple[str, ...]
+    kij: Mapping[tuple[str, str], float] = field(default_factory=dict)
+    kij_origin: str = "none"
 
     @property
     def is_ideal(self) -> bool:
@@ -158,7 +165,7 @@ class GasPhase:
 
 
 def gas_phase(system: System, gas: str = "peng-robinson", *,
-              kij: Mapping[tuple[str, str], float] | None = None,
+              kij: str | Mapping[tuple[str, str], float] | None = "shipped",
               quantum_correction: bool = True) -> GasPhase:
     """The gas model ``gas`` for the gas species of a System.
 
@@ -167,9 +174,13 @@ def gas_phase(system: System, gas: str = "peng-robinson", *,
     system : System
     gas : {"ideal", "peng-robinson", "srk"}
         Model name ("pr" and "soave-redlich-kwong" are accepted too).
-    kij : mapping, optional
-        Binary interaction parameters by species pair, e.g.
-        ``{("H2", "NH3"): 0.05}`` [-]; zero for every pair not given.
+    kij : "shipped", "none" or mapping
+        Binary interaction parameters [-].  "shipped" (the default): the
+        published values of ``species/interactions.toml`` for this model,
+        zero for every other pair (the table has Peng-Robinson values only).
+        "none" (or None): all zero.  A mapping such as ``{("H2", "NH3"): 0.05}``:
+        exactly those pairs, zero for the rest (start from
+        ``gibbsmin.eos.default_interactions().for_model(gas)`` to extend the table).
     quantum_correction : bool
         Effective critical constants for H2 and He (Gunn, Chueh and Prausnitz;
         see ``gibbsmin.eos.quantum``).
@@ -187,14 +198,36 @@ def gas_phase(system: System, gas: str = "peng-robinson", *,
     # The registry validates the name and refuses a cubic without constants; with no species to
     # describe, asking it for the first gas species gets the right message.
     asked = records or list(gas_records[:1])
+    names = [r.name for r in records]
+    pairs, origin = _interaction_pairs(kij, gas, names)
     model = gas_model_for_species(gas, [r.name for r in asked], database=SpeciesDatabase(asked),
-                                  kij=_kij_matrix(kij, [r.name for r in records], gas_names),
+                                  kij=_kij_matrix(pairs, names, gas_names) if pairs else "none",
                                   quantum_correction=quantum_correction)
     if isinstance(model, IdealGasModel):
         return GasPhase("ideal", IdealGasModel(len(gas_names)), np.arange(len(gas_names)), gas_names, ())
-    names = [r.name for r in records]
     ideal = tuple(name for name in gas_names if name not in names)
-    return GasPhase(model.name, model, described, gas_names, ideal)
+    used = {pair: float(value) for pair, value in pairs.items() if value != 0.0}
+    return GasPhase(model.name, model, described, gas_names, ideal, used, origin if used else "none")
+
+
+KIJ_CHOICES = ("shipped", "none")
+
+
+def _interaction_pairs(kij: str | Mapping[tuple[str, str], float] | None, gas: str,
+                       names: list[str]) -> tuple[Mapping[tuple[str, str], float], str]:
+    """The kij pairs asked for, and a word for where they come from."""
+    if kij is None:
+        return {}, "none"
+    if isinstance(kij, str):
+        if kij not in KIJ_CHOICES:
+            raise InputError(f"kij={kij!r} is not understood: give 'shipped' (the published table, the default), "
+                             "'none' (all zero) or a mapping of species pairs to values, e.g. {('H2', 'NH3'): 0.05}")
+        if kij == "none" or canonical_model_name(gas) == "ideal":
+            return {}, "none"
+        return default_interactions().for_model(gas, names), "shipped table"
+    if not isinstance(kij, Mapping):
+        raise InputError(f"kij must be 'shipped', 'none' or a mapping of species pairs to values, got {kij!r}")
+    return kij, "given"
 
 
 def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
@@ -214,6 +247,8 @@ def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
         i, j = names.index(pair[0]), names.index(pair[1])
         if i == j:
             raise InputError(f"kij pair {pair!r} names one species twice; k_ii is zero by definition")
+        if isinstance(value, bool) or not isinstance(value, (int, float, np.floating)) or not -1.0 < value < 1.0:
+            raise InputError(f"kij for {pair[0]}-{pair[1]} must be a number between -1 and 1, got {value!r}")
         k[i, j] = k[j, i] = float(value)
     return k
 
@@ -383,12 +418,20 @@ def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, re
         "gas_model_iterations": iterations,
         "ln_phi_change": change,
         "gas_model_note": _note(phase, ideal_fraction),
+        "binary_interactions": {f"{a}-{b}": v for (a, b), v in phase.kij.items()},
     })
 
 
+def _kij_note(phase: GasPhase) -> str:
+    if not phase.kij:
+        return "kij = 0 for every pair"
+    pairs = ", ".join(f"{a}-{b} {v:+.4g}" for (a, b), v in phase.kij.items())
+    return f"kij from the {phase.kij_origin} ({pairs}; zero for the other pairs)"
+
+
 def _note(phase: GasPhase, ideal_fraction: float) -> str:
-    text = (f"{phase.name} with van der Waals mixing; certificate stationarity uses phi at the final "
-            "composition")
+    text = f"{phase.name} with van der Waals mixing, {_kij_note(phase)}; certificate stationarity uses phi at " \
+           "the final composition"
     if phase.ideal_species:
         text += (f"; {', '.join(phase.ideal_species)} have no critical constants: treated as ideal gases "
                  f"(phi = 1) and left out of the mixture's a and b (together {ideal_fraction:.2g} of the gas)")

@@ -206,6 +206,7 @@ def equilibrate(
     inert: Sequence[str] = (),
     method: str = "auto",
     gas: str = "ideal",
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
     sensitivities: bool = False,
@@ -247,6 +248,12 @@ def equilibrate(
         The gas model; the cubic equations of state take their critical
         constants from the species data and treat species without them as
         ideal (``gibbsmin.nonideal``).  The result's ``gas_model`` names it.
+    kij : "shipped", "none" or mapping
+        Binary interaction parameters of the cubic: "shipped" (default) takes
+        the published values of ``species/interactions.toml`` (Peng-Robinson
+        only; zero for pairs it lacks), "none" sets every one to zero, a
+        mapping ``{("H2", "NH3"): 0.05}`` gives exactly those pairs.  The
+        result's ``extras["binary_interactions"]`` lists the non-zero ones used.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.
@@ -306,7 +313,11 @@ def equilibrate(
         T_span = (T, T)
     setup = prepare(inlet.total, species=species, exclude=exclude, inert=inert, T_span=T_span, db=db,
                     allow_extrapolation=allow_extrapolation)
-    phase = None if gas == "ideal" else nonideal.gas_phase(setup.system, gas)
+    if gas == "ideal" and not (kij is None or (isinstance(kij, str) and kij in nonideal.KIJ_CHOICES)
+                               or (isinstance(kij, Mapping) and not kij)):
+        raise InputError(f"kij={kij!r} only applies to a cubic gas model: pass gas='peng-robinson' or 'srk' "
+                         "with it, or leave kij out for the ideal gas")
+    phase = None if gas == "ideal" else nonideal.gas_phase(setup.system, gas, kij=kij)
     H_in = inlet.enthalpy(P, db, allow_extrapolation) if inlet.has_temperatures else None
     if phase is not None and H_in is not None:
         H_in += nonideal.inlet_residual_enthalpy(phase, inlet, P)

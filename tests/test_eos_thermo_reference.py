@@ -3,7 +3,8 @@
 Reference: Caleb Bell and contributors, thermo (Python package), classes
 PR78MIX (Peng and Robinson 1976 with the Robinson and Peng 1978 kappa above
 omega = 0.491) and SRKMIX (Soave 1972), both with van der Waals one-fluid mixing.
-Our model and thermo get the same Tc, Pc and omega (the shipped species data).
+Our model and thermo get the same Tc, Pc and omega (the shipped species data)
+and the same binary interaction parameters (the shipped kij table).
 """
 
 from __future__ import annotations
@@ -14,6 +15,7 @@ from eos_cases import AMMONIA_LOOP, METHANE_CO2, METHANOL_LOOP, MIXTURES, Mixtur
 from thermo.eos_mix import PR78MIX, SRKMIX
 
 from gibbsmin.eos import gas_model, gas_model_for_species
+from gibbsmin.eos.interactions import shipped_kij_matrix
 from gibbsmin.thermo import R
 
 THERMO_CLASSES = {"peng-robinson": PR78MIX, "srk": SRKMIX}
@@ -32,13 +34,19 @@ def _thermo_vapour(family: str, Tc, Pc, omega, y, T, P, kij=None):
     return get("Z"), np.array(get("lnphis")), get("H_dep"), get("S_dep")
 
 
+def _shipped(family: str, species) -> np.ndarray | None:
+    """The shipped kij of these species (None: all zero, as for SRK), handed to thermo as well."""
+    return shipped_kij_matrix(family, list(species))
+
+
 @pytest.mark.parametrize("family", FAMILIES)
 @pytest.mark.parametrize("mixture", MIXTURES, ids=lambda m: m.label)
 def test_matches_thermo_without_quantum_correction(family: str, mixture: Mixture):
-    # Source: thermo PR78MIX / SRKMIX (Bell, thermo); same constants, kij = 0.
+    # Source: thermo PR78MIX / SRKMIX (Bell, thermo); same constants and the shipped kij table.
     model = gas_model_for_species(family, mixture.species, quantum_correction=False)
     got = model.properties(mixture.T, mixture.P, mixture.mole_fractions)
-    Z, ln_phi, H_dep, S_dep = _thermo_vapour(family, *mixture.critical(), mixture.y, mixture.T, mixture.P)
+    Z, ln_phi, H_dep, S_dep = _thermo_vapour(family, *mixture.critical(), mixture.y, mixture.T, mixture.P,
+                                             _shipped(family, mixture.species))
     assert got.Z == pytest.approx(Z, rel=1e-10)
     np.testing.assert_allclose(got.ln_phi, ln_phi, rtol=0, atol=1e-10)
     assert got.H_res_RT == pytest.approx(H_dep / (R * mixture.T), rel=1e-8, abs=1e-12)
@@ -78,7 +86,7 @@ def test_quantum_gas_ln_phi_matches_thermo_given_effective_constants(family: str
     Tc, Pc, omega = Mixture("", species, tuple(y), T, P).critical()
     Tc[0], Pc[0], omega[0] = 43.6 / (1 + 21.8 / (2.016 * T)), 20.5e5 / (1 + 44.2 / (2.016 * T)), 0.0
     Tc[1], Pc[1], omega[1] = 10.47 / (1 + 21.8 / (4.003 * T)), 6.76e5 / (1 + 44.2 / (4.003 * T)), 0.0
-    Z, ln_phi, _, _ = _thermo_vapour(family, Tc, Pc, omega, y, T, P)
+    Z, ln_phi, _, _ = _thermo_vapour(family, Tc, Pc, omega, y, T, P, _shipped(family, species))
     got = model.properties(T, P, y)
     assert got.Z == pytest.approx(Z, rel=1e-10)
     np.testing.assert_allclose(got.ln_phi, ln_phi, rtol=0, atol=1e-10)
@@ -111,7 +119,8 @@ def test_residual_gibbs_energy_is_the_mole_fraction_average_of_ln_phi(family: st
     mixture = AMMONIA_LOOP
     model = gas_model_for_species(family, mixture.species, quantum_correction=False)
     got = model.properties(mixture.T, mixture.P, mixture.mole_fractions)
-    _, ln_phi, H_dep, S_dep = _thermo_vapour(family, *mixture.critical(), mixture.y, mixture.T, mixture.P)
+    _, ln_phi, H_dep, S_dep = _thermo_vapour(family, *mixture.critical(), mixture.y, mixture.T, mixture.P,
+                                             _shipped(family, mixture.species))
     G_dep_RT = H_dep / (R * mixture.T) - S_dep / R
     assert got.G_res_RT == pytest.approx(mixture.mole_fractions @ ln_phi, abs=1e-12)
     assert got.G_res_RT == pytest.approx(G_dep_RT, abs=1e-10)

@@ -92,7 +92,7 @@ def test_non_ideal_stationarity_recomputed_from_the_answer(gas):
     described = [s for s in gas_species if DB[s].critical is not None]
     y = eq.mole_fractions
     y_described = np.array([y[s] for s in described])
-    model = gas_model_for_species(gas, described)
+    model = gas_model_for_species(gas, described)  # with the shipped kij, as equilibrate uses by default
     ln_phi = dict(zip(described, model.ln_phi(T, P, y_described / y_described.sum())))
     worst = 0.0
     for s in gas_species:
@@ -184,7 +184,7 @@ def test_residual_enthalpy_matches_the_equation_of_state():
 
 def test_kij_by_pair_reaches_the_model():
     setup = prepare({"H2": 3.0, "N2": 1.0}, T_span=(700.0, 700.0))
-    plain = gas_phase(setup.system, "peng-robinson")
+    plain = gas_phase(setup.system, "peng-robinson", kij="none")
     tuned = gas_phase(setup.system, "peng-robinson", kij={("NH3", "H2"): 0.1})
     names = setup.system.gas_names
     y = np.array([{"H2": 0.5, "N2": 0.25, "NH3": 0.25}.get(s, 0.0) for s in names])
@@ -199,11 +199,37 @@ def test_kij_by_pair_reaches_the_model():
     np.testing.assert_allclose(tuned.ln_phi(700.0, 200e5, y)[where], direct, rtol=0, atol=1e-14)
 
 
+def test_shipped_kij_is_the_default_and_the_result_says_so():
+    # Source of the values: ChemSep PR table as served by thermo 0.6 (species/SOURCES.md, key chemsep-pr).
+    eq = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson")
+    assert eq.extras["binary_interactions"]["H2-N2"] == 0.0711
+    assert eq.extras["binary_interactions"]["N2-NH3"] == 0.2193
+    assert "kij from the shipped table" in eq.extras["gas_model_note"]
+    plain = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson", kij="none")
+    assert plain.extras["binary_interactions"] == {}
+    assert "kij = 0 for every pair" in plain.extras["gas_model_note"]
+    # The table moves ammonia by about 7e-4 mol% here: small, but measurable.
+    shift = abs(eq.mole_fractions["NH3"] - plain.mole_fractions["NH3"])
+    assert 1e-6 < shift < 1e-3
+    # SRK has no shipped values, so its answer is the same either way.
+    srk = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="srk")
+    assert srk.extras["binary_interactions"] == {}
+
+
+def test_kij_with_the_ideal_gas_or_an_unknown_word_is_refused():
+    with pytest.raises(gibbsmin.InputError, match="only applies to a cubic gas model"):
+        gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, kij={("H2", "N2"): 0.1})
+    with pytest.raises(gibbsmin.InputError, match="'shipped'.*'none'"):
+        gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson", kij="published")
+
+
 @pytest.mark.parametrize(("kij", "message"), [
     ({("H2", "NH2"): 0.1}, "no critical constants"),
     ({("H2", "CO"): 0.1}, "not a gas species of the set"),
     ({("H2", "H2"): 0.1}, "names one species twice"),
     ({"H2": 0.1}, "pairs of species names"),
+    ({("H2", "N2"): "0.1"}, "number between -1 and 1"),
+    ({("H2", "N2"): 1.5}, "number between -1 and 1"),
 ])
 def test_bad_kij_names_the_problem(kij, message):
     setup = prepare({"H2": 3.0, "N2": 1.0}, T_span=(700.0, 700.0))

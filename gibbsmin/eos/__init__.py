@@ -20,3 +20,8 @@ from .registry import GasModel as GasModel
 from .registry import gas_model as gas_model
 from .registry import gas_model_for_species as gas_model_for_species
 from .result import GasProperties as GasProperties
+from .registry import canonical_model_name as canonical_model_name
+from .interactions import InteractionParameter as InteractionParameter
+from .interactions import InteractionTable as InteractionTable
+from .interactions import default_interactions as default_interactions
+from .interactions import load_interactions as load_interactions

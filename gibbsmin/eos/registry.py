@@ -38,7 +38,8 @@ _ALIASES = {"pr": PENG_ROBINSON.name, "soave-redlich-kwong": SOAVE_REDLICH_KWONG
 GAS_MODELS: tuple[str, ...] = ("ideal", *_FAMILIES)
 
 
-def _canonical(name: str) -> str:
+def canonical_model_name(name: str) -> str:
+    """The canonical name of a gas model ("pr" -> "peng-robinson"); InputError for an unknown one."""
     key = str(name).strip().lower().replace("_", "-").replace(" ", "-")
     key = _ALIASES.get(key, key)
     if key not in GAS_MODELS:
@@ -77,7 +78,7 @@ def gas_model(
     InputError
         An unknown name, or critical constants missing for a cubic model.
     """
-    key = _canonical(name)
+    key = canonical_model_name(name)
     if key == "ideal":
         n_species = None
         for array in (Tc, names):
@@ -111,13 +112,15 @@ def gas_model_for_species(
     species: Sequence[str],
     *,
     database: SpeciesDatabase | None = None,
-    kij: ArrayLike | None = None,
+    kij: str | ArrayLike | None = "shipped",
     quantum_correction: bool = True,
 ) -> GasModel:
     """The gas model ``name`` for named species, with critical constants from the species database.
 
     Hydrogen and helium are marked as quantum gases (see :mod:`gibbsmin.eos.quantum`)
-    unless ``quantum_correction`` is False.
+    unless ``quantum_correction`` is False.  ``kij`` is "shipped" (the published
+    pairs of ``species/interactions.toml`` for this model, zero for the rest),
+    "none" or None (all zero), or a square matrix in the order of ``species``.
 
     Raises
     ------
@@ -126,7 +129,7 @@ def gas_model_for_species(
     UnknownSpeciesError
         A name the database does not hold.
     """
-    key = _canonical(name)
+    key = canonical_model_name(name)
     database = default_database() if database is None else database
     records = database.resolve(species)
     names = [r.name for r in records]
@@ -140,6 +143,12 @@ def gas_model_for_species(
             "in species/*.toml, leave the species out, or use gas='ideal'"
         )
     quantum = [_quantum_gas_of(r.elements) for r in records]
+    if isinstance(kij, str):
+        if kij not in ("shipped", "none"):
+            raise InputError(f"kij={kij!r} is not understood: give 'shipped', 'none' or a square matrix")
+        from .interactions import shipped_kij_matrix  # the table module builds on this one
+
+        kij = shipped_kij_matrix(key, names) if kij == "shipped" else None
     return gas_model(
         key,
         [r.critical.Tc for r in records],

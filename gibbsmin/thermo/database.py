@@ -23,12 +23,13 @@ _CRITICAL_KEYS = ("Tc", "Pc", "omega", "source", "CAS")
 
 @dataclass(frozen=True)
 class CriticalConstants:
-    """Critical temperature [K], critical pressure [Pa], acentric factor [-] and their source key."""
+    """Critical temperature [K], critical pressure [Pa], acentric factor [-], their source key and the CAS number."""
 
     Tc: float
     Pc: float
     omega: float
     source: str
+    CAS: str = ""
 
 
 @dataclass(frozen=True)
@@ -193,7 +194,7 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
             raise DataError(f"{context}: unknown key(s) in critical constants: {', '.join(unknown)}")
         try:
             critical = CriticalConstants(float(crit["Tc"]), float(crit["Pc"]), float(crit["omega"]),
-                                         str(crit["source"]))
+                                         str(crit["source"]), str(crit.get("CAS", "")))
         except (TypeError, ValueError):
             raise DataError(f"{context}: Tc, Pc and omega must be numbers") from None
     record = SpeciesRecord(
