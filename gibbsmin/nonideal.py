@@ -425,8 +425,8 @@ def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, re
 def _kij_note(phase: GasPhase) -> str:
     if not phase.kij:
         return "kij = 0 for every pair"
-    pairs = ", ".join(f"{a}-{b} {v:+.4g}" for (a, b), v in phase.kij.items())
-    return f"kij from the {phase.kij_origin} ({pairs}; zero for the other pairs)"
+    return (f"kij from the {phase.kij_origin} ({len(phase.kij)} pairs, listed in extras['binary_interactions']; "
+            "zero for the other pairs)")
 
 
 def _note(phase: GasPhase, ideal_fraction: float) -> str:

@@ -126,6 +126,12 @@ def test_every_feature_key_is_documented_and_says_not_available_when_missing(mon
         parse_case(text)
 
 
+def test_cubic_stage_takes_the_kij_choice():
+    base = '[feed]\nunit = "kmol/h"\nN2 = 1.0\nH2 = 3.0\n[conditions]\nT = "450 degC"\nP = "200 bar"\n'
+    assert parse_case(base + 'gas = "peng-robinson"\n').stages[0].kij == "shipped"
+    assert parse_case(base + 'gas = "peng-robinson"\nkij = "none"\n').stages[0].kij == "none"
+
+
 def test_gas_model_waits_on_the_solver(monkeypatch):
     monkeypatch.setitem(FEATURES, "gas", type(FEATURES["gas"])("gas models (test)", lambda: False))
     base = '[feed]\nunit = "kmol/h"\nN2 = 1.0\nH2 = 3.0\n[conditions]\nT = "450 degC"\nP = "200 bar"\n'

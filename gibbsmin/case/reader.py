@@ -257,6 +257,10 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     gas = section.get("gas", choice(*_GAS_MODELS), "ideal")
     if gas != "ideal":
         _need(section, "gas", "gas")
+    kij = section.get("kij", choice("shipped", "none"), "shipped")
+    if "kij" in section and gas == "ideal":
+        raise section.error("kij", "kij only goes with a cubic gas model: add gas = 'peng-robinson' (or 'srk'), "
+                            "or remove kij")
     adiabatic = section.get("adiabatic", read_bool, False)
     if adiabatic and "T" in section:
         raise section.error("T", "an adiabatic stage finds its own outlet temperature; remove T or adiabatic")
@@ -284,7 +288,7 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     stage = Stage(
         name=section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}"),
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
-        approach=approach, gas=gas, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
+        approach=approach, gas=gas, kij=kij, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
     )
     section.finish(_STAGE_KEYS)
     return stage

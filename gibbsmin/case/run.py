@@ -136,6 +136,7 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
         energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
     if stage.gas != "ideal":
         energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
+        energy["kij"] = stage.kij
     feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
     return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
                        inert=species.frozen, method=stage.method, db=db,

@@ -61,6 +61,8 @@ class Stage:
         Reaction (name or equation) to temperature approach, [K]; positive = short of equilibrium.
     gas : str
         Gas model name.
+    kij : str
+        Binary interaction parameters of a cubic: "shipped" (the published table) or "none".
     method : str
         Solver.
     """
@@ -74,6 +76,7 @@ class Stage:
     heat_input: float = 0.0
     approach: Mapping[str, float] = field(default_factory=dict)
     gas: str = "ideal"
+    kij: str = "shipped"
     method: str = "auto"
 
 
@@ -188,6 +191,7 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "approach": "table of reaction = temperature approach, e.g. \"steam methane reforming\" = '10 K' "
                     "(positive: short of equilibrium)",
         "gas": "gas model: 'ideal' (default), 'peng-robinson', 'srk'",
+        "kij": "with a cubic gas model: 'shipped' (default; the published kij table) or 'none' (all zero)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
         "name": "a name for the stage in the report",
     },

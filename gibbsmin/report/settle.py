@@ -167,20 +167,26 @@ def kp_table(result: CaseResult) -> Table | None:
     unit = _absolute(spec.pressure_unit)
     per_bar = from_pascal(1e5, unit)  # one bar in the report's unit
     rows = []
+    notes = [f"Kp = product of (partial pressure in {unit})^nu, standard state ideal gas at 1 bar; at "
+             "equilibrium the quotient Qp equals Kp"]
     for stage in result.stages:
         eq = stage.equilibrium
         for text in spec.kp:
             rx = reaction(text)
             dn = rx.delta_n_gas
-            Q_bar = quotients(eq, reactions=[rx])[rx.name]
+            Q_bar = quotients(eq, reactions=[rx])[rx.name]  # with fugacities for a non-ideal gas
             kp_unit = "-" if abs(dn) < 1e-12 else f"{unit}^{dn:g}"
             rows.append((stage.stage.name, rx.equation, float(rx.K(eq.T, unit)), Q_bar * per_bar**dn, kp_unit,
                          float(rx.enthalpy(eq.T)) / 1e3))
+            if eq.gas_model != "ideal":
+                partial = quotients(eq, reactions=[rx], ln_phi={})[rx.name] * per_bar**dn
+                notes.append(f"{stage.stage.name} ({eq.gas_model} gas): Qp is taken with fugacities phi y P in "
+                             f"place of partial pressures; {rx.equation} with partial pressures alone gives "
+                             f"{partial:.5g} {kp_unit}")
     return Table("Equilibrium constants Kp (partial pressures) and the outlet's quotient",
                  (Column("stage", "text"), Column("reaction", "text"), Column("Kp", "number"),
                   Column("Qp of outlet", "number"), Column("unit", "text"), Column("dH_r [kJ/mol]", "number")),
-                 tuple(rows), (f"Kp = product of (partial pressure in {unit})^nu, standard state ideal gas at "
-                               "1 bar; at equilibrium the quotient Qp equals Kp",), key="kp")
+                 tuple(rows), tuple(notes), key="kp")
 
 
 def carbon_table(result: CaseResult) -> Table | None:
@@ -231,11 +237,39 @@ def composition_plot(result: CaseResult) -> Plot:
                 categories=tuple(shown), values=tuple(100 * dry[s] for s in shown))
 
 
+def _gas_model_text(eq) -> str:
+    """The model's name and, for a cubic, where its kij come from and those of the main species."""
+    if eq.gas_model == "ideal":
+        return "ideal"
+    pairs = eq.extras.get("binary_interactions", {})
+    if not pairs:
+        return f"{eq.gas_model}, van der Waals mixing, kij = 0"
+    y = eq.mole_fractions
+    main = {pair: v for pair, v in pairs.items()
+            if all(y.get(s, 0.0) >= MAIN_SPECIES_FRACTION for s in _pair_species(pair, y))}
+    origin = "shipped kij" if "shipped" in eq.extras.get("gas_model_note", "") else "kij given"
+    listed = ", ".join(f"{pair} {value:+.4g}" for pair, value in main.items()) or "none between main species"
+    return (f"{eq.gas_model}, van der Waals mixing, {origin}: {listed} "
+            f"({len(pairs)} pairs in all; others 0)")
+
+
+#: Species at or above this mole fraction count as main ones in the gas-model line.
+MAIN_SPECIES_FRACTION = 1e-3
+
+
+def _pair_species(pair: str, y) -> tuple[str, str]:
+    # Names may hold '-' themselves (C4H8-1): split where both halves are species of the answer.
+    for i, char in enumerate(pair):
+        if char == "-" and pair[:i] in y and pair[i + 1:] in y:
+            return pair[:i], pair[i + 1:]
+    return pair, pair
+
+
 def settle_report(result: CaseResult) -> Report:
     """The report of a settled case: feed, stages, each outlet, approaches, Kp, carbon, certificates, caution."""
     case, spec = result.case, result.case.report
     first = result.stages[0].equilibrium
-    facts = [("case file", case.source), ("gas model", first.gas_model),
+    facts = [("case file", case.source), ("gas model", _gas_model_text(first)),
              ("amounts", "flows; the feed's flows are taken as amounts per second")]
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
     for feed in case.feeds:
