@@ -253,6 +253,34 @@ def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
     return k
 
 
+def ln_phi_of_gas(fractions: Mapping[str, float], T: float, P: float, gas: str, *,
+                  kij: str | Mapping[tuple[str, str], float] | None = "shipped",
+                  db: SpeciesDatabase | None = None) -> dict[str, float]:
+    """ln phi of each gas species of a composition at T [K] and P [Pa], as an equilibrium's gas model gives it.
+
+    ``fractions`` maps gas species to mole fraction or amount (normalised
+    here).  As in :func:`gas_phase`, species without critical constants are
+    ideal (ln phi = 0) and left out of the mixture; ``kij`` as there.
+    """
+    from .thermo.database import default_database
+
+    db = db or default_database()
+    names = [s for s, v in fractions.items() if v > 0.0]
+    if canonical_model_name(gas) == "ideal" or not names:
+        return {s: 0.0 for s in names}
+    records = db.resolve(names)
+    described = [r.name for r in records if r.critical is not None]
+    if not described:
+        raise InputError(f"none of {', '.join(names)} has critical constants, so the {gas} model describes nothing "
+                         "here; use the ideal gas")
+    pairs, _ = _interaction_pairs(kij, gas, described)
+    model = gas_model_for_species(gas, described, database=db,
+                                  kij=_kij_matrix(pairs, described, tuple(described)) if pairs else "none")
+    y = np.array([float(fractions[s]) for s in described])
+    ln_phi = dict(zip(described, model.ln_phi(float(T), float(P), y / y.sum())))
+    return {r.name: float(ln_phi.get(r.name, 0.0)) for r in records}
+
+
 # ----------------------------------------------------------------------------- the outer loop
 
 def _gas_amounts(problem: Problem, result: SolverResult, n_gas: int) -> NDArray[np.float64]:

@@ -48,6 +48,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from .equilibrium import Equilibrium
 from .errors import InputError, TemperatureRangeError, UnknownSpeciesError
+from .eos import canonical_model_name
 from .streams import Stream
 from .system import P_REF, System
 from .thermo.database import SpeciesDatabase, SpeciesRecord, default_database, nasa7_table
@@ -571,6 +572,8 @@ def gas_state(
     P: float | str | None = None,
     *,
     ln_phi: Mapping[str, float] | None = None,
+    gas: str | None = None,
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
 ) -> GasState:
     """The gas of a composition, an Equilibrium or a Stream, at its T and P.
@@ -589,15 +592,27 @@ def gas_state(
         Gas species to ln of its fugacity coefficient.  For an Equilibrium of
         a non-ideal gas model the default is its
         ``extras["fugacity_coefficients"]``.
+    gas : {"ideal", "peng-robinson", "srk"}, optional
+        For a mapping or a Stream (a measured gas): take ln phi from this gas
+        model at the gas's own T, P and composition, with ``kij`` as in
+        :func:`gibbsmin.equilibrate`.  An Equilibrium brings its own model; a
+        different one named here is refused.  Not together with ``ln_phi``.
     """
     db = db or default_database()
+    if gas is not None and ln_phi is not None:
+        raise InputError("give either ln_phi (your own fugacity coefficients) or gas (a model to compute them), "
+                         "not both")
     if isinstance(composition, (Equilibrium, Stream)):
         T = _same(composition.T, T, to_kelvin, "T", "K")
         P = _same(composition.P, P, to_pascal, "P", "Pa")
         if isinstance(composition, Equilibrium):
+            if gas is not None and canonical_model_name(gas) != composition.gas_model:
+                raise InputError(f"this equilibrium was settled with the {composition.gas_model} gas model; its "
+                                 f"fugacities come with it, so leave gas={gas!r} out (or settle it again with it)")
             ln_y = _equilibrium_ln_y(composition)
             if ln_phi is None and composition.gas_model != "ideal":
                 ln_phi = _equilibrium_ln_phi(composition)
+            gas = None
         else:
             ln_y = _ln_fractions(composition.feed_mol(), db)
     elif isinstance(composition, Mapping):
@@ -609,6 +624,10 @@ def gas_state(
         raise InputError(
             f"composition must be a mapping of species to amount, an Equilibrium or a Stream, not {type(composition).__name__}"
         )
+    if gas is not None:
+        from .nonideal import ln_phi_of_gas  # the equilibrium machinery is only needed for a non-ideal gas
+
+        ln_phi = ln_phi_of_gas({s: math.exp(v) for s, v in ln_y.items()}, T, P, gas, kij=kij, db=db)
     return GasState(T, P, ln_y, _checked_ln_phi(ln_phi, db))
 
 
@@ -724,11 +743,13 @@ def quotients(
     reactions: Sequence[str | Reaction] | None = None,
     *,
     ln_phi: Mapping[str, float] | None = None,
+    gas: str | None = None,
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
 ) -> dict[str, float]:
     """Reaction name to the quotient Q of a gas, [bar^dn] (arguments as for :func:`approach_temperatures`)."""
     db = db or default_database()
-    state = gas_state(composition, T, P, ln_phi=ln_phi, db=db)
+    state = gas_state(composition, T, P, ln_phi=ln_phi, gas=gas, kij=kij, db=db)
     return {r.name: float(np.exp(r.ln_quotient(state))) for r in _reactions_for(state, reactions, db)}
 
 
@@ -739,6 +760,8 @@ def approach_temperatures(
     reactions: Sequence[str | Reaction] | None = None,
     *,
     ln_phi: Mapping[str, float] | None = None,
+    gas: str | None = None,
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     trace: float = 1e-6,
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
@@ -757,6 +780,11 @@ def approach_temperatures(
         species above ``trace`` mole fraction (:func:`independent_reactions`).
     ln_phi : mapping, optional
         Species to ln of its fugacity coefficient, for a non-ideal gas.
+    gas, kij : optional
+        A gas model to compute them instead, for a measured gas at loop
+        pressure (``gas="peng-robinson"``); see :func:`gas_state`.  The
+        fugacity coefficients are taken at the gas's own T and P and held
+        there while T_eq is sought.
     trace : float
         Mole fraction below which a species is left out of the default set, [-].
     db : SpeciesDatabase, optional
@@ -778,7 +806,7 @@ def approach_temperatures(
     ['steam methane reforming', 'water-gas shift']
     """
     db = db or default_database()
-    state = gas_state(composition, T, P, ln_phi=ln_phi, db=db)
+    state = gas_state(composition, T, P, ln_phi=ln_phi, gas=gas, kij=kij, db=db)
     return {r.name: _approach(r, state, allow_extrapolation) for r in _reactions_for(state, reactions, db, trace)}
 
 

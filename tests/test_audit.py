@@ -220,3 +220,39 @@ def test_cells_are_named_by_their_place_in_the_sheet_even_after_blank_rows(tmp_p
     path.write_text(path.read_text().replace(",x\n", ",5\n"))
     assert read_stream_table(path)["1"].flows == pytest.approx({"CH4": 9 * KMOL_H, "CO2": 1 * KMOL_H,
                                                                 "H2O": 5 * KMOL_H})
+
+
+# --- a synthesis-loop converter at 200 bar: the gas model of the approach check -----------------------
+
+def _loop_plant(tmp_path, gas_line: str):
+    """An invented converter R-501 whose outlet is the Peng-Robinson equilibrium at 450 degC, 200 bar."""
+    import gibbsmin
+
+    feed = {"H2": 6450.0, "N2": 2150.0, "NH3": 300.0, "CH4": 700.0, "Ar": 400.0}  # kmol/h
+    eq = gibbsmin.equilibrate(feed, 723.15, 200e5, inert=["CH4", "Ar"], gas="peng-robinson")
+    outlet = {s: eq.amounts[s] for s in feed}
+    rows = ["Stream,unit,20,21", "Temperature,degC,450,450", "Pressure,bar,200,200"]
+    rows += [f"{s},kmol/h,{feed[s]!r},{outlet[s]!r}" for s in feed]
+    (tmp_path / "loop.csv").write_text("\n".join(rows) + "\n")
+    (tmp_path / "loop.toml").write_text(
+        '[plant]\ntitle = "invented loop"\nstream_table = "loop.csv"\n'
+        '[unit.R-501]\nname = "converter"\ntype = "reactor"\ninlets = ["20"]\noutlets = ["21"]\n'
+        'reactions = ["ammonia synthesis"]\nfrozen = ["CH4", "Ar"]\ncarbon = false\n' + gas_line)
+    return audit_plant(read_plant(tmp_path / "loop.toml"))
+
+
+def test_loop_converter_at_equilibrium_passes_with_its_gas_model(tmp_path):
+    # Internal consistency (common practice, no source): an outlet at the Peng-Robinson equilibrium is
+    # at zero approach, and matches the equilibrium reference, when the audit uses the same model.
+    result = _loop_plant(tmp_path, 'gas = "peng-robinson"\n')
+    approach = find(result, "R-501 converter", "approach ammonia synthesis")
+    assert approach.verdict == "pass" and abs(approach.value) < 0.01
+    assert abs(find(result, "R-501 converter", "equilibrium at stated T, P").value) < 1e-4
+
+
+def test_loop_converter_read_as_ideal_gas_looks_impossible(tmp_path):
+    # The same outlet with ideal-gas quotients: about 10 K beyond equilibrium, a failure (limit 3 K).
+    result = _loop_plant(tmp_path, "")
+    approach = find(result, "R-501 converter", "approach ammonia synthesis")
+    assert approach.verdict == "fail" and "beyond equilibrium" in approach.detail
+    assert -12.0 < approach.value < -7.0

@@ -255,9 +255,15 @@ def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: T
     if spec.approach:
         from ..restricted import equilibrate_with_approach
 
+        # A held-back reaction with a cubic: phi of the stated outlet, held fixed (the reference lies near it).
+        ln_phi = None
+        if spec.gas != "ideal":
+            from ..nonideal import ln_phi_of_gas
+
+            ln_phi = ln_phi_of_gas(_gas(outlet.flows, db), outlet.T, outlet.P, spec.gas, db=db)
         return equilibrate_with_approach(inlet, outlet.T, outlet.P, dict(spec.approach),
-                                         frozen=frozen or None, species=species, db=db)
-    return equilibrate(inlet, outlet.T, outlet.P, species=species, inert=frozen, db=db)
+                                         frozen=frozen or None, species=species, ln_phi=ln_phi, db=db)
+    return equilibrate(inlet, outlet.T, outlet.P, species=species, inert=frozen, gas=spec.gas, db=db)
 
 
 def _reactions_to_check(spec: UnitSpec, outlet_gas: Mapping[str, float], db: SpeciesDatabase):
@@ -277,12 +283,13 @@ def _approach_checks(where: str, spec: UnitSpec, plant: Plant, inlets: Sequence[
 
     inlet_gas = _gas(summed(inlets), db)
     outlet_gas = _gas(outlet.flows, db)
+    gas = None if spec.gas == "ideal" else spec.gas
     with np.errstate(divide="ignore"):
-        inlet_state = gas_state(inlet_gas, outlet.T, min(s.P for s in inlets), db=db)
+        inlet_state = gas_state(inlet_gas, outlet.T, min(s.P for s in inlets), gas=gas, db=db)
     checks, findings = [], []
     beyond_limit, stated_limit = plant.limits["beyond_equilibrium"], plant.limits["approach_difference"]
     for rx in _reactions_to_check(spec, outlet_gas, db):
-        found = approach_temperatures(outlet_gas, outlet.T, outlet.P, reactions=[rx], db=db)[rx.name]
+        found = approach_temperatures(outlet_gas, outlet.T, outlet.P, reactions=[rx], gas=gas, db=db)[rx.name]
         name = f"approach {rx.name}"
         if math.isnan(found.approach_K):
             checks.append(Check(where, name, None, "K", "n/a", found.note or "no equilibrium temperature found"))

@@ -32,6 +32,7 @@ from pathlib import Path
 
 from ..case.toml import CaseError, Section, TomlSource
 from ..case.values import (
+    choice,
     read_bool,
     read_names,
     read_normal_conditions,
@@ -115,6 +116,9 @@ class UnitSpec:
         Species set of the equilibrium reference; None: the gas species of the unit's own streams.
     carbon : bool
         Check the carbon activity at the outlet (reactors).
+    gas : str
+        Gas model of the reactor's approach and equilibrium reference: "ideal" (default),
+        "peng-robinson" or "srk" (fugacities at the stream's own T, P and composition).
     line : int or None
     """
 
@@ -129,6 +133,7 @@ class UnitSpec:
     frozen: tuple[str, ...] = ()
     species: tuple[str, ...] | None = None
     carbon: bool = True
+    gas: str = "ideal"
     line: int | None = None
 
     @property
@@ -166,6 +171,8 @@ AUDIT_KEYS: dict[str, dict[str, str]] = {
         "frozen": "reactors: species that do not react here, e.g. ['CH4', 'N2']",
         "species": "reactors: species set of the equilibrium reference (default: the gas species of the unit's streams)",
         "carbon": "reactors: false to skip the carbon-activity check (default true)",
+        "gas": "reactors: gas model of the approach and equilibrium checks: 'ideal' (default), 'peng-robinson' "
+               "or 'srk' (for loops at high pressure; shipped kij)",
     },
     "stream table rows": dict(ROW_LABELS),
 }
@@ -285,7 +292,7 @@ def _read_unit(section: Section, unit_id: str, table: StreamTable, db: SpeciesDa
         raise section.error("adiabatic", "give duty or adiabatic, not both")
     adiabatic = section.get("adiabatic", read_bool, kind in ("mixer", "splitter"))
     duty = section.get("duty", read_power, 0.0 if adiabatic else None)
-    reactor_keys = ("reactions", "approach", "frozen", "species", "carbon")
+    reactor_keys = ("reactions", "approach", "frozen", "species", "carbon", "gas")
     if kind != "reactor":
         for key in reactor_keys:
             if key in section:
@@ -302,6 +309,7 @@ def _read_unit(section: Section, unit_id: str, table: StreamTable, db: SpeciesDa
         id=unit_id, name=section.get("name", read_text, ""), type=kind, inlets=inlets, outlets=outlets, duty=duty,
         reactions=reactions, approach=approach, frozen=section.get("frozen", names, ()),
         species=section.get("species", names, None), carbon=section.get("carbon", read_bool, True),
+        gas=section.get("gas", choice("ideal", "peng-robinson", "srk"), "ideal"),
         line=section.source.line(section.path),
     )
     section.finish(tuple(AUDIT_KEYS["unit.<id>"]))
