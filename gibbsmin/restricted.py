@@ -164,6 +164,8 @@ def equilibrate_with_approach(
     reactions: Sequence[str | Reaction] = (),
     method: str = "auto",
     ln_phi: Mapping[str, float] | None = None,
+    gas: str = "ideal",
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
 ) -> Equilibrium:
@@ -191,6 +193,10 @@ def equilibrate_with_approach(
     method : {"auto", "newton", "convex"}
     ln_phi : mapping, optional
         Gas species to ln of its fugacity coefficient, held fixed for the solve.
+    gas, kij : optional
+        A cubic gas model instead (``gas="peng-robinson"``), iterated to
+        convergence as in :func:`gibbsmin.equilibrate`; not with ``ln_phi``.
+        The approach is then on the fugacity quotient: K(T_settle) = Q_f.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
 
@@ -230,12 +236,21 @@ def equilibrate_with_approach(
     offsets = reaction_offsets(setup.system, complete, [shift.get(r.name, 0.0) for r in complete])
     ln_phi_gas = None
     if ln_phi is not None:
+        if gas != "ideal":
+            raise InputError("give either ln_phi (held fixed) or a gas model (iterated), not both")
         by_name = {db[str(s)].name: _finite(v, f"ln_phi of {s}") for s, v in ln_phi.items()}
         ln_phi_gas = np.array([by_name.get(s, 0.0) for s in setup.system.gas_names])
     parts = [f"{rx.name} at {dT:g} K approach" for rx, dT in held] + [f"{s} frozen" for s in frozen_mol]
-    eq, _, _ = solve_fixed(setup, T, P, method=method, offsets=offsets, ln_phi=ln_phi_gas,
-                           allow_extrapolation=allow_extrapolation,
-                           specification="; ".join(["T and P"] + parts))
+    specification = "; ".join(["T and P"] + parts)
+    if gas != "ideal":
+        from .nonideal import gas_phase, solve_nonideal  # the outer loop builds on solve_fixed
+
+        eq, _, _ = solve_nonideal(setup, T, P, gas_phase(setup.system, gas, kij=kij), method=method,
+                                  offsets=offsets, allow_extrapolation=allow_extrapolation,
+                                  specification=specification)
+    else:
+        eq, _, _ = solve_fixed(setup, T, P, method=method, offsets=offsets, ln_phi=ln_phi_gas,
+                               allow_extrapolation=allow_extrapolation, specification=specification)
     eq = checked(eq)
     extras = {
         **eq.extras,

@@ -255,14 +255,8 @@ def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: T
     if spec.approach:
         from ..restricted import equilibrate_with_approach
 
-        # A held-back reaction with a cubic: phi of the stated outlet, held fixed (the reference lies near it).
-        ln_phi = None
-        if spec.gas != "ideal":
-            from ..nonideal import ln_phi_of_gas
-
-            ln_phi = ln_phi_of_gas(_gas(outlet.flows, db), outlet.T, outlet.P, spec.gas, db=db)
         return equilibrate_with_approach(inlet, outlet.T, outlet.P, dict(spec.approach),
-                                         frozen=frozen or None, species=species, ln_phi=ln_phi, db=db)
+                                         frozen=frozen or None, species=species, gas=spec.gas, db=db)
     return equilibrate(inlet, outlet.T, outlet.P, species=species, inert=frozen, gas=spec.gas, db=db)
 
 

@@ -279,9 +279,9 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     approach: dict[str, float] = {}
     table = section.section("approach")
     if table is not None:
-        if adiabatic or gas != "ideal":
-            raise section.error("approach", "approach temperatures in an adiabatic or non-ideal stage are not "
-                                "available yet; use a fixed T with the ideal gas", NotAvailableError)
+        if adiabatic:
+            raise section.error("approach", "approach temperatures in an adiabatic stage are not available yet; "
+                                "give the stage a fixed T", NotAvailableError)
         for reaction in table.keys():
             approach[reaction] = table.get(reaction, read_temperature_difference)
             _check_reaction(table, reaction, reaction)

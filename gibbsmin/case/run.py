@@ -128,8 +128,8 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
 
         eq = equilibrate_with_approach(inlet.mixed, stage.T, stage.P, dict(stage.approach),
                                        frozen=list(species.frozen) or None, species=species.only,
-                                       exclude=species.exclude, method=stage.method, db=db,
-                                       allow_extrapolation=species.allow_extrapolation)
+                                       exclude=species.exclude, method=stage.method, gas=stage.gas,
+                                       kij=stage.kij, db=db, allow_extrapolation=species.allow_extrapolation)
         return _with_duty(eq, inlet, db)
     energy = {}
     if FEATURES["energy"].available() and inlet.temperatures_known:
