@@ -635,7 +635,8 @@ def energy_extras(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None, 
     }
     if inlet is None or H_in is None:
         return extras
-    duty = H_out - H_in if eq.specification == "T and P" else heat
+    # "T and P", or "T and P; <held reactions>" for a restricted equilibrium: the duty is what T needs.
+    duty = H_out - H_in if eq.specification.startswith("T and P") else heat
     scale = enthalpy_scale(setup, n, eq.T, inlet_gross, duty)
     extras.update({
         "feed_temperatures_K": inlet.temperatures,

@@ -153,8 +153,8 @@ def _check_held(rx: Reaction, setup: Setup, frozen: Mapping[str, float]) -> None
 
 
 def equilibrate_with_approach(
-    feed: Mapping[str, float] | Stream,
-    T: float | str,
+    feed: Mapping[str, object] | Stream,
+    T: float | str | None,
     P: float | str,
     approach: Mapping[str | Reaction, float] | None = None,
     *,
@@ -166,17 +166,24 @@ def equilibrate_with_approach(
     ln_phi: Mapping[str, float] | None = None,
     gas: str = "ideal",
     kij: str | Mapping[tuple[str, str], float] | None = "shipped",
+    T_feed: float | Mapping[str, float] | None = None,
+    adiabatic: bool = False,
+    heat_input: float = 0.0,
+    T_bounds: tuple[float, float] | None = None,
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
 ) -> Equilibrium:
-    """Equilibrium at fixed T and P with reactions held at a temperature approach and species frozen.
+    """Equilibrium with reactions held at a temperature approach and species frozen, at fixed T or adiabatic.
 
     Parameters
     ----------
     feed : mapping or Stream
-        Species to amount [mol] (or a Stream, whose mol/s serve as mol).
-    T : float or str
-        Temperature, [K] (or text such as ``"850 degC"``).
+        Species to amount [mol] (or a Stream, whose mol/s serve as mol); for
+        the energy balance also stream name to such a mapping, as for
+        :func:`gibbsmin.equilibrate`.
+    T : float or str or None
+        Outlet temperature, [K] (or text such as ``"850 degC"``); None with
+        ``adiabatic=True`` (or a ``heat_input``), where the energy balance sets it.
     P : float or str
         Pressure, [Pa] (or text such as ``"30 bar(g)"``).
     approach : mapping, optional
@@ -197,6 +204,12 @@ def equilibrate_with_approach(
         A cubic gas model instead (``gas="peng-robinson"``), iterated to
         convergence as in :func:`gibbsmin.equilibrate`; not with ``ln_phi``.
         The approach is then on the fugacity quotient: K(T_settle) = Q_f.
+    T_feed, adiabatic, heat_input, T_bounds
+        The energy balance, as for :func:`gibbsmin.equilibrate` (with T given,
+        ``T_feed`` adds the duty to the result): the outlet
+        temperature at which the outlet with its held reactions holds the
+        inlet enthalpy plus ``heat_input``.  Each held reaction settles at
+        its approach from that outlet temperature.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
 
@@ -204,7 +217,8 @@ def equilibrate_with_approach(
     -------
     Equilibrium
         With ``extras``: "approach K", "settling temperature K", "reactions at
-        equilibrium" (equations) and "frozen mol".
+        equilibrium" (equations) and "frozen mol"; with the energy balance also
+        the energy figures of :func:`gibbsmin.equilibrate`.
 
     Examples
     --------
@@ -213,27 +227,49 @@ def equilibrate_with_approach(
     >>> round(eq.extras["settling temperature K"]["steam methane reforming"], 2)
     1113.15
     """
+    from . import energy
+
     db = db or default_database()
-    T, P = to_kelvin(T), to_pascal(P)
+    P = to_pascal(P)
     check_method(method)
-    feed = feed.feed_mol() if isinstance(feed, Stream) else feed
+    if isinstance(feed, Stream):
+        feed = feed.feed_mol()
+    heat = energy.heat_input_of(heat_input)
+    energy_balance = T is None
+    if energy_balance != bool(adiabatic or heat):
+        raise InputError("give the outlet temperature T, or T=None with adiabatic=True (or a heat_input) to have the "
+                         "energy balance find it; not both")
+    if energy_balance and ln_phi is not None:
+        raise InputError("ln_phi is held fixed at one state, which an energy balance moves away from; use "
+                         "gas='peng-robinson' (iterated) or leave ln_phi out")
+    inlet = energy.read_inlet(feed, T_feed, db)
+    if energy_balance and not inlet.has_temperatures:
+        raise InputError("the energy balance needs the feed temperature: pass T_feed in K")
     if approach is None:
         approach = {}
     if not isinstance(approach, Mapping):
         raise InputError("approach takes a mapping of reaction to approach in K, e.g. {'steam methane reforming': 10.0}")
     held = [(reaction(spec, db=db), _finite(value, f"approach of {spec}")) for spec, value in approach.items()]
-    settle = [settling_temperature(rx, T, dT) for rx, dT in held]
-    canonical_feed = check_feed(feed, db)
+    canonical_feed = inlet.total
     frozen_mol = _frozen_amounts(frozen, canonical_feed, db)
+    if energy_balance:
+        T_span = energy.outlet_bounds(db, inlet, species, T_bounds)
+    else:
+        T = to_kelvin(T)
+        T_span = (T, T)
     setup = prepare({**canonical_feed, **frozen_mol}, species=species, exclude=exclude, inert=list(frozen_mol),
-                    T_span=(T, T), db=db, allow_extrapolation=allow_extrapolation)
+                    T_span=T_span, db=db, allow_extrapolation=allow_extrapolation)
     setup = _with_frozen_totals(setup, canonical_feed, frozen_mol)
     for rx, _ in held:
         _check_held(rx, setup, frozen_mol)
     complete = independent_reactions(setup.system, include=[rx for rx, _ in held] + list(reactions), db=db)
-    shift = {rx.name: rx.ln_K(T, allow_extrapolation=allow_extrapolation)
-             - rx.ln_K(T_r, allow_extrapolation=allow_extrapolation) for (rx, _), T_r in zip(held, settle)}
-    offsets = reaction_offsets(setup.system, complete, [shift.get(r.name, 0.0) for r in complete])
+
+    def offsets_at(T_now: float) -> NDArray[np.float64]:
+        shift = {rx.name: rx.ln_K(T_now, allow_extrapolation=allow_extrapolation)
+                 - rx.ln_K(settling_temperature(rx, T_now, dT), allow_extrapolation=allow_extrapolation)
+                 for rx, dT in held}
+        return reaction_offsets(setup.system, complete, [shift.get(r.name, 0.0) for r in complete])
+
     ln_phi_gas = None
     if ln_phi is not None:
         if gas != "ideal":
@@ -241,22 +277,48 @@ def equilibrate_with_approach(
         by_name = {db[str(s)].name: _finite(v, f"ln_phi of {s}") for s, v in ln_phi.items()}
         ln_phi_gas = np.array([by_name.get(s, 0.0) for s in setup.system.gas_names])
     parts = [f"{rx.name} at {dT:g} K approach" for rx, dT in held] + [f"{s} frozen" for s in frozen_mol]
-    specification = "; ".join(["T and P"] + parts)
+    specification = "; ".join(["H and P" if energy_balance else "T and P"] + parts)
+    phase = None
     if gas != "ideal":
-        from .nonideal import gas_phase, solve_nonideal  # the outer loop builds on solve_fixed
+        from .nonideal import gas_phase  # the outer loop builds on solve_fixed
 
-        eq, _, _ = solve_nonideal(setup, T, P, gas_phase(setup.system, gas, kij=kij), method=method,
-                                  offsets=offsets, allow_extrapolation=allow_extrapolation,
-                                  specification=specification)
+        phase = gas_phase(setup.system, gas, kij=kij)
+
+    def step(T_now: float, start=None):
+        if phase is not None:
+            from .nonideal import solve_nonideal
+
+            return solve_nonideal(setup, T_now, P, phase, method=method, offsets=offsets_at(T_now), start=start,
+                                  allow_extrapolation=allow_extrapolation, specification=specification)
+        return solve_fixed(setup, T_now, P, method=method, offsets=offsets_at(T_now), ln_phi=ln_phi_gas,
+                           start=start, allow_extrapolation=allow_extrapolation, specification=specification)
+
+    residual = None if phase is None else phase.residual_enthalpy
+    H_in, gross_in = None, 0.0
+    if inlet.has_temperatures:
+        H_in = inlet.enthalpy(P, db, allow_extrapolation)
+        if phase is not None:
+            from .nonideal import inlet_residual_enthalpy
+
+            H_in += inlet_residual_enthalpy(phase, inlet, P)
+        gross_in = inlet.gross_enthalpy(P, db)
+    if energy_balance:
+        eq, _, _ = energy.solve_energy_balance(
+            setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
+            coldest_feed=min(inlet.temperatures.values()), method=method, allow_extrapolation=allow_extrapolation,
+            residual_enthalpy=residual, step=step)
+        eq = dataclasses.replace(eq, specification=specification)
     else:
-        eq, _, _ = solve_fixed(setup, T, P, method=method, offsets=offsets, ln_phi=ln_phi_gas,
-                               allow_extrapolation=allow_extrapolation, specification=specification)
+        eq, _, _ = step(T)
+    extras_energy = energy.energy_extras(setup, eq, P, inlet, H_in, heat, residual_enthalpy=residual,
+                                         inlet_gross=gross_in)
     eq = checked(eq)
     extras = {
         **eq.extras,
+        **extras_energy,
         "approach K": {rx.name: dT for rx, dT in held},
-        "settling temperature K": {rx.name: T_r for (rx, _), T_r in zip(held, settle)},
-        "reactions at equilibrium": [r.equation for r in complete if r.name not in shift],
+        "settling temperature K": {rx.name: settling_temperature(rx, eq.T, dT) for rx, dT in held},
+        "reactions at equilibrium": [r.equation for r in complete if r.name not in {rx.name for rx, _ in held}],
         "frozen mol": dict(frozen_mol),
     }
     return dataclasses.replace(eq, extras=extras)

@@ -107,6 +107,33 @@ def test_shift_held_at_its_approach(capsys):
 
 
 @needs_energy
+def test_adiabatic_shift_bed_held_at_its_approach(tmp_path, capsys):
+    # The shipped shift case made adiabatic: the outlet must hold the inlet's enthalpy (Cantera's, from the
+    # same NASA data) and still read back its 12 K approach.
+    text = (EXAMPLES / "shift_approach.toml").read_text().replace('T = "430 degC"\n', "adiabatic = true\n")
+    case = tmp_path / "adiabatic_shift.toml"
+    case.write_text(text)
+    code = main(["settle", str(case), "--json"])
+    out, err = capsys.readouterr()
+    assert code == 0, err
+    doc = json.loads(out)
+    species = ["H2", "CO", "CO2", "CH4", "H2O", "N2"]
+    gas = cantera_reference.cantera_gas(species)
+    feed = {s: n for s, n in doc["feed_mol_s"].items() if n > 0}
+    gas.TPX = 350.0 + 273.15, doc["P_Pa"], feed
+    H_in = gas.enthalpy_mole / 1000.0 * sum(feed.values())
+    outlet = {s: doc["species"][s]["amount_mol"] for s in species}
+    gas.TPX = doc["T_K"], doc["P_Pa"], outlet
+    H_out = gas.enthalpy_mole / 1000.0 * sum(outlet.values())
+    assert H_out == pytest.approx(H_in, rel=1e-9)
+    assert 400.0 + 273.15 < doc["T_K"] < 450.0 + 273.15  # the exothermic shift heats the bed from 350 degC
+    code = main(["settle", str(case)])
+    table = capsys.readouterr().out
+    row = next(line for line in table.splitlines() if line.startswith("outlet  water-gas shift"))
+    assert code == 0 and "12.00" in row
+
+
+@needs_energy
 def test_html_of_a_curve_case_is_written(tmp_path, capsys):
     out = tmp_path / "ammonia.html"
     assert main(["settle", str(EXAMPLES / "ammonia_bed.toml"), "--html", str(out), "--csv",

@@ -152,3 +152,64 @@ def test_frozen_at_a_chosen_amount_conserves_every_element():
 def test_bad_restrictions_get_clear_errors(kwargs, error, message):
     with pytest.raises(error, match=message):
         equilibrate_with_approach(REFORMER_FEED, T_OUT, P_OUT, **kwargs)
+
+
+# --- adiabatic, with a held reaction ------------------------------------------------------------------
+
+#: Inlet of an invented HT shift converter, kmol/h as mol/s; 370 degC, 33 bar.
+CONVERTER_FEED = {"H2": 41.0, "CO": 8.5, "CO2": 5.5, "CH4": 0.7, "N2": 13.5, "Ar": 0.2, "H2O": 34.0}
+CONVERTER_SPECIES = list(CONVERTER_FEED)
+
+
+def test_adiabatic_shift_converter_with_an_approach_closes_on_cantera_enthalpies():
+    # Outside check: Cantera 3.2 evaluates the inlet's and the outlet's enthalpy from the same NASA data
+    # (tests/cantera_reference.py); the outlet must hold the inlet's enthalpy, and read back the asked
+    # approach.  Only the shift reacts in this set (CH4 frozen, no carbon species besides CO/CO2).
+    from cantera_reference import cantera_gas
+
+    T_in, P = 370.0 + 273.15, 33e5
+    eq = equilibrate_with_approach(CONVERTER_FEED, None, P, {"water-gas shift": 10.0}, frozen=["CH4", "N2", "Ar"],
+                                   species=CONVERTER_SPECIES, T_feed=T_in, adiabatic=True)
+    gas = cantera_gas(CONVERTER_SPECIES)
+
+    def enthalpy_J(amounts, T):
+        total = sum(amounts.values())
+        gas.TPX = T, P, {s: n for s, n in amounts.items() if n > 0}
+        return gas.enthalpy_mole / 1000.0 * total
+
+    H_in = enthalpy_J(CONVERTER_FEED, T_in)
+    H_out = enthalpy_J({s: eq.amounts[s] for s in CONVERTER_SPECIES}, eq.T)
+    assert H_out == pytest.approx(H_in, rel=1e-9, abs=1e-6 * abs(H_in))
+    found = approach_temperatures(eq, reactions=["water-gas shift"])["water-gas shift"]
+    assert found.approach_K == pytest.approx(10.0, abs=1e-6)
+    assert eq.T - T_in > 30.0  # the shift is exothermic: the bed heats up by tens of K
+    assert eq.extras["duty_W"] == 0.0 and eq.specification.startswith("H and P")
+
+
+def test_adiabatic_with_zero_approach_is_the_adiabatic_equilibrium():
+    T_in, P = 370.0 + 273.15, 33e5
+    held = equilibrate_with_approach(CONVERTER_FEED, None, P, {"water-gas shift": 0.0}, frozen=["CH4", "N2", "Ar"],
+                                     species=CONVERTER_SPECIES, T_feed=T_in, adiabatic=True)
+    free = gibbsmin.equilibrate(CONVERTER_FEED, P=P, T_feed=T_in, adiabatic=True, species=CONVERTER_SPECIES,
+                                inert=["CH4", "N2", "Ar"])
+    assert held.T == pytest.approx(free.T, abs=1e-6)
+    # Short of equilibrium the exothermic shift releases less heat: a cooler outlet.
+    short = equilibrate_with_approach(CONVERTER_FEED, None, P, {"water-gas shift": 20.0}, frozen=["CH4", "N2", "Ar"],
+                                      species=CONVERTER_SPECIES, T_feed=T_in, adiabatic=True)
+    assert short.T < held.T - 1.0
+
+
+@pytest.mark.parametrize(("kwargs", "message"), [
+    ({"adiabatic": True}, "needs the feed temperature"),
+    ({"adiabatic": True, "T_feed": 640.0, "ln_phi": {"H2": 0.0}}, "ln_phi is held fixed"),
+])
+def test_adiabatic_approach_bad_requests(kwargs, message):
+    with pytest.raises(InputError, match=message):
+        equilibrate_with_approach(CONVERTER_FEED, None, 33e5, {"water-gas shift": 10.0}, species=CONVERTER_SPECIES,
+                                  **kwargs)
+
+
+def test_temperature_and_adiabatic_together_are_refused():
+    with pytest.raises(InputError, match="not both"):
+        equilibrate_with_approach(CONVERTER_FEED, 700.0, 33e5, {"water-gas shift": 10.0}, species=CONVERTER_SPECIES,
+                                  T_feed=640.0, adiabatic=True)

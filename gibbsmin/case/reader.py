@@ -279,9 +279,6 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     approach: dict[str, float] = {}
     table = section.section("approach")
     if table is not None:
-        if adiabatic:
-            raise section.error("approach", "approach temperatures in an adiabatic stage are not available yet; "
-                                "give the stage a fixed T", NotAvailableError)
         for reaction in table.keys():
             approach[reaction] = table.get(reaction, read_temperature_difference)
             _check_reaction(table, reaction, reaction)

@@ -123,14 +123,6 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
 
 def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
     species = case.species
-    if stage.approach:
-        from ..restricted import equilibrate_with_approach
-
-        eq = equilibrate_with_approach(inlet.mixed, stage.T, stage.P, dict(stage.approach),
-                                       frozen=list(species.frozen) or None, species=species.only,
-                                       exclude=species.exclude, method=stage.method, gas=stage.gas,
-                                       kij=stage.kij, db=db, allow_extrapolation=species.allow_extrapolation)
-        return _with_duty(eq, inlet, db)
     energy = {}
     if FEATURES["energy"].available() and inlet.temperatures_known:
         energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
@@ -138,21 +130,16 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
         energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
         energy["kij"] = stage.kij
     feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
+    if stage.approach:
+        from ..restricted import equilibrate_with_approach
+
+        return equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach),
+                                         frozen=list(species.frozen) or None, species=species.only,
+                                         exclude=species.exclude, method=stage.method, db=db,
+                                         allow_extrapolation=species.allow_extrapolation, **energy)
     return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
                        inert=species.frozen, method=stage.method, db=db,
                        allow_extrapolation=species.allow_extrapolation, **energy)
-
-
-def _with_duty(eq: Equilibrium, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
-    """Add the duty of a fixed-T stage whose solve did not compute it (restricted equilibrium)."""
-    if not (FEATURES["energy"].available() and inlet.temperatures_known):
-        return eq
-    import dataclasses
-
-    H_in = sum(_enthalpy(amounts, inlet.temperatures[name], eq.P, db) for name, amounts in inlet.streams.items())
-    H_out = _enthalpy(eq.amounts, eq.T, eq.P, db)
-    return dataclasses.replace(eq, extras={**eq.extras, "feed_enthalpy_J": H_in, "enthalpy_J": H_out,
-                                           "duty_W": H_out - H_in})
 
 
 def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase) -> float:
