@@ -50,7 +50,7 @@ from .errors import ConvergenceError, InputError
 from .eos import (GasModel, GasProperties, IdealGasModel, canonical_model_name, default_interactions,
                   gas_model_for_species)
 from .settle import Setup, build_problem, solve_fixed, to_equilibrium
-from .solve import SolverResult, certify, solve
+from .solve import CertificateBatch, SolverResult, certify, solve
 from .system import Problem, System
 from .thermo.database import SpeciesDatabase
 from .thermo.nasa7 import R
@@ -142,6 +142,16 @@ class GasPhase:
         ln_phi = np.zeros(len(self.gas_names))
         if not self.is_ideal:
             ln_phi[self.described] = self.properties(T, P, n_gas).ln_phi
+        return ln_phi
+
+    def ln_phi_batch(self, T: NDArray[np.float64], P: NDArray[np.float64],
+                     n_gas: NDArray[np.float64]) -> NDArray[np.float64]:
+        """ln phi of every gas species for a batch: T [K], P [Pa] of shape (B,), amounts (B, n_gas) [mol]."""
+        ln_phi = np.zeros(np.shape(n_gas))
+        if not self.is_ideal:
+            part = np.asarray(n_gas, dtype=float)[:, self.described]
+            y = part / part.sum(axis=1, keepdims=True)
+            ln_phi[:, self.described] = self.model.properties(np.asarray(T, float), np.asarray(P, float), y).ln_phi
         return ln_phi
 
     def residual_enthalpy(self, T: float, P: float, n_gas: NDArray[np.float64]) -> float:
@@ -417,6 +427,46 @@ def solve_nonideal(
         f"{options.max_iterations} frozen-phi solves ln phi still changes by {change:.2e} "
         f"(tolerance {options.tolerance:g}); the gas may be close to condensing there (the cubic's vapour "
         "root then jumps with composition): try a higher temperature, a lower pressure, or gas='ideal'")
+
+
+def solve_batch_nonideal(problem: Problem, phase: GasPhase, T: NDArray[np.float64], P: NDArray[np.float64], *,
+                         method: str = "auto", chains: int | None = None,
+                         options: OuterLoopOptions = OuterLoopOptions()) -> tuple[SolverResult, CertificateBatch]:
+    """A batch of frozen-phi solves iterated until every point's ln phi settles (the sweep's non-ideal path).
+
+    ``problem`` is the ideal-gas batch at T [K], P [Pa] (shape (B,)).  Plain
+    fixed-point passes over the whole batch, each warm-started from the last;
+    the returned certificates are recomputed with ln phi at each point's own
+    final composition, and a point whose ln phi has not settled within
+    ``options.max_iterations`` passes is not certified.
+    """
+    n_gas = len(phase.gas_names)
+    kept_gas = problem.keep[: problem.n_gas]
+    ideal_mu0 = problem.mu0.copy()
+
+    def shifted(ln_phi: NDArray[np.float64]) -> Problem:
+        mu0 = ideal_mu0.copy()
+        mu0[:, : problem.n_gas] += ln_phi[:, kept_gas]
+        return replace(problem, mu0=mu0)
+
+    result, _ = solve(problem, method, chains=chains)
+    held = np.zeros((problem.batch_size, n_gas))
+    settled = np.zeros(problem.batch_size, dtype=bool)
+    for _ in range(options.max_iterations):
+        amounts = np.zeros((problem.batch_size, n_gas))
+        ln_n = result.ln_n_gas
+        with np.errstate(invalid="ignore"):
+            amounts[:, kept_gas] = np.exp(ln_n - ln_n.max(axis=1, keepdims=True))
+        usable = np.all(np.isfinite(amounts), axis=1)
+        amounts[~usable] = 1.0  # a failed point: any composition, it stays uncertified
+        found = phase.ln_phi_batch(T, P, amounts)
+        settled = usable & (np.max(np.abs(found - held), axis=1) <= options.tolerance)
+        if settled.all():
+            break
+        held = found
+        result, _ = solve(shifted(held), method, start=result, chains=chains)
+    certificates = certify(shifted(found), result)
+    return result, replace(certificates, certified=certificates.certified & settled)
 
 
 def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, result: SolverResult,

@@ -165,3 +165,39 @@ def test_sweep_definition_errors():
         SweepSpec(feed={"CH4": 1.0}, T=900.0, P=1e5, axes=(grid("P", [0.0, 1e5]),))
     with pytest.raises(gibbsmin.InputError, match="no values"):
         Axis("T", ())
+
+
+# --- a sweep with the Peng-Robinson gas ---------------------------------------------------------------
+
+LOOP_FEED = {"H2": 64.5, "N2": 21.5, "NH3": 3.0, "CH4": 7.0, "Ar": 4.0}
+
+
+def _loop_spec(**kwargs):
+    return SweepSpec(feed=LOOP_FEED, T=723.15, P=200e5, species=tuple(LOOP_FEED), inert=("CH4", "Ar"),
+                     axes=(grid("P", [100e5, 200e5, 300e5]), grid("T", [650.0, 700.0, 750.0, 800.0])), **kwargs)
+
+
+def test_peng_robinson_sweep_equals_equilibrate_point_by_point():
+    # Internal consistency (common practice, no source): the batched outer loop over phi gives every point
+    # the answer of a single non-ideal solve, and certifies it with phi at its own composition.
+    table = solve_points(_loop_spec(gas="peng-robinson"), 0, 12)
+    assert table["certified"].all()
+    for _, row in table.iterrows():
+        eq = gibbsmin.equilibrate(LOOP_FEED, row["T_K"], row["P_Pa"], species=list(LOOP_FEED),
+                                  inert=["CH4", "Ar"], gas="peng-robinson")
+        assert row["y_NH3"] == pytest.approx(eq.mole_fractions["NH3"], rel=1e-8)
+    ideal = solve_points(_loop_spec(), 0, 12)
+    # At 300 bar and 650 K the cubic adds several mol% of ammonia: the model reached the sweep.
+    assert (table["y_NH3"] - ideal["y_NH3"]).iloc[8] > 0.02
+
+
+def test_ideal_sweep_keeps_its_fingerprint_and_a_cubic_changes_it():
+    assert '"gas"' not in _loop_spec().to_json()
+    assert _loop_spec(gas="pr").gas == "peng-robinson"
+    assert _loop_spec(gas="pr").fingerprint() != _loop_spec().fingerprint()
+    assert _loop_spec(gas="pr", kij="none").fingerprint() != _loop_spec(gas="pr").fingerprint()
+    assert SweepSpec.from_json(_loop_spec(gas="srk").to_json()).gas == "srk"
+    with pytest.raises(gibbsmin.InputError, match="unknown gas model"):
+        _loop_spec(gas="virial")
+    with pytest.raises(gibbsmin.InputError, match="'shipped' or 'none'"):
+        _loop_spec(gas="pr", kij="fitted")

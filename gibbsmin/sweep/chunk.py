@@ -23,6 +23,17 @@ SUMMARY_COLUMNS = ("point", "T_K", "P_Pa", "certified", "solver", "iterations",
 
 
 @functools.lru_cache(maxsize=8)
+def _gas_phase(spec_json: str):
+    """The sweep's cubic gas model on its species set (None for the ideal gas)."""
+    spec = SweepSpec.from_json(spec_json)
+    if spec.gas == "ideal":
+        return None
+    from ..nonideal import gas_phase
+
+    return gas_phase(_setup(spec_json).system, spec.gas, kij=spec.kij)
+
+
+@functools.lru_cache(maxsize=8)
 def _setup(spec_json: str) -> Setup:
     spec = SweepSpec.from_json(spec_json)
     names = spec.feed_species()
@@ -54,9 +65,17 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     iterations = np.zeros(B, dtype=int)
     solver = np.empty(B, dtype="<U16")
     run = spec.shape[-1]
+    phase = _gas_phase(spec.to_json())
     for group in _element_groups(b):
         problem = build_problem(setup, T[group], P[group], b=b[group])
-        result, certificates = solve(problem, spec.method, chains=max(1, group.size // run))
+        chains = max(1, group.size // run)
+        if phase is None:
+            result, certificates = solve(problem, spec.method, chains=chains)
+        else:
+            from ..nonideal import solve_batch_nonideal
+
+            result, certificates = solve_batch_nonideal(problem, phase, T[group], P[group], method=spec.method,
+                                                        chains=chains)
         keep = problem.keep
         gas_keep = keep[keep < n_gas]
         ln_y = result.ln_n_gas - np.log(np.exp(result.ln_n_gas).sum(axis=1, keepdims=True))

@@ -41,12 +41,12 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 def spec_from_case(case, axes) -> SweepSpec:
     """The sweep of a case's first stage along ``axes``."""
     stage = case.stages[0]
-    if stage.T is None or stage.adiabatic or stage.approach or stage.gas != "ideal":
-        raise InputError(f"{case.source}: a sweep runs the first stage at fixed T and P with the ideal gas; "
-                         "stage " + repr(stage.name) + " asks for more (adiabatic, approach or a gas model)")
+    if stage.T is None or stage.adiabatic or stage.approach:
+        raise InputError(f"{case.source}: a sweep runs the first stage at fixed T and P; "
+                         "stage " + repr(stage.name) + " asks for more (adiabatic or approach)")
     return SweepSpec(feed=case.mixed_feed(), T=stage.T, P=stage.P, axes=tuple(axes),
                      species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
-                     method=stage.method)
+                     method=stage.method, gas=stage.gas, kij=stage.kij)
 
 
 def run(args: argparse.Namespace) -> int:

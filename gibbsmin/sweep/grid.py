@@ -79,6 +79,10 @@ class SweepSpec:
     method : str
         Solver for the points Newton cannot certify is always the cone; this
         is the first solver tried ("auto" = Newton first).
+    gas : str
+        Gas model: "ideal" (default), "peng-robinson" or "srk".
+    kij : str
+        With a cubic: "shipped" (the published table, default) or "none".
     """
 
     feed: Mapping[str, float]
@@ -90,6 +94,8 @@ class SweepSpec:
     inert: tuple[str, ...] = ()
     carbon_basis: str = "hydrocarbon"
     method: str = "auto"
+    gas: str = "ideal"
+    kij: str = "shipped"
     _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -105,6 +111,11 @@ class SweepSpec:
                 raise InputError(f"axis {axis.name} must hold positive values in K or Pa")
             if axis.name not in ("T", "P") and min(axis.values) < 0:
                 raise InputError(f"axis {axis.name} must not hold negative values")
+        from ..eos import canonical_model_name
+
+        object.__setattr__(self, "gas", canonical_model_name(self.gas))
+        if self.kij not in ("shipped", "none"):
+            raise InputError(f"a sweep's kij is 'shipped' or 'none', not {self.kij!r}")
         object.__setattr__(self, "_shape", tuple(len(a.values) for a in self.axes))
 
     @property
@@ -160,14 +171,17 @@ class SweepSpec:
 
     def to_json(self) -> str:
         """A canonical text form (also the basis of the fingerprint)."""
-        return json.dumps({
+        data = {
             "feed": dict(self.feed), "T": self.T, "P": self.P,
             "axes": [{"name": a.name, "values": list(a.values), "unit": a.unit, "shown": list(a.shown)}
                      for a in self.axes],
             "species": list(self.species) if self.species is not None else None,
             "exclude": list(self.exclude), "inert": list(self.inert),
             "carbon_basis": self.carbon_basis, "method": self.method,
-        }, sort_keys=True)
+        }
+        if self.gas != "ideal":  # only then, so that an ideal-gas sweep keeps the fingerprint it always had
+            data.update(gas=self.gas, kij=self.kij)
+        return json.dumps(data, sort_keys=True)
 
     @classmethod
     def from_json(cls, text: str) -> SweepSpec:
@@ -178,6 +192,7 @@ class SweepSpec:
             species=tuple(data["species"]) if data["species"] is not None else None,
             exclude=tuple(data["exclude"]), inert=tuple(data["inert"]),
             carbon_basis=data["carbon_basis"], method=data["method"],
+            gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
         )
 
     def fingerprint(self) -> str:
