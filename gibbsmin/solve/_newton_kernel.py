@@ -266,3 +266,58 @@ def iterate_batch(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
         _iterate_chain(c * B // chains, (c + 1) * B // chains, A_g, A_c, b, mu0_g, mu0_c, allowed, same,
                        ln_n, n_c, active, pi, iterations, status, tol, max_iterations, phase_tol,
                        max_phase_changes)
+
+
+@njit(cache=True)
+def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+        tol, max_iterations, phase_tol, max_phase_changes, chains, parallel):
+    """The whole Newton solve of a batch in compiled code: scaling, start, iteration, unscaling.
+
+    Amounts are scaled to sum(b) = 1 per point for the iteration.  ``cold``
+    ignores the start arrays (the customary start: ln n = ln(0.1 / G), no
+    condensed phase).  A single chain runs in this thread: the parallel
+    launch costs more than a small solve.
+    Returns (ln_n_gas, n_condensed, present, pi, iterations, status).
+    """
+    B, M, S = b.shape[0], A.shape[0], A.shape[1]
+    C = S - n_gas
+    A_g = np.ascontiguousarray(A[:, :n_gas])
+    A_c = np.ascontiguousarray(A[:, n_gas:])
+    mu0_g = np.ascontiguousarray(mu0[:, :n_gas])
+    mu0_c = np.ascontiguousarray(mu0[:, n_gas:])
+    allowed_c = np.ascontiguousarray(allowed[:, n_gas:])
+    scale = np.empty(B)
+    b_scaled = np.empty((B, M))
+    ln_n = np.empty((B, n_gas))
+    n_c = np.zeros((B, C))
+    active = np.zeros((B, C), dtype=np.bool_)
+    for p in range(B):
+        scale[p] = b[p].sum()
+        for k in range(M):
+            b_scaled[p, k] = b[p, k] / scale[p]
+        ln_scale = math.log(scale[p])
+        for j in range(n_gas):
+            ln_n[p, j] = math.log(0.1 / n_gas) if cold else ln_n_start[p, j] - ln_scale
+        if not cold:
+            for c in range(C):
+                active[p, c] = present_start[p, c] and allowed_c[p, c]
+                n_c[p, c] = n_c_start[p, c] / scale[p] if active[p, c] else 0.0
+    pi = np.zeros((B, M))
+    iterations = np.zeros(B, dtype=np.int64)
+    status = np.zeros(B, dtype=np.int64)
+    chains = max(1, min(chains, B))
+    if parallel and chains > 1:
+        iterate_batch(A_g, A_c, b_scaled, mu0_g, mu0_c, allowed_c, same, ln_n, n_c, active, pi, iterations,
+                      status, tol, max_iterations, phase_tol, max_phase_changes, chains)
+    else:
+        for c in range(chains):
+            _iterate_chain(c * B // chains, (c + 1) * B // chains, A_g, A_c, b_scaled, mu0_g, mu0_c, allowed_c,
+                           same, ln_n, n_c, active, pi, iterations, status, tol, max_iterations, phase_tol,
+                           max_phase_changes)
+    for p in range(B):
+        ln_scale = math.log(scale[p])
+        for j in range(n_gas):
+            ln_n[p, j] += ln_scale
+        for c in range(C):
+            n_c[p, c] = n_c[p, c] * scale[p] if active[p, c] else 0.0
+    return ln_n, n_c, active, pi, iterations, status

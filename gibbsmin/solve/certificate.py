@@ -144,18 +144,25 @@ def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, ou
         out[p, 3] = min_amount
 
 
+@njit(cache=True)
+def _verdicts(out, converged, element_balance, stationarity, complementarity):
+    """Whether each point's residuals (rows of ``out``) are within the tolerances."""
+    certified = np.empty(out.shape[0], dtype=np.bool_)
+    for p in range(out.shape[0]):
+        certified[p] = (converged[p] and out[p, 0] <= element_balance and out[p, 1] <= stationarity
+                        and out[p, 2] >= -complementarity and out[p, 3] >= 0.0)
+    return certified
+
+
 def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances()) -> CertificateBatch:
     """Certificates of every point of a batch."""
+    # Both steps are compiled: on a single small point, array arithmetic in Python would cost more
+    # than the residuals themselves.
     out = np.empty((problem.batch_size, 4))
     _residuals(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
                problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, out)
-    balance, stationarity, complementarity, min_amount = out.T
-    certified = (
-        result.converged
-        & (balance <= tolerances.element_balance)
-        & (stationarity <= tolerances.stationarity)
-        & (complementarity >= -tolerances.complementarity)
-        & (min_amount >= 0.0)
-    )
-    return CertificateBatch(balance.copy(), stationarity.copy(), complementarity.copy(), min_amount.copy(),
-                            certified, tuple(result.method), np.asarray(result.iterations))
+    certified = _verdicts(out, np.ascontiguousarray(result.converged, dtype=np.bool_), tolerances.element_balance,
+                          tolerances.stationarity, tolerances.complementarity)
+    columns = np.ascontiguousarray(out.T)
+    return CertificateBatch(columns[0], columns[1], columns[2], columns[3], certified, tuple(result.method),
+                            np.asarray(result.iterations))

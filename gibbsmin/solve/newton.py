@@ -75,6 +75,10 @@ def cold_start(problem: Problem) -> SolverResult:
     )
 
 
+_NO_START = np.zeros((1, 1))
+_NO_PRESENT = np.zeros((1, 1), dtype=bool)
+
+
 @functools.lru_cache(maxsize=64)
 def _same_composition_of(A_c_bytes: bytes, shape: tuple[int, int]) -> np.ndarray:
     A_c = np.frombuffer(A_c_bytes).reshape(shape)
@@ -111,32 +115,21 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         ``converged`` is False where the iteration did not settle; the caller
         decides what to do with those points (see ``solve``).
     """
-    start = start if start is not None else cold_start(problem)
-    G = problem.n_gas
+    cold = start is None
+    # With a cold start the start arrays are not read; any arrays of the right kind will do.
+    start_arrays = (_NO_START, _NO_START, _NO_PRESENT) if cold else (
+        np.ascontiguousarray(start.ln_n_gas, dtype=float), np.ascontiguousarray(start.n_condensed, dtype=float),
+        np.ascontiguousarray(start.present))
     A = np.ascontiguousarray(problem.A, dtype=float)
-    A_g, A_c = np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:])
-    scale = problem.b.sum(axis=1)
-    allowed = np.ascontiguousarray(problem.allowed[:, G:])
-    ln_n = np.ascontiguousarray(start.ln_n_gas - np.log(scale)[:, None], dtype=float)
-    active = np.ascontiguousarray(start.present & allowed)
-    n_c = np.ascontiguousarray(np.where(active, start.n_condensed, 0.0) / scale[:, None], dtype=float)
     B = problem.batch_size
-    pi = np.zeros((B, A.shape[0]))
-    iterations = np.zeros(B, dtype=np.int64)
-    status = np.zeros(B, dtype=np.int64)
-    kernel.iterate_batch(
-        A_g, A_c, np.ascontiguousarray(problem.b / scale[:, None]),
-        np.ascontiguousarray(problem.mu0[:, :G]), np.ascontiguousarray(problem.mu0[:, G:]),
-        allowed, _same_composition(A_c), ln_n, n_c, active, pi, iterations, status,
+    ln_n, n_c, present, pi, iterations, status = kernel.run(
+        A, problem.n_gas, np.ascontiguousarray(problem.b, dtype=float),
+        np.ascontiguousarray(problem.mu0, dtype=float), np.ascontiguousarray(problem.allowed),
+        _same_composition(A[:, problem.n_gas:]), *start_arrays, cold,
         options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
-        B if chains is None else int(chains),
+        B if chains is None else int(chains), B > 1,
     )
     return SolverResult(
-        ln_n_gas=ln_n + np.log(scale)[:, None],
-        n_condensed=np.where(active, n_c, 0.0) * scale[:, None],
-        present=active,
-        pi=pi,
-        converged=status == kernel.CONVERGED,
-        iterations=iterations,
-        method=("newton",) * B,
+        ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
+        converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * B,
     )
