@@ -187,9 +187,13 @@ def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64
     A_kept = system.A[:, problem.keep]
     present = np.any(A_kept != 0.0, axis=1)
     lam = np.full(len(system.elements), np.nan)
-    # Dependent element rows were dropped for the solve; the least-norm
-    # potentials reproduce the same species potentials on all rows.
-    lam[present] = np.linalg.lstsq(A_kept[present].T, pi @ problem.A, rcond=None)[0]
+    if problem.A.shape[0] == np.count_nonzero(present):
+        # No row was dropped: the solve's potentials are those of the present elements, in order.
+        lam[present] = (pi @ problem.basis)[present]
+    else:
+        # Dependent element rows were dropped for the solve; the least-norm
+        # potentials reproduce the same species potentials on all rows.
+        lam[present] = np.linalg.lstsq(A_kept[present].T, pi @ problem.A, rcond=None)[0]
     return {el: float(v) for el, v in zip(system.elements, lam)}
 
 

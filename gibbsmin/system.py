@@ -14,6 +14,8 @@ fixed by the element balance while it still dilutes the gas.
 
 from __future__ import annotations
 
+import functools
+
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
@@ -212,6 +214,13 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
 
 def _independent_rows(A: NDArray[np.float64]) -> NDArray[np.int_]:
     """Indices of a maximal set of linearly independent rows, in their original order."""
+    # The same element matrix recurs call after call (a species set solved at many conditions).
+    return _independent_rows_of(np.ascontiguousarray(A, dtype=float).tobytes(), A.shape).copy()
+
+
+@functools.lru_cache(maxsize=256)
+def _independent_rows_of(data: bytes, shape: tuple[int, int]) -> NDArray[np.int_]:
+    A = np.frombuffer(data).reshape(shape)
     _, r, pivots = scipy.linalg.qr(A.T, mode="economic", pivoting=True)
     diag = np.abs(np.diag(r)) if r.size else np.zeros(0)
     rank = int(np.sum(diag > 1e-10 * max(diag.max(initial=0.0), 1.0)))
