@@ -263,6 +263,24 @@ def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
     return k
 
 
+def _model_of_gas(fractions: Mapping[str, float], gas: str, kij, db: SpeciesDatabase | None):
+    """The cubic over the species of a composition that have critical constants, their fractions, and all names."""
+    from .thermo.database import default_database
+
+    db = db or default_database()
+    names = [s for s, v in fractions.items() if v > 0.0]
+    records = db.resolve(names)
+    described = [r.name for r in records if r.critical is not None]
+    if not described:
+        raise InputError(f"none of {', '.join(names)} has critical constants, so the {gas} model describes nothing "
+                         "here; use the ideal gas")
+    pairs, _ = _interaction_pairs(kij, gas, described)
+    model = gas_model_for_species(gas, described, database=db,
+                                  kij=_kij_matrix(pairs, described, tuple(described)) if pairs else "none")
+    amounts = np.array([float(fractions[next(k for k in fractions if db[k].name == s)]) for s in described])
+    return model, described, amounts, [r.name for r in records]
+
+
 def ln_phi_of_gas(fractions: Mapping[str, float], T: float, P: float, gas: str, *,
                   kij: str | Mapping[tuple[str, str], float] | None = "shipped",
                   db: SpeciesDatabase | None = None) -> dict[str, float]:
@@ -272,23 +290,26 @@ def ln_phi_of_gas(fractions: Mapping[str, float], T: float, P: float, gas: str, 
     here).  As in :func:`gas_phase`, species without critical constants are
     ideal (ln phi = 0) and left out of the mixture; ``kij`` as there.
     """
-    from .thermo.database import default_database
+    if canonical_model_name(gas) == "ideal" or not any(v > 0.0 for v in fractions.values()):
+        return {s: 0.0 for s, v in fractions.items() if v > 0.0}
+    model, described, amounts, names = _model_of_gas(fractions, gas, kij, db)
+    ln_phi = dict(zip(described, model.ln_phi(float(T), float(P), amounts / amounts.sum())))
+    return {name: float(ln_phi.get(name, 0.0)) for name in names}
 
-    db = db or default_database()
-    names = [s for s, v in fractions.items() if v > 0.0]
-    if canonical_model_name(gas) == "ideal" or not names:
-        return {s: 0.0 for s in names}
-    records = db.resolve(names)
-    described = [r.name for r in records if r.critical is not None]
-    if not described:
-        raise InputError(f"none of {', '.join(names)} has critical constants, so the {gas} model describes nothing "
-                         "here; use the ideal gas")
-    pairs, _ = _interaction_pairs(kij, gas, described)
-    model = gas_model_for_species(gas, described, database=db,
-                                  kij=_kij_matrix(pairs, described, tuple(described)) if pairs else "none")
-    y = np.array([float(fractions[s]) for s in described])
-    ln_phi = dict(zip(described, model.ln_phi(float(T), float(P), y / y.sum())))
-    return {r.name: float(ln_phi.get(r.name, 0.0)) for r in records}
+
+def residual_enthalpy_of_gas(amounts: Mapping[str, float], T: float, P: float, gas: str, *,
+                             kij: str | Mapping[tuple[str, str], float] | None = "shipped",
+                             db: SpeciesDatabase | None = None) -> float:
+    """Residual enthalpy h - h_ideal of a gas given as species amounts [mol] at T [K], P [Pa], [J].
+
+    Species without critical constants are left out, as in :func:`gas_phase`;
+    zero for the ideal gas.
+    """
+    if canonical_model_name(gas) == "ideal" or not any(v > 0.0 for v in amounts.values()):
+        return 0.0
+    model, _, described_amounts, _ = _model_of_gas(amounts, gas, kij, db)
+    total = float(described_amounts.sum())
+    return float(total * R * T * model.properties(float(T), float(P), described_amounts / total).H_res_RT)
 
 
 # ----------------------------------------------------------------------------- the outer loop

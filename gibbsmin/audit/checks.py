@@ -191,10 +191,18 @@ def _component_check(where: str, inlet, outlet, limit: Limit) -> Check:
     return Check(where, "component closure", closures[worst], "%", limit.verdict(abs(closures[worst])), detail)
 
 
-def _enthalpy(stream: TableStream, T: float | None = None) -> float:
+def _enthalpy(stream: TableStream, T: float | None = None, gas: str = "ideal") -> float:
+    """Enthalpy flow of a stream [W]: ideal-gas enthalpies, plus the gas's residual enthalpy under a cubic."""
     from ..energy import mixture_enthalpy
 
-    return mixture_enthalpy(stream.flows, stream.T if T is None else T, stream.P, db=stream.stream.database)
+    T = stream.T if T is None else T
+    db = stream.stream.database
+    H = mixture_enthalpy(stream.flows, T, stream.P, db=db)
+    if gas != "ideal":
+        from ..nonideal import residual_enthalpy_of_gas
+
+        H += residual_enthalpy_of_gas(_gas(stream.flows, db), T, stream.P, gas, db=db)
+    return H
 
 
 def _energy_check(where: str, spec: UnitSpec, inlets: Sequence[TableStream], outlets: Sequence[TableStream],
@@ -205,14 +213,15 @@ def _energy_check(where: str, spec: UnitSpec, inlets: Sequence[TableStream], out
     if spec.duty is None:
         return Check(where, "energy balance", None, "K", "n/a", "no duty stated (give duty = '... MW' or "
                      "adiabatic = true)")
-    H_in = sum(_enthalpy(s) for s in inlets)
-    H_out = sum(_enthalpy(s) for s in outlets)
+    H_in = sum(_enthalpy(s, gas=spec.gas) for s in inlets)
+    H_out = sum(_enthalpy(s, gas=spec.gas) for s in outlets)
     imbalance = H_out - H_in - spec.duty
-    heat_capacity = sum(_enthalpy(s, s.T + 0.5) - _enthalpy(s, s.T - 0.5) for s in outlets)
+    heat_capacity = sum(_enthalpy(s, s.T + 0.5, spec.gas) - _enthalpy(s, s.T - 0.5, spec.gas) for s in outlets)
     as_kelvin = imbalance / heat_capacity
     share = f" ({100 * imbalance / abs(spec.duty):+.1f} % of the duty)" if spec.duty else ""
-    detail = (f"H_out - H_in = {(H_out - H_in) / 1e6:.4g} MW, stated duty {spec.duty / 1e6:.4g} MW: imbalance "
-              f"{imbalance / 1e6:+.4g} MW{share}, {as_kelvin:+.3g} K on the outlet temperature")
+    basis = "" if spec.gas == "ideal" else f" (with the {spec.gas} residual enthalpy of each stream)"
+    detail = (f"H_out - H_in = {(H_out - H_in) / 1e6:.4g} MW{basis}, stated duty {spec.duty / 1e6:.4g} MW: "
+              f"imbalance {imbalance / 1e6:+.4g} MW{share}, {as_kelvin:+.3g} K on the outlet temperature")
     return Check(where, "energy balance", as_kelvin, "K", limit.verdict(abs(as_kelvin)), detail)
 
 

@@ -117,7 +117,7 @@ class UnitSpec:
     carbon : bool
         Check the carbon activity at the outlet (reactors).
     gas : str
-        Gas model of the reactor's approach and equilibrium reference: "ideal" (default),
+        Gas model of the reactor's approach, equilibrium reference and energy balance: "ideal" (default),
         "peng-robinson" or "srk" (fugacities at the stream's own T, P and composition).
     line : int or None
     """
@@ -171,7 +171,7 @@ AUDIT_KEYS: dict[str, dict[str, str]] = {
         "frozen": "reactors: species that do not react here, e.g. ['CH4', 'N2']",
         "species": "reactors: species set of the equilibrium reference (default: the gas species of the unit's streams)",
         "carbon": "reactors: false to skip the carbon-activity check (default true)",
-        "gas": "reactors: gas model of the approach and equilibrium checks: 'ideal' (default), 'peng-robinson' "
+        "gas": "reactors: gas model of the approach, equilibrium and energy checks: 'ideal' (default), 'peng-robinson' "
                "or 'srk' (for loops at high pressure; shipped kij)",
     },
     "stream table rows": dict(ROW_LABELS),
