@@ -537,6 +537,36 @@ def _note(phase: GasPhase, ideal_fraction: float) -> str:
     return text
 
 
+def nonideal_sensitivities(setup: Setup, phase: GasPhase, result: SolverResult, T: float, P: float, *,
+                           method: str = "auto", allow_extrapolation: bool = False,
+                           db: SpeciesDatabase | None = None):
+    """d(amounts)/dT, d/dP, d/d(feed) and heat capacities of a non-ideal answer, phi moving with them.
+
+    Central differences of whole non-ideal solves, each warm-started from
+    ``result`` (``sensitivity.difference_sensitivities``); the heat
+    capacities include the residual enthalpy.
+    """
+    from . import energy, sensitivity
+    from .thermo.database import default_database
+
+    system = setup.system
+    feed_species = list(setup.feed)
+    columns = system.element_matrix((db or default_database()).resolve(feed_species))
+
+    def amounts_at(T_now: float, P_now: float, b: NDArray[np.float64]) -> NDArray[np.float64]:
+        moved = replace(setup, b=b)
+        eq, _, _ = solve_nonideal(moved, T_now, P_now, phase, method=method, start=result,
+                                  allow_extrapolation=allow_extrapolation)
+        return energy.state_amounts(moved, eq)
+
+    def enthalpy_at(T_now: float, n: NDArray[np.float64]) -> float:
+        return energy.enthalpy(system.table, system.n_gas, n, T_now, P, phase.residual_enthalpy)
+
+    return sensitivity.difference_sensitivities(
+        system.names, T, P, setup.b, {name: columns[:, k] for k, name in enumerate(feed_species)},
+        amounts_at, enthalpy_at)
+
+
 # ----------------------------------------------------------------------------- the energy balance
 
 def inlet_residual_enthalpy(phase: GasPhase, inlet, P: float) -> float:

@@ -26,8 +26,9 @@ that bordered system (``settle_on_phase_set``) finds the state on the plateau
 where the heat sets only the split between the coexisting phases.
 
 Quantities are scaled by s = sum(b): amounts nu = n/s, enthalpies h/RT,
-temperature steps tau = dT/T.  The gas is ideal here (fugacity coefficients
-held fixed): with a non-ideal gas the sensitivities are those at fixed phi.
+temperature steps tau = dT/T.  The gas is ideal here; for a cubic gas, whose
+ln phi moves with T, P and composition, :func:`difference_sensitivities`
+differentiates whole solves instead.
 """
 
 from __future__ import annotations
@@ -240,6 +241,49 @@ def equilibrium_sensitivities(setup: Setup, problem: Problem, result: SolverResu
         heat_capacity_frozen=frozen,
         heat_capacity_equilibrium=frozen + float(H_J @ full[:, 0]),
     )
+
+
+#: Relative step of the central differences of :func:`difference_sensitivities`.
+DIFFERENCE_STEP = 1e-4
+
+
+def difference_sensitivities(
+    names: Sequence[str],
+    T: float,
+    P: float,
+    b: NDArray[np.float64],
+    feed_columns: Mapping[str, NDArray[np.float64]],
+    amounts_at: Callable[[float, float, NDArray[np.float64]], NDArray[np.float64]],
+    enthalpy_at: Callable[[float, NDArray[np.float64]], float],
+    *,
+    step: float = DIFFERENCE_STEP,
+) -> Sensitivities:
+    """Sensitivities by central differences of whole solves, for models whose potentials depend on composition.
+
+    With a cubic gas, ln phi moves with T, P and the composition, which the
+    implicit differentiation above holds fixed.  Here every derivative is
+    (x(c + h) - x(c - h)) / 2h of re-solved equilibria (``amounts_at(T, P, b)``
+    gives the amounts in ``names`` order, warm-started by the caller), and the
+    heat capacities differentiate ``enthalpy_at(T, amounts)`` (the residual
+    enthalpy included): about 1e-8 relative, as the solves are converged to
+    1e-12.  A phase appearing within the step makes the derivative one-sided.
+    """
+    n = amounts_at(T, P, b)
+    dT, dP = step * T, step * P
+    hotter, colder = amounts_at(T + dT, P, b), amounts_at(T - dT, P, b)
+    dn_dT = (hotter - colder) / (2 * dT)
+    dn_dP = (amounts_at(T, P + dP, b) - amounts_at(T, P - dP, b)) / (2 * dP)
+    scale = float(np.abs(b).sum())
+    dn_dfeed = {}
+    for name, column in feed_columns.items():
+        h = step * scale / max(float(np.abs(column).sum()), 1e-300)
+        if np.any(b - h * column < 0.0):  # a species the feed lacks cannot be taken away: one-sided
+            dn_dfeed[name] = (amounts_at(T, P, b + h * column) - n) / h
+        else:
+            dn_dfeed[name] = (amounts_at(T, P, b + h * column) - amounts_at(T, P, b - h * column)) / (2 * h)
+    frozen = (enthalpy_at(T + dT, n) - enthalpy_at(T - dT, n)) / (2 * dT)
+    equilibrium = (enthalpy_at(T + dT, hotter) - enthalpy_at(T - dT, colder)) / (2 * dT)
+    return Sensitivities(tuple(names), dn_dT, dn_dP, dn_dfeed, float(frozen), float(equilibrium))
 
 
 def settle_on_phase_set(

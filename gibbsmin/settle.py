@@ -263,7 +263,9 @@ def equilibrate(
         Use polynomials outside their fitted temperature ranges.
     sensitivities : bool
         Add ``extras["sensitivities"]``: d(amounts)/dT, d/dP, d/d(feed) and
-        the equilibrium and frozen heat capacities (``sensitivity.Sensitivities``).
+        the equilibrium and frozen heat capacities (``sensitivity.Sensitivities``);
+        with a cubic gas by central differences of whole solves, so that phi
+        moves with the conditions.
     T_bounds : (float, float), optional
         Lowest and highest outlet temperature the energy balance may give,
         [K]; by default the range where every named gas species has data.
@@ -340,7 +342,10 @@ def equilibrate(
                                                       allow_extrapolation=allow_extrapolation)
     extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                   residual_enthalpy=None if phase is None else phase.residual_enthalpy)
-    if sensitivities:
+    if sensitivities and phase is not None:
+        extras["sensitivities"] = nonideal.nonideal_sensitivities(
+            setup, phase, result, eq.T, P, method=method, allow_extrapolation=allow_extrapolation, db=db).to_dict()
+    elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
     return checked(energy.with_extras(eq, extras))

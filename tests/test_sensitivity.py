@@ -10,6 +10,8 @@ independent equilibrium enthalpy for the heat capacity check.
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 import pytest
 
@@ -120,3 +122,60 @@ def test_on_a_two_phase_plateau_temperature_derivatives_do_not_exist():
     assert s["heat_capacity_equilibrium_J_per_K"] is None
     assert s["dn_dT_mol_per_K"]["H2O(s)"] is None
     assert s["heat_capacity_frozen_J_per_K"] > 0
+
+
+# --- with a cubic gas: central differences of whole solves ------------------------------------------------
+
+LOOP = {"H2": 64.5, "N2": 21.5, "NH3": 3.0, "CH4": 7.0, "Ar": 4.0}
+
+
+def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas():
+    # Two independent methods on the same ideal-gas answer: the central differences used for cubic gases
+    # and the implicit differentiation of the optimality conditions agree to 1e-6 relative.
+    from gibbsmin import energy
+    from gibbsmin.sensitivity import difference_sensitivities, equilibrium_sensitivities
+    from gibbsmin.settle import prepare, solve_fixed
+
+    T, P = 723.15, 200e5
+    setup = prepare(LOOP, inert=["CH4", "Ar"], T_span=(T, T))
+    eq, problem, result = solve_fixed(setup, T, P)
+    exact = equilibrium_sensitivities(setup, problem, result, T, P)
+    system = setup.system
+    columns = system.element_matrix(gibbsmin.default_database().resolve(list(setup.feed)))
+
+    def amounts_at(T_now, P_now, b):
+        moved = dataclasses.replace(setup, b=b)
+        return energy.state_amounts(moved, solve_fixed(moved, T_now, P_now, start=result)[0])
+
+    def enthalpy_at(T_now, n):
+        return energy.enthalpy(system.table, system.n_gas, n, T_now, P)
+
+    differenced = difference_sensitivities(system.names, T, P, setup.b,
+                                           {name: columns[:, k] for k, name in enumerate(setup.feed)},
+                                           amounts_at, enthalpy_at)
+    scale = np.abs(exact.dn_dT).max()
+    np.testing.assert_allclose(differenced.dn_dT, exact.dn_dT, rtol=0, atol=1e-6 * scale)
+    np.testing.assert_allclose(differenced.dn_dP, exact.dn_dP, rtol=0, atol=1e-6 * np.abs(exact.dn_dP).max())
+    for name in setup.feed:
+        np.testing.assert_allclose(differenced.dn_dfeed[name], exact.dn_dfeed[name], rtol=0, atol=1e-6)
+    assert differenced.heat_capacity_equilibrium == pytest.approx(exact.heat_capacity_equilibrium, rel=1e-6)
+    assert differenced.heat_capacity_frozen == pytest.approx(exact.heat_capacity_frozen, rel=1e-6)
+
+
+def test_peng_robinson_sensitivities_let_phi_move():
+    # Internal consistency: against central differences of equilibrate itself with another step, and
+    # conservation of every element; the cubic moves dNH3/dT by 8 % from the ideal gas's here.
+    T, P = 723.15, 200e5
+    eq = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], gas="peng-robinson", sensitivities=True)
+    found = eq.extras["sensitivities"]
+    h = 0.05
+    up = gibbsmin.equilibrate(LOOP, T + h, P, inert=["CH4", "Ar"], gas="peng-robinson")
+    down = gibbsmin.equilibrate(LOOP, T - h, P, inert=["CH4", "Ar"], gas="peng-robinson")
+    assert found["dn_dT_mol_per_K"]["NH3"] == pytest.approx((up.amounts["NH3"] - down.amounts["NH3"]) / (2 * h),
+                                                             rel=1e-6)
+    assert found["heat_capacity_equilibrium_J_per_K"] == pytest.approx(
+        (up.extras["enthalpy_J"] - down.extras["enthalpy_J"]) / (2 * h), rel=1e-6)
+    dn_dT = found["dn_dT_mol_per_K"]
+    assert abs(3 * dn_dT["NH3"] + 2 * dn_dT["H2"]) < 1e-8 and abs(dn_dT["NH3"] + 2 * dn_dT["N2"]) < 1e-8
+    ideal_phi = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], sensitivities=True).extras["sensitivities"]
+    assert abs(dn_dT["NH3"] / ideal_phi["dn_dT_mol_per_K"]["NH3"] - 1.0) > 0.05
