@@ -521,6 +521,62 @@ def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, re
     })
 
 
+#: The tangent-plane test is skipped above this multiple of the highest Tc among the gas's species present
+#: above 1 ppm: no liquid-like phase of a gas mixture forms that far above its heaviest component's
+#: critical temperature (common practice, no source), and the hot reactors are the common case.
+STABILITY_SCREEN = 1.5
+_SCREEN_FRACTION = 1e-6
+
+
+def gas_stability(phase: GasPhase, eq: Equilibrium) -> dict[str, object]:
+    """Whether an answer's gas is stable as one phase (``eos.stability``), as a JSON-ready record.
+
+    ``{"tested": bool, "stable": bool or None, "distance": float, "would_form": {species: y} or None,
+    "note": str}``; a liquid-like phase that would form means the one-gas answer is not the equilibrium.
+    """
+    from .eos.stability import tangent_plane_test
+
+    names = [phase.gas_names[j] for j in phase.described]
+    n = np.array([eq.amounts.get(name, 0.0) for name in names])
+    if phase.is_ideal or not n.sum() > 0.0:
+        return {"tested": False, "stable": None, "distance": 0.0, "would_form": None, "note": "ideal gas"}
+    z = n / n.sum()
+    Tc = phase.model.critical_temperatures
+    hottest = float(Tc[z > _SCREEN_FRACTION].max())
+    if eq.T > STABILITY_SCREEN * hottest:
+        return {"tested": False, "stable": True, "distance": 0.0, "would_form": None,
+                "note": f"not tested: T is above {STABILITY_SCREEN:g} times the highest Tc present ({hottest:.0f} K)"}
+    verdict = tangent_plane_test(phase.model, eq.T, eq.P, z)
+    would_form = None if verdict.trial is None else {
+        name: float(w) for name, w in zip(names, verdict.trial) if w > 1e-4}
+    held = _condensate_already_held(eq, would_form)
+    if held:
+        return {"tested": True, "stable": True, "distance": verdict.distance, "would_form": would_form,
+                "note": f"the liquid-like phase the test finds is the {held} the answer already holds"}
+    note = "stable as one gas (tangent-plane test)" if verdict.stable else (
+        "NOT stable as one gas: a liquid-like phase would form (" + ", ".join(
+            f"{s} {100 * w:.1f} mol%" for s, w in sorted(would_form.items(), key=lambda kv: -kv[1])[:4])
+        + "); gibbsmin has no liquid-solution phase, so this one-gas answer is not the equilibrium: raise T, "
+          "lower P, or treat the condensate separately")
+    return {"tested": True, "stable": verdict.stable, "distance": verdict.distance, "would_form": would_form,
+            "note": note}
+
+
+def _condensate_already_held(eq: Equilibrium, would_form: Mapping[str, float] | None) -> str | None:
+    """The present condensed species that is the would-be phase (one species at 99 % and more), if any."""
+    if not would_form:
+        return None
+    main, share = max(would_form.items(), key=lambda kv: kv[1])
+    if share < 0.99:
+        return None
+    from .thermo.database import default_database
+
+    db = default_database()
+    elements = dict(db[main].elements)
+    return next((s for s, n in eq.amounts.items()
+                 if n > 0.0 and eq.phase_of.get(s) != "gas" and dict(db[s].elements) == elements), None)
+
+
 def _kij_note(phase: GasPhase) -> str:
     if not phase.kij:
         return "kij = 0 for every pair"

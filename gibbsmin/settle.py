@@ -342,6 +342,10 @@ def equilibrate(
                                                       allow_extrapolation=allow_extrapolation)
     extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                   residual_enthalpy=None if phase is None else phase.residual_enthalpy)
+    if phase is not None:
+        extras["gas_phase_stability"] = stability = nonideal.gas_stability(phase, eq)
+        if stability["stable"] is False:
+            warnings.warn(stability["note"], RuntimeWarning, stacklevel=2)
     if sensitivities and phase is not None:
         extras["sensitivities"] = nonideal.nonideal_sensitivities(
             setup, phase, result, eq.T, P, method=method, allow_extrapolation=allow_extrapolation, db=db).to_dict()

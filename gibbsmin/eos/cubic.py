@@ -34,7 +34,7 @@ from .families import CubicFamily
 from .inputs import check_conditions
 from .quantum import QuantumGas, QuantumTable, quantum_gases_of
 from .result import GasProperties
-from .roots import vapour_root
+from .roots import real_roots, vapour_root
 
 FloatArray = NDArray[np.float64]
 
@@ -74,6 +74,8 @@ class _Species:
     b: FloatArray  # [m^3/mol]
     Tc: FloatArray  # [K]
     kappa: FloatArray  # [-]
+    Pc: FloatArray  # [Pa]
+    omega: FloatArray  # [-]
 
 
 class CubicModel:
@@ -153,6 +155,8 @@ class CubicModel:
             b=family.omega_b * R * Tc / Pc,
             Tc=Tc,
             kappa=np.asarray(family.kappa(omega), dtype=float),
+            Pc=Pc,
+            omega=omega,
         )
         self._quantum = QuantumTable.of(gases, Tc, Pc) if gases else None
 
@@ -211,6 +215,51 @@ class CubicModel:
 
     # -- evaluation --------------------------------------------------------------------
 
+    def _at_root(self, Z, A, B, beta, abar, log):
+        """ln phi_i, G_res/RT, ln((Z + d1 B)/(Z + d2 B)) and ln(Z - B) at the root Z."""
+        fam = self.family
+        L = log((Z + fam.delta1 * B) / (Z + fam.delta2 * B))
+        ln_Z_B = log(Z - B)
+        A_BD = A / (B * (fam.delta1 - fam.delta2))
+        return beta * (Z - 1.0) - ln_Z_B - A_BD * L * (abar - beta), Z - 1.0 - ln_Z_B - A_BD * L, L, ln_Z_B
+
+    def ln_phi_least_gibbs_root(self, T: float, P: float, y: ArrayLike) -> tuple[NDArray[np.float64], float]:
+        """ln phi [-] and G_res/RT [-] at the real root of least Gibbs energy, for one condition.
+
+        A phase-stability test needs this for its trial phases, which may be
+        liquid-like; the equilibrium's gas itself always takes the vapour root
+        (see :func:`gibbsmin.eos.roots.vapour_root`).
+        """
+        T, P, y, single = check_conditions(T, P, y, self.n_species)
+        if not single:
+            raise InputError("ln_phi_least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
+        sqrt_a, _, b_i, _ = self._pure(T)
+        q = self._mix(y, sqrt_a)
+        a = _weighted_sum(y, sqrt_a * q)
+        b = _weighted_sum(y, b_i)
+        A, B = a * P / (R * T) ** 2, b * P / (R * T)
+        beta, abar = b_i / b, (2.0 / a) * sqrt_a * q
+        best = None
+        for Z in real_roots(*self.family.cubic_coefficients(A, B), B):
+            ln_phi, g, _, _ = self._at_root(Z, A, B, beta, abar, math.log)
+            if best is None or g < best[1]:
+                best = (ln_phi, g)
+        return best
+
+    def wilson_ratios(self, T: float, P: float) -> NDArray[np.float64]:
+        """Wilson's estimate of the vapour-liquid ratios K_i = (Pc_i/P) exp(5.373 (1 + omega_i)(1 - Tc_i/T)).
+
+        Wilson (1969), the customary start of a stability test; quantum gases
+        at their classical constants.
+        """
+        sp = self._species
+        return sp.Pc / P * np.exp(5.373 * (1.0 + sp.omega) * (1.0 - sp.Tc / T))
+
+    @property
+    def critical_temperatures(self) -> NDArray[np.float64]:
+        """Tc of each species, [K] (quantum gases: their classical limit)."""
+        return self._species.Tc.copy()
+
     def properties(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False) -> GasProperties:
         """Z, ln phi, residual enthalpy and entropy of the gas at T, P and y.
 
@@ -247,13 +296,10 @@ class CubicModel:
         Z = vapour_root(*fam.cubic_coefficients(A, B), B)
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
-        L = log(Zpd1 / Zpd2)
-        ln_Z_B = log(Z - B)
         beta = b_i / b
         abar = (2.0 / a) * sqrt_a * q
         A_BD = A / (B * Delta)
-        ln_phi = beta * (Z - 1.0) - ln_Z_B - A_BD * L * (abar - beta)
-        g = Z - 1.0 - ln_Z_B - A_BD * L
+        ln_phi, g, L, ln_Z_B = self._at_root(Z, A, B, beta, abar, log)
 
         da = 2.0 * _weighted_sum(y, dsqrt_a * q)
         db = _weighted_sum(y, db_i) if self._quantum is not None else 0.0

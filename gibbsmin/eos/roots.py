@@ -1,4 +1,4 @@
-"""The vapour root of the compressibility cubic."""
+"""The roots of the compressibility cubic: the vapour root, and all physical roots for stability tests."""
 
 from __future__ import annotations
 
@@ -76,3 +76,21 @@ def _not_converged(step: float) -> str:
         f"(last Newton step {step:.3g}); the state is probably at a critical point of the "
         "mixture: move T or P slightly or use gas='ideal'"
     )
+
+
+def real_roots(c2: float, c1: float, c0: float, B: float) -> list[float]:
+    """The real roots Z > B of Z^3 + c2 Z^2 + c1 Z + c0 = 0 (one condition), largest first.
+
+    Only Z > B is a physical volume (v > b).  The vapour root comes from
+    :func:`vapour_root`; the others from the quadratic left once it is divided out.
+    """
+    Z_v = _scalar_root(c2, c1, c0, B)
+    # Z^3 + c2 Z^2 + c1 Z + c0 = (Z - Z_v)(Z^2 + p Z + r)
+    p = c2 + Z_v
+    r = c1 + p * Z_v
+    disc = p * p - 4.0 * r
+    roots = [Z_v]
+    if disc >= 0.0:
+        s = disc ** 0.5
+        roots += [z for z in ((-p + s) / 2.0, (-p - s) / 2.0) if B < z < Z_v]
+    return roots

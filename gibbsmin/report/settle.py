@@ -271,6 +271,10 @@ def settle_report(result: CaseResult) -> Report:
     first = result.stages[0].equilibrium
     facts = [("case file", case.source), ("gas model", _gas_model_text(first)),
              ("amounts", "flows; the feed's flows are taken as amounts per second")]
+    for stage in result.stages:
+        stability = stage.equilibrium.extras.get("gas_phase_stability")
+        if stability and stability.get("tested"):
+            facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
     for feed in case.feeds:
         stream = feed.stream

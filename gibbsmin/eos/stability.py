@@ -1,0 +1,87 @@
+"""Is a gas of a cubic equation of state stable as one phase?  The tangent-plane test.
+
+A mixture z at T, P is stable as one phase when no trial composition w has a
+negative tangent-plane distance
+
+    tpd(w) = sum_i w_i [ln w_i + ln phi_i(w) - ln z_i - ln phi_i(z)]
+
+(Michelsen, 1982, "The isothermal flash problem. Part I. Stability", Fluid
+Phase Equilibria 9, 1-19).  Its stationary points satisfy
+ln W_i = ln z_i + ln phi_i(z) - ln phi_i(w) with w = W / sum W, where the
+modified distance is 1 - sum W; successive substitution from Wilson's
+K-values (a vapour-like trial z K and a liquid-like one z / K) finds them.
+Each trial phase takes the root of least Gibbs energy, so a liquid-like trial
+is a liquid.
+
+gibbsmin has no liquid-solution phase: the equilibrium's gas always takes the
+vapour root.  This test tells the caller when that one gas is not the answer
+(a loop gas cooled below its dew point, say).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from .cubic import CubicModel
+
+#: A stationary point below this distance means the gas splits [-].
+UNSTABLE_BELOW = -1e-8
+_MAX_ITERATIONS = 300
+_TOLERANCE = 1e-10
+#: A trial within this of z (max |w - z|) has converged to the gas itself.
+_TRIVIAL = 1e-5
+
+
+@dataclass(frozen=True)
+class Stability:
+    """The verdict of a tangent-plane test.
+
+    Attributes
+    ----------
+    stable : bool
+    distance : float
+        The lowest modified tangent-plane distance 1 - sum W found at a
+        non-trivial stationary point [-]; 0.0 when every trial ran back to z.
+    trial : ndarray or None
+        The composition of the phase that would form (mole fractions, the
+        model's species order), when unstable.
+    """
+
+    stable: bool
+    distance: float
+    trial: NDArray[np.float64] | None = None
+
+
+def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike) -> Stability:
+    """Whether the gas z [mole fractions, the model's order] at T [K], P [Pa] is stable as one phase."""
+    z = np.asarray(z, dtype=float)
+    z = z / z.sum()
+    there = z > 0.0
+    d = np.full(z.shape, -np.inf)
+    d[there] = np.log(z[there]) + model.ln_phi(T, P, z)[there]  # the gas as the equilibrium has it
+    K = model.wilson_ratios(T, P)
+    lowest, trial = 0.0, None
+    for start in (z * K, z / K):
+        W = np.where(there, start, 0.0)
+        for _ in range(_MAX_ITERATIONS):
+            w = W / W.sum()
+            ln_phi, _ = model.ln_phi_least_gibbs_root(T, P, w)
+            new = np.where(there, np.exp(np.where(there, d - ln_phi, 0.0)), 0.0)
+            step = float(np.max(np.abs(np.log(new[there]) - np.log(W[there]))))
+            W = new
+            if step < _TOLERANCE:
+                break
+        w = W / W.sum()
+        distance = 1.0 - float(W.sum())
+        # Back at z on the gas's own root is the trivial point; at z on another root (a pure fluid above
+        # its vapour pressure, say) the distance tells.
+        if float(np.max(np.abs(w - z))) < _TRIVIAL and abs(distance) < -UNSTABLE_BELOW:
+            continue
+        if math.isfinite(distance) and distance < lowest:
+            lowest, trial = distance, w
+    stable = lowest >= UNSTABLE_BELOW
+    return Stability(stable, lowest, None if stable else trial)
