@@ -134,6 +134,8 @@ def carbon_activity(
     P: float | str | None = None,
     *,
     ln_phi: Mapping[str, float] | None = None,
+    gas: str | None = None,
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
 ) -> CarbonActivity:
     """Carbon activity of a gas against graphite, by methane cracking, Boudouard and CO reduction.
@@ -146,6 +148,9 @@ def carbon_activity(
         Temperature [K] and pressure [Pa], or texts with units.
     ln_phi : mapping, optional
         Gas species to ln of its fugacity coefficient, for a non-ideal gas.
+    gas, kij : optional
+        A cubic gas model to compute them instead (a measured gas at
+        pressure); see :func:`gibbsmin.reactions.gas_state`.
     db : SpeciesDatabase, optional
 
     Returns
@@ -160,7 +165,7 @@ def carbon_activity(
     True
     """
     db = db or default_database()
-    state = gas_state(composition, T, P, ln_phi=ln_phi, db=db)
+    state = gas_state(composition, T, P, ln_phi=ln_phi, gas=gas, kij=kij, db=db)
     by_reaction = {}
     for name in CARBON_REACTIONS:
         rx = reaction(name, db=db)
@@ -214,7 +219,8 @@ class _SteamScan:
     """Gas-only equilibria of a feed with a variable amount of steam, at one T and P."""
 
     def __init__(self, feed: Mapping[str, float], T: float, P: float, carbon_basis: str,
-                 species: Sequence[str] | None, exclude: Sequence[str], method: str, db: SpeciesDatabase):
+                 species: Sequence[str] | None, exclude: Sequence[str], method: str, db: SpeciesDatabase,
+                 *, gas: str = "ideal", kij="shipped"):
         if GRAPHITE in {db[name].name for name in exclude}:
             raise InputError("a carbon limit needs graphite in the species set; do not exclude C(s)")
         amounts = check_feed(feed, db)
@@ -233,6 +239,11 @@ class _SteamScan:
         self.g0_graphite = _g0_graphite(T, db)
         self.start = None
         self.evaluations = 0
+        self.phase = None
+        if gas != "ideal":
+            from .nonideal import gas_phase  # the cubic's outer loop builds on the ideal-gas solve
+
+            self.phase = gas_phase(self.setup.system, gas, kij=kij)
 
     @property
     def lowest_ratio(self) -> float:
@@ -243,7 +254,12 @@ class _SteamScan:
         """ln a_C of the gas-only equilibrium at this S/C, [-]."""
         added = steam_to_carbon * self.carbon - self.water
         setup = dataclasses.replace(self.setup, b=self.setup.b + added * self.b_steam)
-        eq, _, result = solve_fixed(setup, self.T, self.P, method=self.method, start=self.start)
+        if self.phase is None:
+            eq, _, result = solve_fixed(setup, self.T, self.P, method=self.method, start=self.start)
+        else:
+            from .nonideal import solve_nonideal
+
+            eq, _, result = solve_nonideal(setup, self.T, self.P, self.phase, method=self.method, start=self.start)
         eq = checked(eq, stacklevel=4)
         self.start = result
         self.evaluations += 1
@@ -261,6 +277,8 @@ def carbon_limit(
     bracket: tuple[float, float] = (0.05, 8.0),
     xtol: float = 1e-9,
     method: str = "auto",
+    gas: str = "ideal",
+    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
 ) -> CarbonLimit:
     """The minimum steam-to-carbon ratio at which graphite stops being stable at equilibrium.
@@ -284,6 +302,8 @@ def carbon_limit(
     xtol : float
         Absolute tolerance of the limit, [-].
     method : {"auto", "newton", "convex"}
+    gas, kij : optional
+        The gas model of the equilibria, as for :func:`gibbsmin.equilibrate`.
     db : SpeciesDatabase, optional
 
     Returns
@@ -306,7 +326,7 @@ def carbon_limit(
         raise InputError(f"carbon_basis must be one of {', '.join(map(repr, CARBON_BASES))}, not {carbon_basis!r}")
     low, high = _checked_bracket(bracket)
     scan = _SteamScan(feed.feed_mol() if isinstance(feed, Stream) else feed, T, P, carbon_basis,
-                      species, exclude, method, db)
+                      species, exclude, method, db, gas=gas, kij=kij)
     low = max(low, scan.lowest_ratio)
     if scan.ln_activity(low) <= 0.0:
         return CarbonLimit(T, P, math.nan, carbon_basis, f"carbon-free down to S/C = {low:g}", scan.evaluations)
