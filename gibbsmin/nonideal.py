@@ -49,7 +49,7 @@ from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError
 from .eos import (GasModel, GasProperties, IdealGasModel, canonical_model_name, default_interactions,
                   gas_model_for_species)
-from .settle import Setup, build_problem, solve_fixed, to_equilibrium
+from .settle import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from .solve import CertificateBatch, SolverResult, certify, solve
 from .system import Problem, System
 from .thermo.database import SpeciesDatabase
@@ -141,7 +141,8 @@ class GasPhase:
         """
         ln_phi = np.zeros(len(self.gas_names))
         if not self.is_ideal:
-            ln_phi[self.described] = self.properties(T, P, n_gas).ln_phi
+            y, _ = self._described_fractions(n_gas)
+            ln_phi[self.described] = self.model.ln_phi(float(T), float(P), y)
         return ln_phi
 
     def ln_phi_batch(self, T: NDArray[np.float64], P: NDArray[np.float64],
@@ -151,7 +152,7 @@ class GasPhase:
         if not self.is_ideal:
             part = np.asarray(n_gas, dtype=float)[:, self.described]
             y = part / part.sum(axis=1, keepdims=True)
-            ln_phi[:, self.described] = self.model.properties(np.asarray(T, float), np.asarray(P, float), y).ln_phi
+            ln_phi[:, self.described] = self.model.ln_phi(np.asarray(T, float), np.asarray(P, float), y)
         return ln_phi
 
     def residual_enthalpy(self, T: float, P: float, n_gas: NDArray[np.float64]) -> float:
@@ -405,9 +406,8 @@ def solve_nonideal(
     x = _first_guess(setup, phase, T, P, start, allow_extrapolation)
     # The first pass builds the problem (data ranges, offsets); the later ones change only the gas
     # potentials, by the new ln phi, and re-solve the same problem from the previous answer.
-    eq, problem, result = solve_fixed(setup, T, P, method=method, offsets=offsets, ln_phi=x, start=start,
-                                      allow_extrapolation=allow_extrapolation, gas_model=phase.name,
-                                      specification=specification)
+    problem = fixed_problem(setup, T, P, offsets=offsets, ln_phi=x, allow_extrapolation=allow_extrapolation)
+    result, certificates = solve(problem, method, start=start)
     kept_gas = problem.keep[: problem.n_gas]
     ideal_mu0 = problem.mu0.copy()
     ideal_mu0[:, : problem.n_gas] -= x[kept_gas]
@@ -420,7 +420,6 @@ def solve_nonideal(
             mu0[:, : problem.n_gas] += x[kept_gas]
             problem = replace(problem, mu0=mu0)
             result, certificates = solve(problem, method, start=result)
-            eq = None
         n = _gas_amounts(problem, result, n_gas)
         if not np.all(np.isfinite(n)):
             raise ConvergenceError(
@@ -429,9 +428,8 @@ def solve_nonideal(
         g = phase.ln_phi(T, P, n)
         previous, change = change, float(np.max(np.abs(g - x)))
         if change <= options.tolerance:
-            if eq is None:
-                eq = to_equilibrium(setup, problem, result, certificates, 0, T, P, gas_model=phase.name,
-                                    specification=specification)
+            eq = to_equilibrium(setup, problem, result, certificates, 0, T, P, gas_model=phase.name,
+                                specification=specification)
             return _finish(setup, phase, eq, problem, result, x, g, n, iteration, change), problem, result
         if change >= previous:
             # Not contracting (an extrapolation too far, or a vapour root that jumps): forget the

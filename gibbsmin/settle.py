@@ -392,15 +392,22 @@ def solve_fixed(
         sensitivities and warm starts).  The answer is not checked here: see
         ``checked``.
     """
+    problem = fixed_problem(setup, T, P, offsets=offsets, ln_phi=ln_phi, allow_extrapolation=allow_extrapolation)
+    result, certificates = solve(problem, method, start=start)
+    eq = to_equilibrium(setup, problem, result, certificates, 0, T, P,
+                        gas_model=gas_model, specification=specification)
+    return eq, problem, result
+
+
+def fixed_problem(setup: Setup, T: float, P: float, *, offsets: NDArray[np.float64] | None = None,
+                  ln_phi: NDArray[np.float64] | None = None, allow_extrapolation: bool = False) -> Problem:
+    """The one-point Problem that ``solve_fixed`` solves (offsets and ln phi as there)."""
     problem = build_problem(setup, np.array([T]), np.array([P]), ln_phi=ln_phi,
                             allow_extrapolation=allow_extrapolation)
     if offsets is not None:
         problem = Problem(problem.A, problem.b, problem.mu0 + np.asarray(offsets)[problem.keep][None, :],
                           problem.n_gas, problem.allowed, problem.keep, problem.basis)
-    result, certificates = solve(problem, method, start=start)
-    eq = to_equilibrium(setup, problem, result, certificates, 0, T, P,
-                        gas_model=gas_model, specification=specification)
-    return eq, problem, result
+    return problem
 
 
 def checked(eq: Equilibrium, stacklevel: int = 3) -> Equilibrium:

@@ -215,6 +215,18 @@ class CubicModel:
 
     # -- evaluation --------------------------------------------------------------------
 
+    def _mixture(self, T, P, y):
+        """Pure and mixture parameters at T, P, y: sqrt(a_i), its T-derivative, b_i, its T-derivative,
+        the mixing sums q_i, a, b, A, B, beta_i = b_i / b and abar_i = 2 sqrt(a_i) q_i / a."""
+        sqrt_a, dsqrt_a, b_i, db_i = self._pure(T)
+        q = self._mix(y, sqrt_a)
+        a = _weighted_sum(y, sqrt_a * q)
+        b = _weighted_sum(y, b_i)
+        RT = R * T
+        A = a * P / (RT * RT)
+        B = b * P / RT
+        return sqrt_a, dsqrt_a, b_i, db_i, q, a, b, A, B, b_i / b, (2.0 / a) * sqrt_a * q
+
     def _at_root(self, Z, A, B, beta, abar, log):
         """ln phi_i, G_res/RT, ln((Z + d1 B)/(Z + d2 B)) and ln(Z - B) at the root Z."""
         fam = self.family
@@ -233,12 +245,7 @@ class CubicModel:
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         if not single:
             raise InputError("ln_phi_least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
-        sqrt_a, _, b_i, _ = self._pure(T)
-        q = self._mix(y, sqrt_a)
-        a = _weighted_sum(y, sqrt_a * q)
-        b = _weighted_sum(y, b_i)
-        A, B = a * P / (R * T) ** 2, b * P / (R * T)
-        beta, abar = b_i / b, (2.0 / a) * sqrt_a * q
+        *_, A, B, beta, abar = self._mixture(T, P, y)
         best = None
         for Z in real_roots(*self.family.cubic_coefficients(A, B), B):
             ln_phi, g, _, _ = self._at_root(Z, A, B, beta, abar, math.log)
@@ -286,18 +293,10 @@ class CubicModel:
         delta1, delta2 = fam.delta1, fam.delta2
         Delta = delta1 - delta2
 
-        sqrt_a, dsqrt_a, b_i, db_i = self._pure(T)
-        q = self._mix(y, sqrt_a)
-        a = _weighted_sum(y, sqrt_a * q)
-        b = _weighted_sum(y, b_i)
-        RT = R * T
-        A = a * P / (RT * RT)
-        B = b * P / RT
+        sqrt_a, dsqrt_a, b_i, db_i, q, a, b, A, B, beta, abar = self._mixture(T, P, y)
         Z = vapour_root(*fam.cubic_coefficients(A, B), B)
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
-        beta = b_i / b
-        abar = (2.0 / a) * sqrt_a * q
         A_BD = A / (B * Delta)
         ln_phi, g, L, ln_Z_B = self._at_root(Z, A, B, beta, abar, log)
 
@@ -319,8 +318,11 @@ class CubicModel:
         return GasProperties(self.name, Z[:, 0], ln_phi, H_res[:, 0], (H_res - g)[:, 0], dln_phi)
 
     def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike) -> FloatArray:
-        """ln phi of each species [-], shape (S,) or (B, S); see :meth:`properties`."""
-        return self.properties(T, P, y).ln_phi
+        """ln phi of each species [-], shape (S,) or (B, S); as :meth:`properties` gives it, without the rest."""
+        T, P, y, single = check_conditions(T, P, y, self.n_species)
+        *_, A, B, beta, abar = self._mixture(T, P, y)
+        Z = vapour_root(*self.family.cubic_coefficients(A, B), B)
+        return self._at_root(Z, A, B, beta, abar, math.log if single else np.log)[0]
 
     def _dln_phi_dT(self, s: _Local) -> FloatArray:
         """d ln phi_i / dT at constant P and y: the chain rule through Z, A, B, b_i/b and abar_i."""
