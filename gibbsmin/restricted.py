@@ -46,7 +46,7 @@ from numpy.typing import NDArray
 from .equilibrium import Equilibrium
 from .errors import InputError
 from .reactions import Reaction, independent_reactions, reaction
-from .settle import Setup, check_feed, check_method, checked, prepare, solve_fixed
+from .settle import Setup, check_method, checked, prepare, solve_fixed
 from .streams import Stream
 from .system import System
 from .thermo.database import SpeciesDatabase, default_database

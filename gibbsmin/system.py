@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import functools
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
