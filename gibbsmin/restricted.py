@@ -38,6 +38,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import numbers
+import warnings
 from collections.abc import Mapping, Sequence
 
 import numpy as np
@@ -312,6 +313,12 @@ def equilibrate_with_approach(
         eq, _, _ = step(T)
     extras_energy = energy.energy_extras(setup, eq, P, inlet, H_in, heat, residual_enthalpy=residual,
                                          inlet_gross=gross_in)
+    if phase is not None:
+        from .nonideal import gas_stability
+
+        extras_energy["gas_phase_stability"] = stability = gas_stability(phase, eq)
+        if stability["stable"] is False:
+            warnings.warn(stability["note"], RuntimeWarning, stacklevel=2)
     eq = checked(eq)
     extras = {
         **eq.extras,

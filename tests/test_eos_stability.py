@@ -95,3 +95,13 @@ def test_hot_loop_gas_is_not_tested():
     eq = gibbsmin.equilibrate({"H2": 3.0, "N2": 1.0}, 723.15, 200e5, gas="peng-robinson")
     assert eq.extras["gas_phase_stability"]["tested"] is False
     assert "not tested" in eq.extras["gas_phase_stability"]["note"]
+
+
+def test_a_held_back_reaction_with_a_cubic_is_checked_too():
+    from gibbsmin.restricted import equilibrate_with_approach
+
+    feed = dict(zip(METHANOL_LOOP, [66.0, 9.0, 6.0, 16.0, 0.5, 2.5]))
+    with pytest.warns(RuntimeWarning, match="NOT stable as one gas"):
+        eq = equilibrate_with_approach(feed, 313.15, P_LOOP, {"methanol synthesis": 5.0}, species=METHANOL_LOOP,
+                                       gas="peng-robinson")
+    assert eq.extras["gas_phase_stability"]["stable"] is False
