@@ -1,0 +1,307 @@
+"""Fixed enthalpy and pressure: the outlet temperature the energy balance sets, phase plateaus included."""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Mapping
+from dataclasses import dataclass, replace
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .. import sensitivity
+from ..equilibrium import Equilibrium
+from ..errors import ConvergenceError, InputError
+from ..settle import Setup, checked, solve_fixed
+from ..solve import SolverResult
+from ..system import Problem
+from ..thermo.nasa7 import Nasa7Table, R
+from .properties import FixedTStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
+
+
+#: The energy balance is solved to this fraction of the gross enthalpy (see ``enthalpy_scale``).
+_TOLERANCE = 1e-11
+#: An answer is still accepted at this closure when the bracket cannot shrink any further.
+_ACCEPTABLE = 1e-9
+_MAX_EVALUATIONS = 120
+#: Phase-set solves tried while the bracket is wide (one more is always tried once it is narrow).
+_PHASE_SET_TRIES = 3
+
+
+def frozen_temperature(table: Nasa7Table, n: NDArray[np.float64], H: float, bounds: tuple[float, float]) -> float:
+    """Temperature at which an unreacted mixture has enthalpy H, [K] (a first guess of the outlet)."""
+    low, high = bounds
+    T = 0.5 * (low + high)
+    for _ in range(60):
+        cp = max(heat_capacity(table, n, T), 1e-12)
+        step = (H - float(n @ table.h_RT(T)) * R * T) / cp
+        T = min(max(T + step, low), high)
+        if abs(step) < 1e-6:
+            break
+    return T
+
+
+
+@dataclass(frozen=True)
+class _Point:
+    """One fixed-T equilibrium visited by the temperature search."""
+
+    T: float
+    eq: Equilibrium
+    problem: Problem
+    result: SolverResult
+    H: float            # [J]
+    f: float            # H - H_target, [J]
+    cp: float           # equilibrium heat capacity, [J/K]; NaN where the phase set fixes T
+
+    @property
+    def phases(self) -> frozenset[int]:
+        return frozenset(np.flatnonzero(self.result.present[0]).tolist())
+
+
+def enthalpy_scale(setup: Setup, n: NDArray[np.float64], T: float, inlet_gross: float, heat: float) -> float:
+    """The gross enthalpy a residual is measured against, [J]: max of sum |n_j h_j| in and out, |Q| and N R T."""
+    table = setup.system.table
+    outlet_gross = float(np.abs(n) @ np.abs(table.h_RT(T) * R * T))
+    return max(outlet_gross, inlet_gross, abs(heat), float(n.sum()) * R * T)
+
+
+def solve_energy_balance(
+    setup: Setup,
+    H_target: float,
+    P: float,
+    *,
+    T_bounds: tuple[float, float],
+    gross_inlet: float = 0.0,
+    coldest_feed: float = 0.0,
+    T_guess: float | None = None,
+    method: str = "auto",
+    allow_extrapolation: bool = False,
+    residual_enthalpy: ResidualEnthalpy | None = None,
+    step: FixedTStep | None = None,
+) -> tuple[Equilibrium, Problem, SolverResult]:
+    """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
+
+    Parameters
+    ----------
+    T_bounds : (float, float)
+        Lowest and highest outlet temperature, [K].
+    gross_inlet : float
+        Sum of |n_j h_j| over the inlet plus |heat input|, [J]: with the
+        outlet's own figure and N R T, the scale the tolerance is relative to.
+    coldest_feed : float
+        Lowest feed temperature, [K]; the default start is not below it.
+    T_guess : float, optional
+        Where the search starts, [K]; by default the temperature at which the
+        unreacted feed would hold H_target.
+    residual_enthalpy : callable, optional
+        Gas-phase residual enthalpy (ideal gas when omitted).
+    step : callable, optional
+        The fixed-T solve to iterate on; ``settle.solve_fixed`` on the ideal
+        gas by default.  A non-ideal gas model passes its own.
+
+    Returns
+    -------
+    (Equilibrium, Problem, SolverResult)
+        The answer (``specification`` "H and P", ``extras["T_evaluations"]``,
+        and ``extras["phase_boundary"]`` when T sits on a two-phase plateau).
+
+    Raises
+    ------
+    InputError
+        No temperature inside ``T_bounds`` balances the energy.
+    ConvergenceError
+        The search did not close the balance.
+    """
+    if step is None:
+        def step(T, start):
+            if method == "auto" and start is not None:
+                # A warm start that fails (a phase swapped since the neighbour) is retried cold before
+                # "auto" falls back on the cone solver, which is far slower.
+                warm = solve_fixed(setup, T, P, method="newton", start=start,
+                                   allow_extrapolation=allow_extrapolation, specification="H and P")
+                if warm[0].certificate.certified:
+                    return warm
+                start = None
+            return solve_fixed(setup, T, P, method=method, start=start,
+                               allow_extrapolation=allow_extrapolation, specification="H and P")
+    system = setup.system
+    n_feed = np.array([setup.feed.get(name, 0.0) for name in system.names])
+    if T_guess is None:
+        # No colder than the coldest feed: cooling usually condenses something, which the frozen
+        # mixture knows nothing of, and the search then walks down from there.
+        T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
+    scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
+    search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation)
+    return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
+
+
+class _Search:
+    """The bracketed search for the outlet temperature (one instance per solve)."""
+
+    def __init__(self, setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation):
+        self.setup, self.H_target, self.P = setup, H_target, P
+        self.allow_extrapolation = allow_extrapolation
+        self.T_low, self.T_high = T_bounds
+        self.scale, self.residual_enthalpy, self.step = scale, residual_enthalpy, step
+        self.points: list[_Point] = []
+        self.phase_set_tries = 0
+        condensed = setup.system.records[setup.system.n_gas:]
+        self.breakpoints = sorted({T for r in condensed for T in (r.T_min, r.T_max)
+                                   if self.T_low < T < self.T_high})
+
+    def evaluate(self, T: float) -> _Point:
+        start = min(self.points, key=lambda p: abs(p.T - T)).result if self.points else None
+        eq, problem, result = self.step(T, start)
+        if not eq.certificate.certified and start is not None:
+            eq, problem, result = self.step(T, None)
+        with warnings.catch_warnings():
+            # Only the final answer's precision matters; a usable intermediate one is fine.
+            warnings.simplefilter("ignore", RuntimeWarning)
+            checked(eq)
+        system = self.setup.system
+        n = state_amounts(self.setup, eq)
+        H = enthalpy(system.table, system.n_gas, n, T, self.P, self.residual_enthalpy)
+        cp = sensitivity.equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
+        point = _Point(T, eq, problem, result, H, H - self.H_target, cp)
+        self.points.append(point)
+        return point
+
+    def converged(self, point: _Point, tolerance: float = _TOLERANCE) -> bool:
+        scale = enthalpy_scale(self.setup, state_amounts(self.setup, point.eq), point.T, self.scale, 0.0)
+        return abs(point.f) <= tolerance * scale
+
+    def finish(self, point: _Point, extras: Mapping[str, object] | None = None):
+        eq = replace(point.eq, specification="H and P",
+                     extras={**point.eq.extras, "T_evaluations": len(self.points), **(extras or {})})
+        return eq, point.problem, point.result
+
+    def no_root(self, point: _Point) -> InputError:
+        side = "below" if point.f < 0 else "above"
+        where = "highest" if point.f < 0 else "lowest"
+        fix = ("less heat removed, or more heat added" if point.f < 0 else "more heat removed, or less heat added")
+        condensed = self.setup.system.records[self.setup.system.n_gas:]
+        # A species cut off by its data matters unless another phase of the same substance covers that T.
+        covered = [r.elements for r in condensed if r.T_min <= point.T <= r.T_max]
+        cut = [r for r in condensed if (r.T_min > point.T if point.f > 0 else r.T_max < point.T)
+               and r.elements not in covered]
+        why = "".join(f"; {r.name} has data only from {r.T_min:g} K to {r.T_max:g} K and cannot form outside it"
+                      for r in cut)
+        return InputError(
+            f"no outlet temperature between {self.T_low:g} K and {self.T_high:g} K balances the energy: even at "
+            f"the {where} ({point.T:g} K) the equilibrium enthalpy is {abs(point.f):.6g} J {side} the inlet "
+            f"enthalpy plus heat input ({self.H_target:.6g} J){why}; check the feed temperatures, try {fix}, "
+            "or widen T_bounds if the species data allow it"
+        )
+
+    def run(self, T: float):
+        low: _Point | None = None
+        high: _Point | None = None
+        previous: _Point | None = None   # the point a Newton step inside the bracket started from
+        while len(self.points) < _MAX_EVALUATIONS:
+            point = self.evaluate(T)
+            if self.converged(point):
+                return self.finish(point)
+            if point.f < 0:
+                low = point
+            else:
+                high = point
+            if low is None or high is None:
+                T = self._extend(point)
+                continue
+            if low.T > high.T:
+                raise ConvergenceError(
+                    f"the equilibrium enthalpy falls with temperature between {high.T:g} K and {low.T:g} K "
+                    "(a condensed species' data range ends there); no unique outlet temperature: narrow T_bounds "
+                    "or leave that species out")
+            answer = self._try_phase_boundary(low, high)
+            if answer is not None:
+                return answer
+            width = high.T - low.T
+            if width <= 1e-13 * high.T:
+                return self._give_up(low, high)
+            T, newton = self._next_inside(point, previous, low, high)
+            previous = point if newton else None
+        raise ConvergenceError(
+            f"the outlet temperature search did not close the energy balance in {_MAX_EVALUATIONS} fixed-T solves "
+            f"(last bracket {low.T if low else self.T_low:g} K to {high.T if high else self.T_high:g} K); "
+            "try method='convex' or narrower T_bounds"
+        )
+
+    def _extend(self, point: _Point) -> float:
+        """Next temperature while the root is not yet bracketed: a Newton step that stops at the bounds
+        and at the first end of a condensed species' data range on its way.
+
+        A condensed species cannot form outside its data range, so H_eq(T) may
+        jump there; stepping over such a temperature could miss the root.
+        """
+        if point.f < 0 and point.T >= self.T_high or point.f > 0 and point.T <= self.T_low:
+            raise self.no_root(point)
+        T = point.T - point.f / point.cp if np.isfinite(point.cp) and point.cp > 0 else math.nan
+        if not math.isfinite(T):
+            T = self.T_high if point.f < 0 else self.T_low
+        T = min(max(T, self.T_low), self.T_high)
+        crossed = [b for b in self.breakpoints if min(point.T, T) < b < max(point.T, T)]
+        if crossed:
+            T = min(crossed) if T > point.T else max(crossed)
+        return T
+
+    def _next_inside(self, point: _Point, previous: _Point | None, low: _Point,
+                     high: _Point) -> tuple[float, bool]:
+        """A Newton step from the latest point, or bisection when it leaves the bracket or the
+        previous Newton step did not halve |f|; says which it took."""
+        T = point.T - point.f / point.cp if np.isfinite(point.cp) and point.cp > 0 else math.nan
+        stalled = previous is not None and abs(point.f) > 0.5 * abs(previous.f)
+        if not low.T < T < high.T or stalled:
+            return 0.5 * (low.T + high.T), False
+        return T, True
+
+    def _try_phase_boundary(self, low: _Point, high: _Point):
+        """Solve on the union of the phase sets of the bracket's ends, if they differ."""
+        if low.phases == high.phases:
+            return None
+        narrow = high.T - low.T < 1e-6 * high.T
+        if self.phase_set_tries >= _PHASE_SET_TRIES and not narrow:
+            return None
+        self.phase_set_tries += 1
+        settled = sensitivity.settle_on_phase_set(
+            self.setup, low.problem, low.result, high.result, low.T, high.T, low.f, high.f,
+            self.H_target, self.P, self.residual_enthalpy, self.allow_extrapolation)
+        if settled is None:
+            return None
+        eq, problem, result = settled
+        if not eq.certificate.certified:
+            return None
+        system = self.setup.system
+        point = _Point(eq.T, eq, problem, result,
+                       enthalpy(system.table, system.n_gas, state_amounts(self.setup, eq), eq.T, self.P,
+                                self.residual_enthalpy), math.nan, math.nan)
+        point = replace(point, f=point.H - self.H_target)
+        if not self.converged(point) or not low.T - sensitivity.PHASE_BOUNDARY_SLACK <= eq.T \
+                <= high.T + sensitivity.PHASE_BOUNDARY_SLACK:
+            return None
+        extras = {}
+        if sensitivity.fixes_temperature(self.setup, problem, result):
+            names = system.condensed_names
+            kept = problem.keep[problem.n_gas:] - system.n_gas
+            extras["phase_boundary"] = {
+                "T_K": eq.T,
+                "phases_below": sorted(names[kept[c]] for c in low.phases),
+                "phases_above": sorted(names[kept[c]] for c in high.phases),
+                "note": "the coexisting phases fix T at this pressure; the heat sets only their amounts",
+            }
+        return self.finish(point, extras)
+
+    def _give_up(self, low: _Point, high: _Point):
+        best = min((low, high), key=lambda p: abs(p.f))
+        if self.converged(best, _ACCEPTABLE):
+            return self.finish(best)
+        if low.phases != high.phases:
+            raise ConvergenceError(
+                f"the equilibrium enthalpy jumps by {high.f - low.f:.6g} J at T = {high.T:.9g} K, where the phases "
+                "change, and no coexistence of the two phase sets balances the energy; "
+                "try method='convex', or leave one of the condensed species out")
+        raise ConvergenceError(
+            f"the outlet temperature is pinned to {high.T:.9g} K but the energy balance is still off by "
+            f"{abs(best.f):.3g} J; try method='convex'")
