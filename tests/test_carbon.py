@@ -195,3 +195,50 @@ def test_carbon_limit_with_a_cubic_gas_is_where_its_own_equilibrium_reaches_grap
     gas = {s: n for s, n in eq.amounts.items() if eq.phase_of[s] == "gas" and n > 1e-12}
     measured = carbon_activity(gas, eq.T, eq.P, gas="peng-robinson")
     assert measured.by_reaction["methane cracking"] == pytest.approx(1.0, abs=1e-6)
+
+
+# --- the carbon limit in temperature -------------------------------------------------------------------
+
+def test_temperature_limit_coincides_with_graphite_appearing_and_with_the_steam_limit():
+    # Internal consistency (common practice, no source): on each side of the boundary the full minimisation
+    # has or lacks graphite as the ranges say, and the S/C limit at the boundary temperature is the feed's S/C.
+    from gibbsmin.carbon import carbon_limit_temperatures
+
+    feed = _feed_at(0.8)
+    limits = carbon_limit_temperatures(feed, 25e5, T_range=(700.0, 1300.0), xtol=1e-8)
+    assert len(limits.boundaries) == 1
+    (T_b,) = limits.boundaries
+    inside = limits.carbon_ranges[0]
+    above_carbon = inside[0] == pytest.approx(T_b)
+    for T, carbon in ((T_b - 0.05, not above_carbon), (T_b + 0.05, above_carbon)):
+        assert (gibbsmin.equilibrate(feed, T, 25e5).amounts["C(s)"] > 0) is carbon
+    assert carbon_limit(NATURAL_GAS, T_b, 25e5, xtol=1e-12).steam_to_carbon == pytest.approx(0.8, abs=1e-6)
+
+
+def test_temperature_limit_matches_cantera_vcs():
+    # Source: Cantera 3.2 VCS (multiphase, graphite allowed) on the same species and NASA data: graphite
+    # appears on the same side of our boundary, 0.5 K either way.
+    from gibbsmin.carbon import carbon_limit_temperatures
+
+    feed = _feed_at(0.8)
+    (T_b,) = carbon_limit_temperatures(feed, 25e5, T_range=(700.0, 1300.0), species=GAS_SET + ["C(s)"]).boundaries
+
+    def graphite(T):
+        result = _vcs(GAS_SET, Case("carbon T limit", feed, T, 25e5))
+        if result is None:
+            pytest.skip("Cantera's VCS solver fails at this point")
+        return result[0][-1]
+
+    amounts_below, amounts_above = graphite(T_b - 0.5), graphite(T_b + 0.5)
+    assert (amounts_below > 1e-9) != (amounts_above > 1e-9)
+
+
+def test_a_feed_without_carbon_or_a_bad_range_is_refused():
+    from gibbsmin.carbon import carbon_limit_temperatures
+
+    with pytest.raises(InputError, match="no carbon"):
+        carbon_limit_temperatures({"H2": 3.0, "N2": 1.0}, 25e5)
+    with pytest.raises(InputError, match="lowest < highest"):
+        carbon_limit_temperatures(NATURAL_GAS, 25e5, T_range=(900.0, 800.0))
+    with pytest.raises(InputError, match="points"):
+        carbon_limit_temperatures(NATURAL_GAS, 25e5, points=2)
