@@ -156,3 +156,23 @@ def test_reformer_report_shows_approach_and_carbon_verdict(capsys):
     row = next(line for line in out.splitlines() if line.startswith("outlet  steam methane reforming"))
     assert row.split()[-1] == "0.00"  # an equilibrium outlet has a zero approach
     assert "no carbon" in out and "duty [MW]" in out
+
+
+def test_reformer_report_gives_the_steam_to_carbon_limit(reformer_json):
+    # Internal consistency: the report's min S/C is carbon_limit of the inlet's dry gas at the outlet's T and P,
+    # and at that S/C the gas-only equilibrium is just saturated with graphite.
+    from gibbsmin.carbon import carbon_activity, carbon_limit
+    from gibbsmin.case import read_case
+
+    row = reformer_json["tables"]["carbon"][0]
+    feed = read_case(REFORMER).mixed_feed()
+    dry = {s: n for s, n in feed.items() if s != "H2O"}
+    limit = carbon_limit(dry, reformer_json["T_K"], reformer_json["P_Pa"])
+    assert row["S/C of inlet"] == pytest.approx(3.0, abs=1e-9)
+    assert row["min S/C"] == pytest.approx(limit.steam_to_carbon, rel=1e-9)
+    carbon = sum(n * gibbsmin.default_database()[s].elements.get("C", 0)
+                 for s, n in dry.items() if set(gibbsmin.default_database()[s].elements) == {"C", "H"})
+    eq = gibbsmin.equilibrate({**dry, "H2O": limit.steam_to_carbon * carbon}, reformer_json["T_K"],
+                              reformer_json["P_Pa"], exclude=["C(s)"])
+    assert carbon_activity(eq).activity == pytest.approx(1.0, abs=1e-7)
+    assert 0.5 < limit.steam_to_carbon < 1.2  # well below the 3.0 fed: the reformer has a wide margin

@@ -199,13 +199,42 @@ def carbon_table(result: CaseResult) -> Table | None:
         eq = stage.equilibrium
         activity = carbon_activity(eq)
         verdict = "warn" if activity.possible else "pass"
-        rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), verdict,
-                     activity.verdict))
+        feed_ratio, limit = _steam_to_carbon_limit(result, stage)
+        rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio, limit,
+                     verdict, activity.verdict))
+    basis = result.case.feeds[0].stream.carbon_basis
     return Table("Carbon activity against graphite at each outlet",
                  (Column("stage", "text"), *(Column(f"a_C by {r}", "number") for r in CARBON_REACTIONS),
+                  Column("S/C of inlet", "number"), Column("min S/C", "number"),
                   Column("carbon-free", "verdict"), Column("verdict", "text")), tuple(rows),
                  ("a_C > 1: graphite is thermodynamically possible (whether it forms depends on kinetics "
-                  "and catalyst)",), key="carbon")
+                  "and catalyst)",
+                  f"min S/C: the lowest steam-to-carbon ratio ({basis} carbon) at which the stage's inlet, with its "
+                  "steam changed, has no graphite at equilibrium at the outlet's T and P; blank where the inlet "
+                  "has no such carbon or no limit lies between S/C 0.05 and 64"), key="carbon")
+
+
+def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, float | None]:
+    """The S/C of a stage's inlet and the carbon limit at its outlet's T and P (None where undefined)."""
+    from ..carbon import carbon_limit
+    from ..errors import GibbsminError
+    from ..streams import Stream
+
+    inlet = stage.inlet.mixed
+    eq = stage.equilibrium
+    basis = result.case.feeds[0].stream.carbon_basis
+    db = result.case.feeds[0].stream.database
+    try:
+        ratio = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis,
+                       database=db).steam_to_carbon()
+        # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
+        dry = {name: n for name, n in inlet.items() if name != "H2O"}
+        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
+                             exclude=result.case.species.exclude, gas=eq.gas_model,
+                             kij=stage.stage.kij, db=db)
+    except (GibbsminError, ValueError):
+        return None, None
+    return ratio, (limit.steam_to_carbon if limit.status == "found" else None)
 
 
 def curve_plot(result: CaseResult) -> Plot | None:
@@ -335,6 +364,23 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
     }
 
 
+def _table_documents(result: CaseResult) -> dict[str, list[dict[str, object]]]:
+    """The approach, Kp and carbon tables as lists of rows keyed by column heading (NaN written as None)."""
+    optional = [
+        approach_table(result) if FEATURES["reactions"].available() else None,
+        kp_table(result) if FEATURES["reactions"].available() else None,
+        carbon_table(result) if FEATURES["carbon"].available() else None,
+    ]
+
+    def plain(value):
+        if isinstance(value, float) and not math.isfinite(value):
+            return None
+        return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else value
+
+    return {t.key: [{c.title: plain(v) for c, v in zip(t.columns, row)} for row in t.rows]
+            for t in optional if t is not None}
+
+
 def settle_document(result: CaseResult) -> dict[str, object]:
     """The machine-readable document of a settled case (SI units; JSON-ready, no NaN).
 
@@ -360,5 +406,6 @@ def settle_document(result: CaseResult) -> dict[str, object]:
                              "quantity": ("conversion of " if result.curve.spec.conversion else "mole fraction of ")
                              + result.curve.spec.species,
                              "lines": [{"name": n, "T_K": T, "value": v} for n, T, v in result.curve.lines]}
+    document["tables"] = _table_documents(result)
     document["caution"] = CAUTION
     return json_ready(document)
