@@ -194,10 +194,12 @@ def solve_batch_nonideal(problem: Problem, phase: GasPhase, T: NDArray[np.float6
         return replace(problem, mu0=mu0)
 
     result, _ = solve(problem, method, chains=chains)
-    held = np.zeros((problem.batch_size, n_gas))
-    settled = np.zeros(problem.batch_size, dtype=bool)
+    B = problem.batch_size
+    held = np.zeros((B, n_gas))
+    settled = np.zeros(B, dtype=bool)
+    history = _BatchHistory(options.memory, B)
     for _ in range(options.max_iterations):
-        amounts = np.zeros((problem.batch_size, n_gas))
+        amounts = np.zeros((B, n_gas))
         ln_n = result.ln_n_gas
         with np.errstate(invalid="ignore"):
             amounts[:, kept_gas] = np.exp(ln_n - ln_n.max(axis=1, keepdims=True))
@@ -207,10 +209,49 @@ def solve_batch_nonideal(problem: Problem, phase: GasPhase, T: NDArray[np.float6
         settled = usable & (np.max(np.abs(found - held), axis=1) <= options.tolerance)
         if settled.all():
             break
-        held = found
+        held = history.next(held, found)
         result, _ = solve(shifted(held), method, start=result, chains=chains)
     certificates = certify(shifted(found), result)
     return result, replace(certificates, certified=certificates.certified & settled)
+
+
+class _BatchHistory:
+    """Anderson acceleration of the batch's passes, every point with its own coefficients.
+
+    As :func:`_anderson_step` for one point: the last ``memory`` + 1 iterates
+    and images, and a point whose change stops shrinking forgets its history
+    and takes a half step.
+    """
+
+    def __init__(self, memory: int, batch_size: int):
+        self.memory = memory
+        self.xs: list[NDArray[np.float64]] = []
+        self.gs: list[NDArray[np.float64]] = []
+        self.valid = np.zeros(batch_size, dtype=int)  # usable trailing entries per point
+        self.change = np.full(batch_size, np.inf)
+
+    def next(self, x: NDArray[np.float64], g: NDArray[np.float64]) -> NDArray[np.float64]:
+        change = np.max(np.abs(g - x), axis=1)
+        stalled = change >= self.change
+        self.change = change
+        self.xs.append(x)
+        self.gs.append(g)
+        del self.xs[: -(self.memory + 1)], self.gs[: -(self.memory + 1)]
+        self.valid = np.where(stalled, 1, np.minimum(self.valid + 1, len(self.xs)))
+        step = g.copy()
+        k = len(self.xs)
+        if k >= 2:
+            f = np.stack([gi - xi for xi, gi in zip(self.xs, self.gs)])            # (k, B, n)
+            dF, dG = f[1:] - f[:-1], np.diff(np.stack(self.gs), axis=0)             # (k-1, B, n)
+            # Differences older than a point's valid history count for nothing there.
+            usable = (np.arange(k - 1)[:, None] >= (k - self.valid)[None, :]).astype(float)
+            dF, dG = dF * usable[..., None], dG * usable[..., None]
+            gram = np.einsum("jbn,kbn->bjk", dF, dF)
+            ridge = 1e-14 * np.einsum("bjj->b", gram)[:, None, None] + 1e-300
+            gamma = np.linalg.solve(gram + ridge * np.eye(k - 1), np.einsum("jbn,bn->bj", dF, f[-1])[..., None])
+            step = g - np.einsum("jbn,bj->bn", dG, gamma[..., 0])
+        step[stalled] = x[stalled] + 0.5 * (g[stalled] - x[stalled])
+        return step
 
 
 def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, result: SolverResult,
