@@ -97,11 +97,25 @@ def solve_convex(problem: Problem, polish: bool = True,
                        np.ones(B, dtype=int), ("convex",) * B)
     if not polish:
         return raw
-    polished = solve_newton(problem, start=raw, options=options)
-    polished = SolverResult(polished.ln_n_gas, polished.n_condensed, polished.present, polished.pi,
-                            polished.converged, polished.iterations + 1, ("convex+newton",) * B)
+    polished = _polish(problem, raw, options)
     failed = np.flatnonzero(~polished.converged)
+    if failed.size:
+        # A condensed species the cone leaves just above the presence threshold but which cannot exist
+        # there (liquid water at the end of its data, 600 K and 1 bar) can make the constrained Newton
+        # system unsolvable.  Polish those points again from the cone's gas alone: Newton's own phase
+        # test then adds the condensed species that belong.
+        gas_only = SolverResult(ln_n[failed], np.zeros((failed.size, C)), np.zeros((failed.size, C), dtype=bool),
+                                pi[failed], ok[failed], np.ones(failed.size, dtype=int), ("convex",) * failed.size)
+        again = _polish(problem.take(failed), gas_only, options)
+        polished = merge(polished, again, failed)
+        failed = np.flatnonzero(~polished.converged)
     return merge(polished, raw.take(failed), failed) if failed.size else polished
+
+
+def _polish(problem: Problem, start: SolverResult, options: NewtonOptions) -> SolverResult:
+    polished = solve_newton(problem, start=start, options=options)
+    return SolverResult(polished.ln_n_gas, polished.n_condensed, polished.present, polished.pi,
+                        polished.converged, polished.iterations + 1, ("convex+newton",) * problem.batch_size)
 
 
 def _fit_potentials(problem: Problem, ln_n: NDArray, present: NDArray) -> NDArray:
