@@ -177,3 +177,25 @@ def test_methanol_converter_with_peng_robinson(capsys):
     assert eq.mole_fractions["CH3OH"] > ideal.mole_fractions["CH3OH"] + 0.002
     assert main(["settle", str(EXAMPLES / "methanol_converter_pr.toml")]) == 0
     assert "stable as one gas" in capsys.readouterr().out
+
+
+def test_adiabatic_ammonia_bed_with_peng_robinson_and_its_curve(tmp_path, capsys):
+    # The shipped bed made non-ideal: the curve is the Peng-Robinson equilibrium and the operating line,
+    # drawn with the same model's enthalpies, ends at the stage's own outlet temperature.
+    import gibbsmin
+
+    text = (EXAMPLES / "ammonia_bed.toml").read_text().replace('P = "144 bar(g)"\n',
+                                                              'P = "144 bar(g)"\ngas = "peng-robinson"\n')
+    case = tmp_path / "bed_pr.toml"
+    case.write_text(text)
+    code = main(["settle", str(case), "--json"])
+    out, err = capsys.readouterr()
+    assert code == 0, err
+    doc = json.loads(out)
+    line = doc["curve"]["lines"][0]
+    assert line["T_K"][-1] == pytest.approx(doc["T_K"], abs=1e-3)
+    T = doc["curve"]["T_K"][10]
+    feed = doc["feed_mol_s"]
+    eq = gibbsmin.equilibrate(feed, T, doc["P_Pa"], species=["N2", "H2", "NH3", "CH4", "Ar"], inert=["CH4", "Ar"],
+                              gas="peng-robinson")
+    assert doc["curve"]["value"][10] == pytest.approx(eq.mole_fractions["NH3"], rel=1e-9)

@@ -142,13 +142,20 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
                        allow_extrapolation=species.allow_extrapolation, **energy)
 
 
-def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase) -> float:
-    """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter."""
+def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase, gas: str = "ideal",
+              kij: str = "shipped") -> float:
+    """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter; with a cubic gas
+    model its gas's residual enthalpy is included."""
     from ..energy import mixture_enthalpy
 
     total = sum(amounts.values())
     kept = {s: n for s, n in amounts.items() if n > _NEGLIGIBLE * total}
-    return mixture_enthalpy(kept, T, P, db=db)
+    H = mixture_enthalpy(kept, T, P, db=db)
+    if gas != "ideal":
+        from ..nonideal import residual_enthalpy_of_gas
+
+        H += residual_enthalpy_of_gas({s: n for s, n in kept.items() if db[s].is_gas}, T, P, gas, kij=kij, db=db)
+    return H
 
 
 # --- the equilibrium curve and the operating lines --------------------------------------------------
@@ -177,13 +184,16 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
     if spec.conversion and feed.get(spec.species, 0.0) <= 0.0:
         raise CaseError(case.source, None, "curve.conversion", f"{spec.species} is not in the feed; conversion "
                         "is measured from the feed")
-    P = case.stages[0].P
+    first = case.stages[0]
+    P = first.P
+    # The curve takes the first stage's gas model, as its operating lines' enthalpies do.
+    model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.kij}
     temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
     values = []
     species = case.species
     for T in temperatures:
         eq = equilibrate(feed, float(T), P, species=species.only, exclude=species.exclude, inert=species.frozen,
-                         db=db, allow_extrapolation=species.allow_extrapolation)
+                         db=db, allow_extrapolation=species.allow_extrapolation, **model)
         values.append(_curve_value(spec, eq.amounts, feed, db))
     lines = []
     for k, result in enumerate(results):
@@ -206,25 +216,27 @@ def _operating_line(result: StageResult, spec: CurveSpec, feed: Mapping[str, flo
     if not result.stage.adiabatic or not inlet.temperatures_known:
         # A fixed-temperature stage has no line from inlet to outlet that the energy balance fixes: show its outlet.
         return (eq.T,), (_curve_value(spec, eq.amounts, feed, db),)
-    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db) for name, a in inlet.streams.items())
+    stage = result.stage
+    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db, stage.gas, stage.kij)
+               for name, a in inlet.streams.items())
     T_start = next(iter(inlet.temperatures.values())) if len(inlet.streams) == 1 else eq.T
     T_points, v_points = [], []
     for a in np.linspace(0.0, 1.0, _LINE_POINTS):
         n = dict(zip(names, start + a * (end - start)))
-        target = H_in + a * result.stage.heat_input
-        T = _temperature_of(n, target, eq.P, (min(T_start, eq.T), max(T_start, eq.T)), db)
+        target = H_in + a * stage.heat_input
+        T = _temperature_of(n, target, eq.P, (min(T_start, eq.T), max(T_start, eq.T)), db, stage.gas, stage.kij)
         T_points.append(T)
         v_points.append(_curve_value(spec, n, feed, db))
     return tuple(T_points), tuple(v_points)
 
 
 def _temperature_of(amounts: Mapping[str, float], H: float, P: float, around: tuple[float, float],
-                    db: SpeciesDatabase) -> float:
+                    db: SpeciesDatabase, gas: str = "ideal", kij: str = "shipped") -> float:
     """The temperature [K] at which a mixture has enthalpy H, searched near the stage's own temperatures."""
     low, high = max(around[0] - 300.0, 200.0), min(around[1] + 300.0, 6000.0)
 
     def gap(T: float) -> float:
-        return _enthalpy(amounts, T, P, db) - H
+        return _enthalpy(amounts, T, P, db, gas, kij) - H
 
     if gap(low) * gap(high) > 0:
         return math.nan
