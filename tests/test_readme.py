@@ -53,3 +53,23 @@ def test_the_high_pressure_table_is_what_the_engine_gives():
         assert float(y_ideal) == pytest.approx(100 * ideal.mole_fractions[name], abs=0.005)
         assert float(y_pr) == pytest.approx(100 * pr.mole_fractions[name], abs=0.005)
         assert float(phi) == pytest.approx(pr.extras["fugacity_coefficients"][name], abs=0.0005)
+
+
+def _python_blocks_with_their_output():
+    blocks = [(m.group(1), m.group(2), m.start(), m.end()) for m in re.finditer(r"```(\w*)\n(.*?)```", README, re.S)]
+    return [(code, shown) for (lang, code, _, end), (lang2, shown, start2, _) in zip(blocks, blocks[1:])
+            if lang == "python" and lang2 == "" and not README[end:start2].strip()]
+
+
+SHOWN = _python_blocks_with_their_output()
+
+
+def test_some_example_shows_its_output():
+    assert SHOWN, "the README should show what at least one example prints"
+
+
+@pytest.mark.parametrize(("code", "shown"), SHOWN, ids=[f"output{i}" for i in range(len(SHOWN))])
+def test_an_example_prints_what_the_readme_shows(code, shown, tmp_path, monkeypatch, capsys):
+    monkeypatch.chdir(tmp_path)
+    exec(compile(code, "README.md", "exec"), {})
+    assert capsys.readouterr().out.strip() == shown.strip()
