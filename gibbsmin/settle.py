@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .solve import SOLVERS, SolverResult, solve
@@ -210,7 +211,7 @@ def equilibrate(
     inert: Sequence[str] = (),
     method: str = "auto",
     gas: str = "ideal",
-    kij: str | Mapping[tuple[str, str], float] | None = "shipped",
+    kij: str | Mapping[tuple[str, str], float] | InteractionTable | None = "shipped",
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
     sensitivities: bool = False,
@@ -256,8 +257,10 @@ def equilibrate(
         Binary interaction parameters of the cubic: "shipped" (default) takes
         the published values of ``species/interactions.toml`` (Peng-Robinson
         only; zero for pairs it lacks), "none" sets every one to zero, a
-        mapping ``{("H2", "NH3"): 0.05}`` gives exactly those pairs.  The
-        result's ``extras["binary_interactions"]`` lists the non-zero ones used.
+        mapping ``{("H2", "NH3"): 0.05}`` gives exactly those pairs, and an
+        ``InteractionTable`` (``gibbsmin.eos.default_interactions().updated({...})``)
+        its pairs of the model.  The result's ``extras["binary_interactions"]``
+        lists the non-zero ones used.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.
@@ -320,7 +323,7 @@ def equilibrate(
     setup = prepare(inlet.total, species=species, exclude=exclude, inert=inert, T_span=T_span, db=db,
                     allow_extrapolation=allow_extrapolation)
     if gas == "ideal" and not (kij is None or (isinstance(kij, str) and kij in nonideal.KIJ_CHOICES)
-                               or (isinstance(kij, Mapping) and not kij)):
+                               or (isinstance(kij, Mapping) and not kij) or isinstance(kij, InteractionTable)):
         raise InputError(f"kij={kij!r} only applies to a cubic gas model: pass gas='peng-robinson' or 'srk' "
                          "with it, or leave kij out for the ideal gas")
     phase = None if gas == "ideal" else nonideal.gas_phase(setup.system, gas, kij=kij)

@@ -258,9 +258,11 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     if gas != "ideal":
         _need(section, "gas", "gas")
     kij = section.get("kij", choice("shipped", "none"), "shipped")
-    if "kij" in section and gas == "ideal":
-        raise section.error("kij", "kij only goes with a cubic gas model: add gas = 'peng-robinson' (or 'srk'), "
-                            "or remove kij")
+    for key in ("kij", "kij_pairs"):
+        if key in section and gas == "ideal":
+            raise section.error(key, f"{key} only goes with a cubic gas model: add gas = 'peng-robinson' (or "
+                                f"'srk'), or remove {key}")
+    kij_pairs = _read_kij_pairs(section)
     adiabatic = section.get("adiabatic", read_bool, False)
     if adiabatic and "T" in section:
         raise section.error("T", "an adiabatic stage finds its own outlet temperature; remove T or adiabatic")
@@ -285,10 +287,42 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     stage = Stage(
         name=section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}"),
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
-        approach=approach, gas=gas, kij=kij, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
+        approach=approach, gas=gas, kij=kij, kij_pairs=kij_pairs, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
     )
     section.finish(_STAGE_KEYS)
     return stage
+
+
+def _read_kij_pairs(section: Section) -> dict[tuple[str, str], float]:
+    """[conditions.kij_pairs]: "A B" = value, checked as the engine will check them."""
+    table = section.section("kij_pairs")
+    if table is None:
+        return {}
+    pairs = {}
+    for key in table.keys():
+        names = key.replace("/", " ").split()
+        if len(names) != 2:
+            raise table.error(key, f"{key!r} is not a pair: write two species names, e.g. \"H2 NH3\" = 0.05")
+        value = table.get(key, read_kij_value)
+        db = default_database()
+        try:
+            records = [db[name] for name in names]
+        except UnknownSpeciesError as exc:
+            raise table.error(key, str(exc)) from None
+        lacking = [r.name for r in records if not r.is_gas or r.critical is None]
+        if lacking:
+            raise table.error(key, f"{', '.join(lacking)} has no critical constants (or is not a gas), so the "
+                              "cubic has no kij for it")
+        if records[0].name == records[1].name:
+            raise table.error(key, "names one species twice; k_ii is zero by definition")
+        pairs[(records[0].name, records[1].name)] = value
+    return pairs
+
+
+def read_kij_value(value: object) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not -1.0 < float(value) < 1.0:
+        raise InputError(f"a kij is a number between -1 and 1, got {value!r}")
+    return float(value)
 
 
 def _check_reaction(section: Section, key: str, text: str) -> None:

@@ -128,7 +128,7 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
         energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
     if stage.gas != "ideal":
         energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
-        energy["kij"] = stage.kij
+        energy["kij"] = stage.interactions
     feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
     if stage.approach:
         from ..restricted import equilibrate_with_approach
@@ -143,7 +143,7 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
 
 
 def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase, gas: str = "ideal",
-              kij: str = "shipped") -> float:
+              kij="shipped") -> float:
     """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter; with a cubic gas
     model its gas's residual enthalpy is included."""
     from ..energy import mixture_enthalpy
@@ -187,7 +187,7 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
     first = case.stages[0]
     P = first.P
     # The curve takes the first stage's gas model, as its operating lines' enthalpies do.
-    model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.kij}
+    model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.interactions}
     temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
     values = []
     species = case.species
@@ -217,21 +217,22 @@ def _operating_line(result: StageResult, spec: CurveSpec, feed: Mapping[str, flo
         # A fixed-temperature stage has no line from inlet to outlet that the energy balance fixes: show its outlet.
         return (eq.T,), (_curve_value(spec, eq.amounts, feed, db),)
     stage = result.stage
-    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db, stage.gas, stage.kij)
+    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db, stage.gas, stage.interactions)
                for name, a in inlet.streams.items())
     T_start = next(iter(inlet.temperatures.values())) if len(inlet.streams) == 1 else eq.T
     T_points, v_points = [], []
     for a in np.linspace(0.0, 1.0, _LINE_POINTS):
         n = dict(zip(names, start + a * (end - start)))
         target = H_in + a * stage.heat_input
-        T = _temperature_of(n, target, eq.P, (min(T_start, eq.T), max(T_start, eq.T)), db, stage.gas, stage.kij)
+        T = _temperature_of(n, target, eq.P, (min(T_start, eq.T), max(T_start, eq.T)), db, stage.gas,
+                            stage.interactions)
         T_points.append(T)
         v_points.append(_curve_value(spec, n, feed, db))
     return tuple(T_points), tuple(v_points)
 
 
 def _temperature_of(amounts: Mapping[str, float], H: float, P: float, around: tuple[float, float],
-                    db: SpeciesDatabase, gas: str = "ideal", kij: str = "shipped") -> float:
+                    db: SpeciesDatabase, gas: str = "ideal", kij="shipped") -> float:
     """The temperature [K] at which a mixture has enthalpy H, searched near the stage's own temperatures."""
     low, high = max(around[0] - 300.0, 200.0), min(around[1] + 300.0, 6000.0)
 

@@ -63,6 +63,8 @@ class Stage:
         Gas model name.
     kij : str
         Binary interaction parameters of a cubic: "shipped" (the published table) or "none".
+    kij_pairs : dict
+        The engineer's own k_ij by species pair, over the ``kij`` table.
     method : str
         Solver.
     """
@@ -77,7 +79,18 @@ class Stage:
     approach: Mapping[str, float] = field(default_factory=dict)
     gas: str = "ideal"
     kij: str = "shipped"
+    kij_pairs: Mapping[tuple[str, str], float] = field(default_factory=dict)
     method: str = "auto"
+
+    @property
+    def interactions(self):
+        """What the engine's ``kij=`` takes for this stage: the choice, or the table with the own pairs."""
+        if not self.kij_pairs:
+            return self.kij
+        from ..eos import InteractionTable, default_interactions
+
+        base = default_interactions() if self.kij == "shipped" else InteractionTable([])
+        return base.updated(dict(self.kij_pairs), model=self.gas, source="case file")  # "given table" in notes
 
 
 @dataclass(frozen=True)
@@ -192,6 +205,8 @@ CASE_KEYS: dict[str, dict[str, str]] = {
                     "(positive: short of equilibrium)",
         "gas": "gas model: 'ideal' (default), 'peng-robinson', 'srk'",
         "kij": "with a cubic gas model: 'shipped' (default; the published kij table) or 'none' (all zero)",
+        "kij_pairs": "with a cubic gas model: your own kij over that table, e.g. [conditions.kij_pairs] "
+                     "\"H2 NH3\" = 0.05 (two species names and a value between -1 and 1)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
         "name": "a name for the stage in the report",
     },

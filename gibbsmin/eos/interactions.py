@@ -12,14 +12,14 @@ import functools
 import math
 import os
 import tomllib
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 from numpy.typing import NDArray
 
-from ..errors import DataError
+from ..errors import DataError, InputError
 from ..thermo.database import species_directory
 from .registry import GAS_MODELS, canonical_model_name
 
@@ -65,6 +65,38 @@ class InteractionTable:
 
     def entry(self, model: str, a: str, b: str) -> InteractionParameter | None:
         return self._by_key.get((canonical_model_name(model), frozenset((a, b))))
+
+    def updated(self, pairs: Mapping[tuple[str, str], float], model: str = "peng-robinson",
+                source: str = "given") -> InteractionTable:
+        """This table with the given pairs of ``model`` replaced or added (the engineer's own values).
+
+        Examples
+        --------
+        >>> table = default_interactions().updated({("H2", "NH3"): 0.05})
+        >>> table.entry("pr", "NH3", "H2").kij, table.entry("pr", "N2", "NH3").kij
+        (0.05, 0.2193)
+        """
+        model = canonical_model_name(model)
+        try:
+            given = [_entry_from({"species": list(pair), "model": model, "kij": value, "source": source},
+                                 f"kij pair {pair[0]}-{pair[1]}", None) for pair, value in _checked_pairs(pairs)]
+        except DataError as exc:  # the loader's checks, on the caller's values
+            raise InputError(str(exc)) from None
+        replaced = {(e.model, frozenset(e.species)) for e in given}
+        kept = [e for e in self._entries if (e.model, frozenset(e.species)) not in replaced]
+        return InteractionTable([*kept, *given])
+
+    def matrix(self, model: str, names: Sequence[str]) -> NDArray[np.float64] | None:
+        """The k_ij of ``model`` among ``names`` as a matrix in their order; None when every one is zero."""
+        pairs = self.for_model(model, names)
+        if not pairs:
+            return None
+        names = list(names)
+        k = np.zeros((len(names), len(names)))
+        for (a, b), value in pairs.items():
+            i, j = names.index(a), names.index(b)
+            k[i, j] = k[j, i] = value
+        return k
 
 
 def _entry_from(raw: Mapping[str, object], where: str, known: set[str] | None) -> InteractionParameter:
@@ -122,11 +154,13 @@ def default_interactions() -> InteractionTable:
 
 def shipped_kij_matrix(model: str, names: list[str]) -> NDArray[np.float64] | None:
     """The shipped k_ij of ``model`` as a matrix in the order of ``names``; None when every one is zero."""
-    pairs = default_interactions().for_model(model, names)
-    if not pairs:
-        return None
-    k = np.zeros((len(names), len(names)))
-    for (a, b), value in pairs.items():
-        i, j = names.index(a), names.index(b)
-        k[i, j] = k[j, i] = value
-    return k
+    return default_interactions().matrix(model, names)
+
+
+def _checked_pairs(pairs: Mapping[tuple[str, str], float]):
+    if not isinstance(pairs, Mapping):
+        raise InputError(f"kij pairs must be a mapping of (species, species) to a value, got {pairs!r}")
+    for pair, value in pairs.items():
+        if not (isinstance(pair, tuple) and len(pair) == 2 and all(isinstance(n, str) for n in pair)):
+            raise InputError(f"kij keys must be pairs of species names, e.g. ('H2', 'NH3'), got {pair!r}")
+        yield pair, value

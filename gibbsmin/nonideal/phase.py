@@ -13,8 +13,8 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..errors import InputError
-from ..eos import (GasModel, GasProperties, IdealGasModel, canonical_model_name, default_interactions,
-                   gas_model_for_species)
+from ..eos import (GasModel, GasProperties, IdealGasModel, InteractionTable, canonical_model_name,
+                   default_interactions, gas_model_for_species)
 from ..system import System
 from ..thermo.database import SpeciesDatabase
 from ..thermo.nasa7 import R
@@ -132,8 +132,9 @@ def gas_phase(system: System, gas: str = "peng-robinson", *,
         published values of ``species/interactions.toml`` for this model,
         zero for every other pair (the table has Peng-Robinson values only).
         "none" (or None): all zero.  A mapping such as ``{("H2", "NH3"): 0.05}``:
-        exactly those pairs, zero for the rest (start from
-        ``gibbsmin.eos.default_interactions().for_model(gas)`` to extend the table).
+        exactly those pairs, zero for the rest.  An ``InteractionTable``: its
+        pairs for this model, e.g. ``default_interactions().updated({("H2",
+        "NH3"): 0.05})`` for the shipped table with one pair of your own.
     quantum_correction : bool
         Effective critical constants for H2 and He (Gunn, Chueh and Prausnitz;
         see ``gibbsmin.eos.quantum``).
@@ -178,8 +179,13 @@ def _interaction_pairs(kij: str | Mapping[tuple[str, str], float] | None, gas: s
         if kij == "none" or canonical_model_name(gas) == "ideal":
             return {}, "none"
         return default_interactions().for_model(gas, names), "shipped table"
+    if isinstance(kij, InteractionTable):
+        if canonical_model_name(gas) == "ideal":
+            return {}, "none"
+        return kij.for_model(gas, names), "given table"
     if not isinstance(kij, Mapping):
-        raise InputError(f"kij must be 'shipped', 'none' or a mapping of species pairs to values, got {kij!r}")
+        raise InputError(f"kij must be 'shipped', 'none', a mapping of species pairs to values or an "
+                         f"InteractionTable, got {kij!r}")
     return kij, "given"
 
 

@@ -231,7 +231,7 @@ def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, flo
         dry = {name: n for name, n in inlet.items() if name != "H2O"}
         limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
                              exclude=result.case.species.exclude, gas=eq.gas_model,
-                             kij=stage.stage.kij, db=db)
+                             kij=stage.stage.interactions, db=db)
     except (GibbsminError, ValueError):
         return None, None
     return ratio, (limit.steam_to_carbon if limit.status == "found" else None)
@@ -276,7 +276,8 @@ def _gas_model_text(eq) -> str:
     y = eq.mole_fractions
     main = {pair: v for pair, v in pairs.items()
             if all(y.get(s, 0.0) >= MAIN_SPECIES_FRACTION for s in _pair_species(pair, y))}
-    origin = "shipped kij" if "shipped" in eq.extras.get("gas_model_note", "") else "kij given"
+    note = eq.extras.get("gas_model_note", "")
+    origin = "shipped kij" if "shipped" in note else "kij of the given table" if "given table" in note else "kij given"
     listed = ", ".join(f"{pair} {value:+.4g}" for pair, value in main.items()) or "none between main species"
     return (f"{eq.gas_model}, van der Waals mixing, {origin}: {listed} "
             f"({len(pairs)} pairs in all; others 0)")

@@ -30,7 +30,13 @@ def _gas_phase(spec_json: str):
         return None
     from ..nonideal import gas_phase
 
-    return gas_phase(_setup(spec_json).system, spec.gas, kij=spec.kij)
+    kij = spec.kij
+    if spec.kij_pairs:
+        from ..eos import InteractionTable, default_interactions
+
+        base = default_interactions() if spec.kij == "shipped" else InteractionTable([])
+        kij = base.updated({(a, b): v for a, b, v in spec.kij_pairs}, model=spec.gas, source="sweep")
+    return gas_phase(_setup(spec_json).system, spec.gas, kij=kij)
 
 
 @functools.lru_cache(maxsize=8)

@@ -46,7 +46,8 @@ def spec_from_case(case, axes) -> SweepSpec:
                          "stage " + repr(stage.name) + " asks for more (adiabatic or approach)")
     return SweepSpec(feed=case.mixed_feed(), T=stage.T, P=stage.P, axes=tuple(axes),
                      species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
-                     method=stage.method, gas=stage.gas, kij=stage.kij)
+                     method=stage.method, gas=stage.gas, kij=stage.kij,
+                     kij_pairs=tuple((a, b, v) for (a, b), v in stage.kij_pairs.items()))
 
 
 def run(args: argparse.Namespace) -> int:

@@ -83,6 +83,8 @@ class SweepSpec:
         Gas model: "ideal" (default), "peng-robinson" or "srk".
     kij : str
         With a cubic: "shipped" (the published table, default) or "none".
+    kij_pairs : tuple of (str, str, float)
+        The engineer's own k_ij over that table.
     """
 
     feed: Mapping[str, float]
@@ -96,6 +98,7 @@ class SweepSpec:
     method: str = "auto"
     gas: str = "ideal"
     kij: str = "shipped"
+    kij_pairs: tuple[tuple[str, str, float], ...] = ()
     _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -181,6 +184,8 @@ class SweepSpec:
         }
         if self.gas != "ideal":  # only then, so that an ideal-gas sweep keeps the fingerprint it always had
             data.update(gas=self.gas, kij=self.kij)
+            if self.kij_pairs:
+                data["kij_pairs"] = [list(p) for p in self.kij_pairs]
         return json.dumps(data, sort_keys=True)
 
     @classmethod
@@ -193,6 +198,7 @@ class SweepSpec:
             exclude=tuple(data["exclude"]), inert=tuple(data["inert"]),
             carbon_basis=data["carbon_basis"], method=data["method"],
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
+            kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
         )
 
     def fingerprint(self) -> str:
