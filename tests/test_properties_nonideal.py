@@ -59,7 +59,9 @@ def test_cubic_answers_are_certified_with_phi_at_their_own_composition(feed, T, 
 
 
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(feed=feeds, T_feed=st.floats(min_value=550.0, max_value=800.0), P=st.floats(min_value=20e5, max_value=250e5))
+# Feeds above water's critical temperature: colder, a water-rich feed at loop pressure is a liquid, which the
+# one-gas model refuses with a ConvergenceError that says so (NH3 + 2 H2O at 550 K and 135 bar, found here).
+@given(feed=feeds, T_feed=st.floats(min_value=650.0, max_value=850.0), P=st.floats(min_value=20e5, max_value=250e5))
 def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
     # The outlet's enthalpy, residual enthalpy included, equals the inlet's: recomputed here from the
     # answer's amounts with the model, not read from the solver.
@@ -75,4 +77,29 @@ def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
     H_in = mixture_enthalpy(feed, T_feed, P) + residual_enthalpy_of_gas(feed, T_feed, P, "peng-robinson")
     H_out = mixture_enthalpy(eq.amounts, eq.T, P) + residual_enthalpy_of_gas(gas_out, eq.T, P, "peng-robinson")
     scale = sum(abs(v) for v in (H_in, H_out)) + 8.314 * eq.T * sum(feed.values())
-    assert abs(H_out - H_in) <= 1e-8 * scale
+    if "energy_balance_miss_K" in eq.extras:  # the outlet sits on the alpha kink of hydrogen (see below)
+        assert eq.extras["energy_balance_miss_K"] <= 0.5
+    else:
+        assert abs(H_out - H_in) <= 1e-8 * scale
+
+
+def test_a_liquid_like_feed_is_refused_with_a_reason():
+    import pytest
+
+    with pytest.raises(gibbsmin.ConvergenceError, match="condens"):
+        gibbsmin.equilibrate({"NH3": 1.0, "H2O": 2.0}, P=135.5e5, T_feed=550.0, adiabatic=True,
+                             species=[*LOOP_SPECIES], gas="peng-robinson")
+
+
+def test_an_outlet_on_hydrogens_alpha_kink_is_accepted_with_a_warning():
+    # Found by the test above: with the quantum correction hydrogen's Soave alpha passes its minimum near
+    # 576 K, where sqrt(a_i a_j) has a kink, so the residual enthalpy jumps (by 187 J here) and no outlet
+    # temperature closes the balance exactly.  The answer at the jump misses by 0.11 K and says so.
+    import pytest
+
+    feed = {"H2": 3.0, "N2": 0.01171875, "H2O": 2.0}
+    with pytest.warns(RuntimeWarning, match="jumps by"):
+        eq = gibbsmin.equilibrate(feed, P=20e5, T_feed=569.0, adiabatic=True, species=[*LOOP_SPECIES],
+                                  gas="peng-robinson")
+    assert eq.certificate.certified
+    assert abs(eq.T - 576.18) < 0.01 and eq.extras["energy_balance_miss_K"] < 0.2

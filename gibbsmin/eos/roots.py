@@ -81,16 +81,20 @@ def _not_converged(step: float) -> str:
 def real_roots(c2: float, c1: float, c0: float, B: float) -> list[float]:
     """The real roots Z > B of Z^3 + c2 Z^2 + c1 Z + c0 = 0 (one condition), largest first.
 
-    Only Z > B is a physical volume (v > b).  The vapour root comes from
-    :func:`vapour_root`; the others from the quadratic left once it is divided out.
+    Only Z > B is a physical volume (v > b).  For a stability test's trial
+    phases, which may be liquid-like with one real root left of the cubic's
+    inflection point (where Newton from 1 + B need not converge), the roots
+    come from the companion matrix, each polished by two Newton steps.
     """
-    Z_v = _scalar_root(c2, c1, c0, B)
-    # Z^3 + c2 Z^2 + c1 Z + c0 = (Z - Z_v)(Z^2 + p Z + r)
-    p = c2 + Z_v
-    r = c1 + p * Z_v
-    disc = p * p - 4.0 * r
-    roots = [Z_v]
-    if disc >= 0.0:
-        s = disc ** 0.5
-        roots += [z for z in ((-p + s) / 2.0, (-p - s) / 2.0) if B < z < Z_v]
-    return roots
+    roots = []
+    for z in np.roots([1.0, c2, c1, c0]):
+        if abs(z.imag) > 1e-9 * max(1.0, abs(z.real)):
+            continue
+        Z = float(z.real)
+        for _ in range(2):
+            slope = (3.0 * Z + 2.0 * c2) * Z + c1
+            if slope != 0.0:
+                Z -= (((Z + c2) * Z + c1) * Z + c0) / slope
+        if Z > B:
+            roots.append(Z)
+    return sorted(set(roots), reverse=True)
