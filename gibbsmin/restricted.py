@@ -38,7 +38,6 @@ from __future__ import annotations
 import dataclasses
 import math
 import numbers
-import warnings
 from collections.abc import Mapping, Sequence
 
 import numpy as np
@@ -295,14 +294,9 @@ def equilibrate_with_approach(
                            start=start, allow_extrapolation=allow_extrapolation, specification=specification)
 
     residual = None if phase is None else phase.residual_enthalpy
-    H_in, gross_in = None, 0.0
-    if inlet.has_temperatures:
-        H_in = inlet.enthalpy(P, db, allow_extrapolation)
-        if phase is not None:
-            from .nonideal import inlet_residual_enthalpy
+    from .nonideal import inlet_enthalpies, stability_checked  # the cubic's helpers build on solve_fixed
 
-            H_in += inlet_residual_enthalpy(phase, inlet, P)
-        gross_in = inlet.gross_enthalpy(P, db)
+    H_in, gross_in = inlet_enthalpies(phase, inlet, P, db, allow_extrapolation)
     if energy_balance:
         eq, _, _ = energy.solve_energy_balance(
             setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
@@ -314,11 +308,7 @@ def equilibrate_with_approach(
     extras_energy = energy.energy_extras(setup, eq, P, inlet, H_in, heat, residual_enthalpy=residual,
                                          inlet_gross=gross_in)
     if phase is not None:
-        from .nonideal import gas_stability
-
-        extras_energy["gas_phase_stability"] = stability = gas_stability(phase, eq)
-        if stability["stable"] is False:
-            warnings.warn(stability["note"], RuntimeWarning, stacklevel=2)
+        extras_energy["gas_phase_stability"] = stability_checked(phase, eq)
     eq = checked(eq)
     extras = {
         **eq.extras,

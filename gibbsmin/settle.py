@@ -327,10 +327,7 @@ def equilibrate(
         raise InputError(f"kij={kij!r} only applies to a cubic gas model: pass gas='peng-robinson' or 'srk' "
                          "with it, or leave kij out for the ideal gas")
     phase = None if gas == "ideal" else nonideal.gas_phase(setup.system, gas, kij=kij)
-    H_in = inlet.enthalpy(P, db, allow_extrapolation) if inlet.has_temperatures else None
-    if phase is not None and H_in is not None:
-        H_in += nonideal.inlet_residual_enthalpy(phase, inlet, P)
-    gross_in = inlet.gross_enthalpy(P, db) if inlet.has_temperatures else 0.0
+    H_in, gross_in = nonideal.inlet_enthalpies(phase, inlet, P, db, allow_extrapolation)
     if energy_balance:
         eq, problem, result = energy.solve_energy_balance(
             setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
@@ -346,9 +343,7 @@ def equilibrate(
     extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                   residual_enthalpy=None if phase is None else phase.residual_enthalpy)
     if phase is not None:
-        extras["gas_phase_stability"] = stability = nonideal.gas_stability(phase, eq)
-        if stability["stable"] is False:
-            warnings.warn(stability["note"], RuntimeWarning, stacklevel=2)
+        extras["gas_phase_stability"] = nonideal.stability_checked(phase, eq)
     if sensitivities and phase is not None:
         extras["sensitivities"] = nonideal.nonideal_sensitivities(
             setup, phase, result, eq.T, P, method=method, allow_extrapolation=allow_extrapolation, db=db).to_dict()

@@ -39,8 +39,10 @@ warning is given if together they exceed ``IDEAL_SPECIES_WARNING`` of the gas.
 from .hooks import STABILITY_SCREEN as STABILITY_SCREEN
 from .hooks import energy_hooks as energy_hooks
 from .hooks import gas_stability as gas_stability
+from .hooks import inlet_enthalpies as inlet_enthalpies
 from .hooks import inlet_residual_enthalpy as inlet_residual_enthalpy
 from .hooks import nonideal_sensitivities as nonideal_sensitivities
+from .hooks import stability_checked as stability_checked
 from .loop import IDEAL_SPECIES_WARNING as IDEAL_SPECIES_WARNING
 from .loop import OuterLoopOptions as OuterLoopOptions
 from .loop import solve_batch_nonideal as solve_batch_nonideal

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import warnings
 from collections.abc import Mapping
 from dataclasses import replace
 
@@ -111,6 +112,26 @@ def inlet_residual_enthalpy(phase: GasPhase, inlet, P: float) -> float:
     the set's gas phase contribute nothing.
     """
     return sum(phase.stream_residual_enthalpy(stream.amounts, stream.T, P) for stream in inlet.streams)
+
+
+def inlet_enthalpies(phase: GasPhase | None, inlet, P: float, db: SpeciesDatabase,
+                     allow_extrapolation: bool = False) -> tuple[float | None, float]:
+    """The inlet's enthalpy [J] (residual enthalpy included under a cubic; None without feed temperatures)
+    and its gross enthalpy [J], the scale of the energy balance's tolerance."""
+    if not inlet.has_temperatures:
+        return None, 0.0
+    H_in = inlet.enthalpy(P, db, allow_extrapolation)
+    if phase is not None:
+        H_in += inlet_residual_enthalpy(phase, inlet, P)
+    return H_in, inlet.gross_enthalpy(P, db)
+
+
+def stability_checked(phase: GasPhase, eq: Equilibrium, stacklevel: int = 3) -> dict[str, object]:
+    """:func:`gas_stability` of an answer, with a warning when its one gas would condense."""
+    stability = gas_stability(phase, eq)
+    if stability["stable"] is False:
+        warnings.warn(stability["note"], RuntimeWarning, stacklevel=stacklevel)
+    return stability
 
 
 def energy_hooks(setup: Setup, P: float, phase: GasPhase, *, method: str = "auto",
