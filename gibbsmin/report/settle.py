@@ -198,7 +198,7 @@ def carbon_table(result: CaseResult) -> Table | None:
     for stage in result.stages:
         eq = stage.equilibrium
         activity = carbon_activity(eq)
-        verdict = "warn" if activity.possible else "pass"
+        verdict = activity.status  # "fail" whenever the outlet holds graphite
         feed_ratio, limit = _steam_to_carbon_limit(result, stage)
         rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio, limit,
                      verdict, activity.verdict))
