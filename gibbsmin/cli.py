@@ -1,9 +1,10 @@
 """The ``gibbsmin`` command: settle a case file, audit a heat-and-mass balance, list species.
 
 Thin by design: it reads arguments, calls the library, writes what was asked
-for.  Exit codes: 0 success; 1 the audit found failures and ``--fail-on`` asked
+for.  Exit codes: 0 success; 1 a check failed (or warned) and ``--fail-on`` asked
 to be told; 2 bad input (one line on stderr, no traceback); 3 no certified
-answer; 130 interrupted.  ``--traceback`` shows the Python traceback of an error
+answer; 130 interrupted.  ``settle --fail-on fail`` exits with 1 when any verdict of
+the report fails (an uncertified answer, graphite in a carbon-free check).  ``--traceback`` shows the Python traceback of an error
 (for reporting a bug).
 """
 
@@ -29,6 +30,7 @@ example:
   gibbsmin settle examples/reformer.toml
   gibbsmin settle examples/reformer.toml --json > outlet.json
   gibbsmin settle examples/reformer.toml --html reformer.html --xlsx reformer.xlsx
+  gibbsmin settle examples/reformer.toml --fail-on fail     exit 1 if any verdict fails
 
 A case file, e.g. reformer.toml:
 
@@ -152,7 +154,21 @@ def _settle(args: argparse.Namespace) -> int:
         _print_json(settle_document(result))
     elif not args.quiet:
         sys.stdout.write(render_text(report))
-    return OK
+    return CHECKS_FAILED if _fails(args.fail_on, _worst_verdict(report)) else OK
+
+
+def _worst_verdict(report) -> str:
+    """The worst verdict in any verdict column of a report's tables ("pass" where there is none)."""
+    from .report.document import VERDICTS
+
+    found = [row[i] for table in report.tables for i, column in enumerate(table.columns)
+             if column.style == "verdict" for row in table.rows]
+    return max((v for v in found if v in VERDICTS), key=VERDICTS.index, default="pass")
+
+
+def _fails(fail_on: str, worst: str) -> bool:
+    """Whether the worst verdict is one ``--fail-on`` asked to be told of."""
+    return fail_on == "fail" and worst == "fail" or fail_on == "warn" and worst in ("warn", "fail")
 
 
 def _keys_text(keys: dict[str, dict[str, str]]) -> str:
@@ -222,10 +238,7 @@ def _audit(args: argparse.Namespace) -> int:
         _print_json(audit_document(result))
     elif not args.quiet:
         sys.stdout.write(render_text(audit_report(result, details=args.details)))
-    worst = result.worst
-    if args.fail_on == "fail" and worst == "fail" or args.fail_on == "warn" and worst in ("warn", "fail"):
-        return CHECKS_FAILED
-    return OK
+    return CHECKS_FAILED if _fails(args.fail_on, result.worst) else OK
 
 
 # --- the parser ---------------------------------------------------------------------------------------
@@ -245,9 +258,15 @@ class Command:
     run: Callable[[argparse.Namespace], int]
 
 
+def _add_fail_on(parser: argparse.ArgumentParser, what: str) -> None:
+    parser.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
+                        help=f"exit with code 1 when {what} fails (or warns); default: never")
+
+
 def _settle_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("case", nargs="?", help="the case file (TOML)")
     p.add_argument("--keys", action="store_true", help="list every key a case file may hold, and exit")
+    _add_fail_on(p, "a verdict of the report (an uncertified answer, a carbon check)")
     _add_outputs(p)
 
 
@@ -265,8 +284,7 @@ def _audit_arguments(p: argparse.ArgumentParser) -> None:
                    help="list the keys of a unit description and the row labels of a stream table")
     p.add_argument("--details", action="store_true", help="print the figures behind every check, not only "
                    "behind those that did not pass")
-    p.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
-                   help="exit with code 1 when a check fails (or warns); default: never")
+    _add_fail_on(p, "a check")
     _add_outputs(p)
 
 

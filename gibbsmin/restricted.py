@@ -294,7 +294,8 @@ def equilibrate_with_approach(
                            start=start, allow_extrapolation=allow_extrapolation, specification=specification)
 
     residual = None if phase is None else phase.residual_enthalpy
-    from .nonideal import inlet_enthalpies, stability_checked  # the cubic's helpers build on solve_fixed
+    # Imported here: the cubic's helpers build on solve_fixed.
+    from .nonideal import inlet_enthalpies, stability_checked, with_stability_verdict
 
     H_in, gross_in = inlet_enthalpies(phase, inlet, P, db, allow_extrapolation)
     if energy_balance:
@@ -318,4 +319,4 @@ def equilibrate_with_approach(
         "reactions at equilibrium": [r.equation for r in complete if r.name not in {rx.name for rx, _ in held}],
         "frozen mol": dict(frozen_mol),
     }
-    return dataclasses.replace(eq, extras=extras)
+    return with_stability_verdict(dataclasses.replace(eq, extras=extras))

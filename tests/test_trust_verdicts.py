@@ -72,3 +72,89 @@ def test_carbon_table_of_a_case_fails_when_graphite_is_in_the_outlet(tmp_path, c
     row = doc["tables"]["carbon"][0]
     assert row["carbon-free"] == "fail"
     assert "NOT carbon-free" in row["verdict"]
+
+
+# --- 2. a cubic gas the stability test calls unstable is not certified ----------------------------------
+
+#: A methanol loop gas (invented) at 40 degC and 80 bar: the tangent-plane test finds that methanol and water
+#: would condense (tests/test_eos_stability.py checks the test itself against thermo's PR78 dew point).
+COLD_LOOP = {"H2": 66.0, "CO": 9.0, "CO2": 6.0, "CH4": 16.0, "H2O": 0.5, "CH3OH": 2.5}
+
+
+def test_an_unstable_one_gas_answer_is_not_certified():
+    with pytest.warns(RuntimeWarning, match="NOT stable as one gas"):
+        eq = gibbsmin.equilibrate(COLD_LOOP, 313.15, 80e5, species=list(COLD_LOOP), gas="peng-robinson")
+    assert eq.extras["gas_phase_stability"]["stable"] is False
+    assert eq.certificate.phase_stability == "unstable"
+    assert eq.certificate.certified is False
+    assert "NOT certified" in eq.certificate.summary() and "NOT stable" in eq.certificate.summary()
+    assert eq.to_dict()["certificate"]["phase_stability"] == "unstable"
+    # The residuals themselves are fine: it is the missing phase that makes the answer wrong.
+    assert eq.certificate.stationarity < 1e-7 and eq.certificate.element_balance < 1e-9
+
+
+def test_a_stable_cubic_answer_stays_certified_and_says_so():
+    eq = gibbsmin.equilibrate(COLD_LOOP, 523.15, 80e5, species=list(COLD_LOOP), gas="peng-robinson")
+    assert eq.certificate.phase_stability == "stable" and eq.certificate.certified is True
+    ideal = gibbsmin.equilibrate(COLD_LOOP, 523.15, 80e5, species=list(COLD_LOOP))
+    assert ideal.certificate.phase_stability == "not tested" and ideal.certificate.certified is True
+
+
+def test_a_held_back_reaction_with_an_unstable_gas_is_not_certified():
+    from gibbsmin.restricted import equilibrate_with_approach
+
+    with pytest.warns(RuntimeWarning, match="NOT stable as one gas"):
+        eq = equilibrate_with_approach(COLD_LOOP, 313.15, 80e5, {"methanol synthesis": 5.0},
+                                       species=list(COLD_LOOP), gas="peng-robinson")
+    assert eq.certificate.phase_stability == "unstable" and not eq.certificate.certified
+
+
+COLD_LOOP_CASE = """\
+    [case]
+    title = "Invented methanol loop gas at the separator, Peng-Robinson"
+
+    [feed]
+    unit = "kmol/h"
+    H2 = 66.0
+    CO = 9.0
+    CO2 = 6.0
+    CH4 = 16.0
+    H2O = 0.5
+    CH3OH = 2.5
+
+    [species]
+    only = ["H2", "CO", "CO2", "CH4", "H2O", "CH3OH"]
+
+    [conditions]
+    T = "40 degC"
+    P = "80 bar"
+    gas = "peng-robinson"
+    """
+
+
+def test_settle_marks_the_unstable_gas_failed_and_fail_on_exits_non_zero(tmp_path, capsys):
+    case = write_case(tmp_path, COLD_LOOP_CASE)
+    code, out, err = run(["settle", case], capsys)
+    assert code == 0  # without --fail-on the report is written and read, not judged
+    assert "NOT stable as one gas" in err
+    stage_row, certificate_row = [line.split() for line in out.splitlines() if line.startswith("outlet ")]
+    assert stage_row[-1] == "fail"  # the stages table's "certified" column
+    assert certificate_row[1] == "fail" and certificate_row[-1] == "unstable"
+    code, out, err = run(["settle", case, "--fail-on", "fail"], capsys)
+    assert code == 1
+    doc = json.loads(run(["settle", case, "--json"], capsys)[1])
+    assert doc["certificate"]["certified"] is False and doc["certificate"]["phase_stability"] == "unstable"
+
+
+def test_fail_on_passes_a_certified_carbon_free_case(capsys):
+    from pathlib import Path
+
+    reformer = Path(__file__).resolve().parents[1] / "examples" / "reformer.toml"
+    code, out, err = run(["settle", reformer, "--fail-on", "fail"], capsys)
+    assert code == 0, err
+
+
+def test_fail_on_fails_a_case_whose_outlet_holds_graphite(tmp_path, capsys):
+    case = write_case(tmp_path, CARBON_CASE)
+    assert run(["settle", case, "--fail-on", "fail"], capsys)[0] == 1
+    assert run(["settle", case], capsys)[0] == 0
