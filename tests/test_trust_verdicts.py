@@ -158,3 +158,48 @@ def test_fail_on_fails_a_case_whose_outlet_holds_graphite(tmp_path, capsys):
     case = write_case(tmp_path, CARBON_CASE)
     assert run(["settle", case, "--fail-on", "fail"], capsys)[0] == 1
     assert run(["settle", case], capsys)[0] == 0
+
+
+# --- 3. a requested approach is met, or the answer is refused ------------------------------------------
+
+#: An invented steam-lean partial-oxidation syngas entering an adiabatic bed at 350 degC and 30 bar: on the way
+#: to equilibrium graphite appears, and the outlet temperature lies where the phase set changes.
+POX_GAS = {"CO": 45.0, "H2O": 5.0, "H2": 40.0, "CO2": 5.0, "CH4": 2.0}
+POX_SPECIES = ["CO", "H2O", "H2", "CO2", "CH4", "C(s)"]
+
+
+def _adiabatic_pox(**kw):
+    from gibbsmin.restricted import equilibrate_with_approach
+
+    return equilibrate_with_approach(POX_GAS, None, 30e5, {"water-gas shift": 10.0}, species=POX_SPECIES,
+                                     T_feed=623.15, adiabatic=True, **kw)
+
+
+def test_adiabatic_approach_is_met_when_graphite_appears():
+    from gibbsmin.reactions import approach_temperatures
+
+    eq = _adiabatic_pox()
+    assert eq.amounts["C(s)"] > 1.0 and eq.certificate.certified
+    # The approach recomputed from the answer's own composition (not the solver's bookkeeping).
+    found = approach_temperatures(eq, reactions=["water-gas shift"])["water-gas shift"]
+    assert found.approach_K == pytest.approx(10.0, abs=1e-6)
+    assert abs(eq.extras["energy_balance_residual"]) < 1e-10
+
+
+def test_an_approach_that_is_not_met_is_refused(monkeypatch):
+    # The solve on a phase boundary knows only the unshifted potentials; forced back on, it returns the free
+    # equilibrium (0 K approach), which the check of the answer must refuse rather than certify.
+    import gibbsmin.energy as energy
+
+    plain = energy.solve_energy_balance
+    monkeypatch.setattr(energy, "solve_energy_balance",
+                        lambda *a, **kw: plain(*a, **{**kw, "phase_set_solve": True}))
+    with pytest.raises(gibbsmin.ConvergenceError, match=r"approach asked for on 'water-gas shift' \(10 K\) is not met"):
+        _adiabatic_pox()
+
+
+def test_an_approach_on_a_carbon_reaction_without_carbon_is_refused():
+    from gibbsmin.restricted import equilibrate_with_approach
+
+    with pytest.raises(gibbsmin.ConvergenceError, match="holds no C\\(s\\)"):
+        equilibrate_with_approach({"CH4": 1.0, "H2O": 4.0}, 1100.0, 25e5, {"Boudouard": 10.0})
