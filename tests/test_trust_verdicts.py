@@ -203,3 +203,46 @@ def test_an_approach_on_a_carbon_reaction_without_carbon_is_refused():
 
     with pytest.raises(gibbsmin.ConvergenceError, match="holds no C\\(s\\)"):
         equilibrate_with_approach({"CH4": 1.0, "H2O": 4.0}, 1100.0, 25e5, {"Boudouard": 10.0})
+
+
+# --- 4. sweep axes: a unit for T and P, a size asked for, an unknown axis named -----------------------
+
+REFORMER = __import__("pathlib").Path(__file__).resolve().parents[1] / "examples" / "reformer.toml"
+
+
+@pytest.mark.parametrize("axis, fix", [
+    ("T=650:950:25", "T=650:950:25degC or T=650:950:25K"),
+    ("P=20,30,40", "P=20,30,40bar or P=20,30,40bar(g)"),
+])
+def test_a_bare_temperature_or_pressure_axis_is_refused_with_the_fix(axis, fix, capsys):
+    code, out, err = run(["sweep", REFORMER, "--vary", axis], capsys)
+    assert code == 2
+    assert "no unit" in err and fix in err and "\n" not in err.strip()
+
+
+def test_a_huge_sweep_says_its_size_and_asks_for_yes(tmp_path, capsys):
+    # 300,000,001 x 3 points: refused at once (before any value is made), with the size in the message.
+    code, out, err = run(["sweep", REFORMER, "--vary", "T=650:950:0.000001degC", "--vary", "S/C=1:3:1"], capsys)
+    assert code == 2
+    assert "900,000,003 points (300,000,001 x 3)" in err and "--yes" in err
+
+
+def test_a_sweep_just_above_the_limit_runs_with_yes(monkeypatch, tmp_path, capsys):
+    import gibbsmin.sweep.command as command
+
+    monkeypatch.setattr(command, "LARGE_SWEEP", 5)
+    argv = ["sweep", REFORMER, "--vary", "T=700:900:100degC", "--vary", "S/C=2:3:1"]
+    code, out, err = run(argv, capsys)
+    assert code == 2 and "6 points (3 x 2)" in err
+    code, out, err = run([*argv, "--yes"], capsys)
+    assert code == 0, err
+    assert "6 points (3 x 2)" in err and "6 points; 0 not certified" in out
+
+
+@pytest.mark.parametrize("axis, closest", [("Tx=700,800", "did you mean T?"), ("S/c=1,2", "did you mean S/C?"),
+                                           ("CH5=1,2", "CH4")])
+def test_an_unknown_sweep_axis_names_the_axes_and_the_closest(axis, closest, capsys):
+    code, out, err = run(["sweep", REFORMER, "--vary", axis], capsys)
+    assert code == 2
+    assert "unknown sweep axis" in err and closest in err
+    assert "T (with a unit), P (with a unit), S/C" in err and "CH4, C2H6" in err
