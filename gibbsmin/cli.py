@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import re
 import sys
 import warnings
 from collections.abc import Callable, Sequence
@@ -78,6 +79,37 @@ class _Parser(argparse.ArgumentParser):
 
 def _one_line(text: str) -> str:
     return " ".join(part.strip() for part in str(text).splitlines() if part.strip())
+
+
+#: Keyword arguments of the Python API that the library's messages name, and the case-file table and key that
+#: do the same: a message printed for a case file names the key, not the Python option.
+CASE_FILE_KEYS: dict[str, tuple[str, str]] = {
+    "allow_extrapolation": ("species", "allow_extrapolation"),
+    "species": ("species", "only"),
+    "exclude": ("species", "exclude"),
+    "frozen": ("species", "frozen"),
+    "inert": ("species", "frozen"),
+    "carbon_basis": ("feed", "carbon_basis"),
+    "method": ("conditions", "method"),
+    "gas": ("conditions", "gas"),
+    "kij": ("conditions", "kij"),
+    "adiabatic": ("conditions", "adiabatic"),
+    "heat_input": ("conditions", "heat_input"),
+}
+_PYTHON_OPTION = re.compile(r"(?:\b(pass|use) )?\b(" + "|".join(CASE_FILE_KEYS) + r")="
+                            r"(True|False|'[^']*'|\[[^\]]*\]|[-+0-9.eE]+)")
+
+
+def in_case_file_words(message: str) -> str:
+    """A library message with each Python option (``allow_extrapolation=True``) written as its case-file key
+    (``set [species] allow_extrapolation = true``)."""
+    def key(match: re.Match) -> str:
+        verb, option, value = match.groups()
+        table, name = CASE_FILE_KEYS[option]
+        value = {"True": "true", "False": "false"}.get(value, value.replace("'", '"'))
+        lead = "set " if verb == "pass" else f"{verb} " if verb else ""
+        return f"{lead}[{table}] {name} = {value}"
+    return _PYTHON_OPTION.sub(key, message)
 
 
 def _add_outputs(parser: argparse.ArgumentParser) -> None:
@@ -200,7 +232,9 @@ def _species(args: argparse.Namespace) -> int:
         return OK
     if not found:
         what = " and ".join(filter(None, [f"{args.text!r}" if args.text else "", args.element and f"element {args.element}"]))
-        sys.stderr.write(f"gibbsmin species: no species match {what}\n")
+        close = default_database().close_matches(args.text) if args.text else []
+        hint = f"; did you mean {', '.join(close)}?" if close else ""
+        sys.stderr.write(f"gibbsmin species: no species match {what}{hint}\n")
         return OK
     rows = [(r.name, r.formula, r.state, f"{r.T_min:g}-{r.T_max:g}", f"{r.molar_mass:.3f}", ", ".join(r.aliases))
             for r in found]
@@ -300,6 +334,10 @@ COMMANDS: dict[str, Command] = {
 }
 
 
+#: The subcommands whose input is a case file.
+CASE_FILE_COMMANDS = ("settle", "sweep")
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="gibbsmin", description="Chemical equilibrium by Gibbs energy minimisation, for reformer, "
                      "shift, methanation, ammonia and methanol engineers.",
@@ -326,12 +364,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         parser.print_help(sys.stderr)
         return BAD_INPUT
+    # Settle and sweep read case files: there the library's messages name the case-file keys.
+    words = in_case_file_words if args.command in CASE_FILE_COMMANDS else str
     try:
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
             code = args.run(args)
         for w in caught:
-            sys.stderr.write(f"gibbsmin: warning: {_one_line(w.message)}\n")
+            sys.stderr.write(f"gibbsmin: warning: {words(_one_line(w.message))}\n")
         return code
     except KeyboardInterrupt:
         sys.stderr.write("gibbsmin: interrupted; no partial output files were left behind\n")
@@ -339,12 +379,12 @@ def main(argv: Sequence[str] | None = None) -> int:
     except ConvergenceError as exc:
         if args.traceback:
             raise
-        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        sys.stderr.write(f"gibbsmin: error: {words(_one_line(exc))}\n")
         return NOT_CERTIFIED
     except (GibbsminError, UnknownSpeciesError) as exc:
         if args.traceback:
             raise
-        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        sys.stderr.write(f"gibbsmin: error: {words(_one_line(exc))}\n")
         return BAD_INPUT
     except OSError as exc:
         if args.traceback:

@@ -246,3 +246,68 @@ def test_an_unknown_sweep_axis_names_the_axes_and_the_closest(axis, closest, cap
     assert code == 2
     assert "unknown sweep axis" in err and closest in err
     assert "T (with a unit), P (with a unit), S/C" in err and "CH4, C2H6" in err
+
+
+# --- 5. command-line messages name case-file keys; species and reactions suggest the trade's names -------
+
+HOT_CASE = """\
+    [feed]
+    unit = "kmol/h"
+    H2O = 10.0
+
+    [species]
+    only = ["H2O", "H2", "O2"]
+
+    [conditions]
+    T = "7000 K"
+    P = "1 bar"
+    """
+
+
+def test_a_range_error_on_the_command_line_names_the_case_file_key(tmp_path, capsys):
+    code, out, err = run(["settle", write_case(tmp_path, HOT_CASE)], capsys)
+    assert code == 2
+    assert "[species] allow_extrapolation = true" in err
+    assert "allow_extrapolation=True" not in err
+
+
+def test_a_warning_on_the_command_line_names_the_case_file_key(tmp_path, capsys):
+    code, out, err = run(["settle", write_case(tmp_path, COLD_LOOP_CASE), "--quiet"], capsys)
+    assert code == 0
+    assert '[feed] carbon_basis = "all"' in err and "carbon_basis='all'" not in err
+
+
+def test_the_python_api_keeps_its_own_option_names():
+    with pytest.raises(gibbsmin.TemperatureRangeError, match=r"allow_extrapolation=True"):
+        gibbsmin.equilibrate({"H2O": 1.0}, 7000.0, 1e5, species=["H2O", "H2", "O2"])
+
+
+def test_every_translated_option_is_a_case_file_key():
+    from gibbsmin.case import CASE_KEYS
+    from gibbsmin.cli import CASE_FILE_KEYS, in_case_file_words
+
+    for option, (table, key) in CASE_FILE_KEYS.items():
+        assert key in CASE_KEYS[table], (option, table, key)
+    assert in_case_file_words("try method='convex', or exclude=['C(s)']") == \
+        'try [conditions] method = "convex", or [species] exclude = ["C(s)"]'
+
+
+def test_species_search_suggests_the_species_of_a_misspelt_alias(capsys):
+    code, out, err = run(["species", "amonia"], capsys)
+    assert code == 0 and out == ""
+    assert "did you mean NH3 (ammonia)?" in err
+
+
+def test_species_close_matches_name_the_species_and_its_alias():
+    db = gibbsmin.default_database()
+    assert db.close_matches("amonia")[0] == "NH3 (ammonia)"
+    assert "CH4" in db.close_matches("CH5")
+    assert db.close_matches("xyzzy") == []
+
+
+@pytest.mark.parametrize("text", ["shift reaction", "the shift", "shfit reaction"])
+def test_a_shift_reaction_suggests_the_water_gas_shift(text):
+    from gibbsmin.reactions import reaction
+
+    with pytest.raises(gibbsmin.InputError, match=r"did you mean 'water-gas shift'[?,]"):
+        reaction(text)
