@@ -11,7 +11,7 @@ from ..errors import InputError
 from ..report.files import write_atomic
 from .grid import SweepSpec, axis_from_text, axis_size, check_axis_names
 
-#: Above this many points a sweep runs only with --yes (at the measured 100,000 to 250,000 points/s a
+#: Above this many points a sweep runs only with --yes (at the 79,000 to 255,000 points/s of DEVELOPERS.md a
 #: million points take seconds; far larger grids are usually a typing slip in a step).
 LARGE_SWEEP = 1_000_000
 
