@@ -144,6 +144,10 @@ def test_settle_marks_the_unstable_gas_failed_and_fail_on_exits_non_zero(tmp_pat
     assert code == 1
     doc = json.loads(run(["settle", case, "--json"], capsys)[1])
     assert doc["certificate"]["certified"] is False and doc["certificate"]["phase_stability"] == "unstable"
+    html = tmp_path / "cold.html"
+    run(["settle", case, "--quiet", "--html", html], capsys)
+    page = html.read_text()
+    assert '<td class="fail">fail</td>' in page and '<td class="pass">' not in page  # red, never green
 
 
 def test_fail_on_passes_a_certified_carbon_free_case(capsys):
