@@ -3,9 +3,9 @@
 Thin by design: it reads arguments, calls the library, writes what was asked
 for.  Exit codes: 0 success; 1 a check failed (or warned) and ``--fail-on`` asked
 to be told; 2 bad input (one line on stderr, no traceback); 3 no certified
-answer; 130 interrupted.  ``settle --fail-on fail`` exits with 1 when any verdict of
-the report fails (an uncertified answer, graphite in a carbon-free check).  ``--traceback`` shows the Python traceback of an error
-(for reporting a bug).
+answer; 130 interrupted.  ``settle --fail-on fail`` exits with 1 when any verdict
+of the report fails (an uncertified answer, graphite in a carbon-free check).
+``--traceback`` shows the Python traceback of an error (for reporting a bug).
 """
 
 from __future__ import annotations
