@@ -122,13 +122,16 @@ def certificate_table(result: CaseResult) -> Table:
     for stage in result.stages:
         c = stage.equilibrium.certificate
         rows.append((stage.stage.name, "pass" if c.certified else "fail", c.solver, c.iterations,
-                     c.element_balance, c.stationarity, None if math.isinf(c.complementarity) else c.complementarity))
+                     c.element_balance, c.stationarity, None if math.isinf(c.complementarity) else c.complementarity,
+                     c.phase_stability))
     return Table("Certificate of each answer (optimality conditions recomputed from the answer)",
                  (Column("stage", "text"), Column("certified", "verdict"), Column("solver", "text"),
                   Column("iterations", "number"), Column("element balance", "exp"), Column("stationarity", "exp"),
-                  Column("condensed-phase margin", "exp")), tuple(rows),
+                  Column("condensed-phase margin", "exp"), Column("one gas", "text")), tuple(rows),
                  ("element balance: max |A n - b| / max b; stationarity: max |mu/RT - a.lambda|; margin: "
-                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",),
+                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",
+                  "one gas: the tangent-plane test of a cubic gas (unstable: a liquid-like phase would form, so the "
+                  "answer is not the equilibrium and is not certified)"),
                  key="certificate")
 
 
@@ -198,7 +201,7 @@ def carbon_table(result: CaseResult) -> Table | None:
     for stage in result.stages:
         eq = stage.equilibrium
         activity = carbon_activity(eq)
-        verdict = "warn" if activity.possible else "pass"
+        verdict = activity.status  # "fail" whenever the outlet holds graphite
         feed_ratio, limit = _steam_to_carbon_limit(result, stage)
         rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio, limit,
                      verdict, activity.verdict))
