@@ -78,3 +78,48 @@ def test_a_failing_render_writes_nothing(tmp_path):
 def test_one_file_named_for_two_outputs_is_refused(tmp_path):
     with pytest.raises(InputError, match="same file"):
         write_all([(tmp_path / "a.csv", lambda: "x"), (tmp_path / "a.csv", lambda: "y")])
+
+
+# --- item 1: the audit page opens with its findings, failures first, imbalances in MW and K --------
+
+
+@pytest.fixture(scope="module")
+def plant_audit():
+    from gibbsmin.audit import audit_plant, read_plant
+
+    return audit_plant(read_plant(EXAMPLES / "plant" / "units.toml"))
+
+
+def test_audit_page_opens_with_the_findings_failures_first(plant_audit):
+    import re
+
+    from gibbsmin.report.audit import audit_report
+    from gibbsmin.report.html import render_html
+
+    page = render_html(audit_report(plant_audit))
+    findings = page.index("<h2>Findings")
+    assert findings < page.index("<figure>") and findings < page.index("<h2>Verdicts")
+    body = page[findings:page.index("</table>", findings)]
+    verdicts = re.findall(r'<td class="(pass|warn|fail|n/a)">', body)
+    assert verdicts == ["fail"] * 4 + ["warn", "n/a"]
+    # Only the methanator's element closure is outside its limits: one closure chart, beside five approach charts.
+    assert page.count("<figure>") == 6
+    assert set(re.findall(r">([^<>]*): element closures<", page)) == {"R-105 methanator"}
+
+
+def test_energy_imbalance_is_given_in_mw_as_well_as_kelvin(plant_audit):
+    from gibbsmin.report.audit import audit_document, audit_report
+    from gibbsmin.report.text import render_text
+
+    check = next(c for c in plant_audit.checks if c.where == "R-101 primary reformer" and c.name == "energy balance")
+    (imbalance_MW, unit), = check.also
+    # The planted error (examples/plant/make_balance.py): the stated 62.3 MW is 85 % of the need, so the
+    # imbalance is 62.3 (1/0.85 - 1) = 10.99 MW, within the sheet's rounding of the streams.
+    assert unit == "MW" and imbalance_MW == pytest.approx(62.3 * (1 / 0.85 - 1), abs=0.15)
+    text = render_text(audit_report(plant_audit, details=False), width=200)
+    row = next(line for line in text.splitlines() if line.startswith("R-101 primary reformer    energy balance"))
+    assert f"+{check.value:.4g} K (+{imbalance_MW:.4g} MW)" in row
+    document = audit_document(plant_audit)
+    reformer = next(u for u in document["units"] if u["id"].startswith("R-101"))
+    energy = next(c for c in reformer["checks"] if c["check"] == "energy balance")
+    assert energy["also"] == [{"value": pytest.approx(imbalance_MW, rel=1e-12), "unit": "MW"}]

@@ -78,7 +78,11 @@ class Plot:
 
 @dataclass(frozen=True)
 class Report:
-    """A whole report: a title, facts (label, text) about the case, tables, plots and the caution."""
+    """A whole report: a title, facts (label, text) about the case, tables, plots and the caution.
+
+    ``tables_before_plots`` tables (the findings of an audit, say) come before
+    the plots in the HTML page; the others after them.
+    """
 
     title: str
     facts: tuple[tuple[str, str], ...] = ()
@@ -86,3 +90,4 @@ class Report:
     plots: tuple[Plot, ...] = ()
     notes: tuple[str, ...] = ()
     caution: str = field(default=CAUTION)
+    tables_before_plots: int = 0

@@ -54,7 +54,9 @@ def render_html(report: Report) -> str:
     facts = "".join(f"<tr><th>{escape(label)}</th><td>{escape(text)}</td></tr>" for label, text in report.facts)
     plots = "".join(f"<figure>{render_svg(p)}</figure>\n" for p in report.plots)
     notes = "".join(f'<p class="note">{escape(n)}</p>' for n in report.notes)
-    tables = "\n".join(_table_html(t) for t in report.tables)
+    lead = report.tables_before_plots
+    leading = "\n".join(_table_html(t) for t in report.tables[:lead])
+    tables = "\n".join(_table_html(t) for t in report.tables[lead:])
     return f"""<!DOCTYPE html>
 <html lang="en">
 <head>
@@ -68,6 +70,7 @@ def render_html(report: Report) -> str:
 <h1>{escape(report.title)}</h1>
 <div class="caution"><strong>{escape(report.caution)}</strong></div>
 <table class="facts">{facts}</table>
+{leading}
 {plots}
 {tables}
 {notes}
