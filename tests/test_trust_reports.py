@@ -123,3 +123,129 @@ def test_energy_imbalance_is_given_in_mw_as_well_as_kelvin(plant_audit):
     reformer = next(u for u in document["units"] if u["id"].startswith("R-101"))
     energy = next(c for c in reformer["checks"] if c["check"] == "energy balance")
     assert energy["also"] == [{"value": pytest.approx(imbalance_MW, rel=1e-12), "unit": "MW"}]
+
+
+# --- item 2: the stream table in the trade's layout, in every form --------------------------------
+
+#: A float written with a sum's last bit (865.0000000000001, 52.20000000000002) or as a negative zero.
+FLOAT_NOISE = r"\d\.\d*(0000000|9999999)\d|(?<![\d.])-0\.0*(?![\d])|(?<![\d.])-0(?![\d.])"
+
+
+@pytest.fixture(scope="module")
+def so2_files(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("so2")
+    code = main(["settle", str(EXAMPLES / "so2_converter.toml"), "--quiet", "--csv", str(folder / "s.csv"),
+                 "--xlsx", str(folder / "s.xlsx"), "--html", str(folder / "s.html")])
+    assert code == 0
+    return folder
+
+
+@pytest.fixture(scope="module")
+def so2_result():
+    from gibbsmin.case import read_case, settle_case
+
+    return settle_case(read_case(EXAMPLES / "so2_converter.toml"))
+
+
+SO2_STREAMS = ["feed", "bed 1 outlet", "bed 2 inlet", "bed 2 outlet", "bed 3 inlet", "bed 3 outlet"]
+
+
+def _csv_blocks(text):
+    """The CSV's table blocks by name: the block's lines without its '#' lines."""
+    blocks = {}
+    for block in text.split("\n\n")[1:]:
+        lines = block.strip("\n").splitlines()
+        name = lines[0].removeprefix("# table ").split(":")[0]
+        blocks[name] = "\n".join(line for line in lines if not line.startswith("#"))
+    return blocks
+
+
+def test_stream_table_figures_of_the_so2_converter(so2_files):
+    pandas = pytest.importorskip("pandas")
+    periodictable = pytest.importorskip("periodictable")
+    table = pandas.read_excel(so2_files / "s.xlsx", sheet_name="streams", header=0, index_col=[0, 1])
+    assert list(table.columns) == SO2_STREAMS
+    feed = table["feed"]
+    # As typed in the case file: 420 degC, 1.35 bar absolute, 5200 kmol/h of 10.5 % SO2, 10 % O2, 79.5 % N2;
+    # the intercoolers' 440 and 430 degC.
+    assert feed["temperature", "degC"] == pytest.approx(420.0, abs=1e-9)
+    assert table.loc[("temperature", "degC"), "bed 2 inlet"] == pytest.approx(440.0, abs=1e-9)
+    assert table.loc[("temperature", "degC"), "bed 3 inlet"] == pytest.approx(430.0, abs=1e-9)
+    assert feed["pressure", "bar abs"] == pytest.approx(1.35, abs=1e-12)
+    # Gauge pressure against one standard atmosphere, 1.01325 bar (NIST SP 811, Appendix B).
+    assert feed["pressure", "bar(g)"] == pytest.approx(1.35 - 1.01325, abs=1e-12)
+    assert feed["total flow", "kmol/h"] == pytest.approx(5200.0, rel=1e-12)
+    # Normal volume: 22.41397 m3/kmol of ideal gas at 0 degC, 1.01325 bar (CODATA 2018 R = 8.314462618).
+    assert feed["total flow", "Nm3/h (0 degC, 1.01325 bar)"] == pytest.approx(5200 * 22.41397, rel=1e-6)
+    S, O, N = periodictable.S.mass, periodictable.O.mass, periodictable.N.mass
+    kg_h = 5200 * (0.105 * (S + 2 * O) + 0.10 * 2 * O + 0.795 * 2 * N)
+    assert feed["total flow", "kg/h"] == pytest.approx(kg_h, rel=1e-4)  # periodictable's weights differ slightly
+    for stream in SO2_STREAMS:
+        column = table[stream]
+        assert column["total flow", "kg/h"] == pytest.approx(feed["total flow", "kg/h"], rel=1e-12)  # mass kept
+        assert column["SO2", "kmol/h"] + column["SO3", "kmol/h"] == pytest.approx(546.0, rel=1e-12)  # sulfur kept
+        assert column["N2", "kmol/h"] == pytest.approx(4134.0, rel=1e-12)  # frozen
+        wet = sum(column[s, "mol% wet"] for s in ("SO2", "SO3", "O2", "N2"))
+        assert wet == pytest.approx(100.0, rel=1e-12)
+        assert column["SO3", "mol% dry"] == pytest.approx(column["SO3", "mol% wet"], rel=1e-12)  # no water
+    # Each intercooler changes the temperature only.
+    assert table["bed 2 inlet"].drop(("temperature", "degC")).tolist() == pytest.approx(
+        table["bed 1 outlet"].drop(("temperature", "degC")).tolist(), rel=1e-12)
+
+
+def test_stream_table_files_parse_and_carry_no_float_noise(so2_files):
+    import re
+
+    pandas = pytest.importorskip("pandas")
+    import io
+
+    text = (so2_files / "s.csv").read_text()
+    assert not re.search(FLOAT_NOISE, text), re.search(FLOAT_NOISE, text)
+    blocks = _csv_blocks(text)
+    assert "streams" in blocks and "stages" in blocks
+    from_csv = pandas.read_csv(io.StringIO(blocks["streams"]), index_col=[0, 1])
+    from_xlsx = pandas.read_excel(so2_files / "s.xlsx", sheet_name="streams", header=0, index_col=[0, 1])
+    assert list(from_csv.columns) == SO2_STREAMS
+    assert from_csv.to_numpy() == pytest.approx(from_xlsx.to_numpy(), rel=1e-15)
+    for name, frame in pandas.read_excel(so2_files / "s.xlsx", sheet_name=None, header=0).items():
+        if name == "summary":
+            continue
+        assert not any(str(c).startswith("Unnamed") for c in frame.columns), name  # headings in row 1
+        numbers = frame.select_dtypes("number").to_numpy().ravel()
+        assert all(float(f"{x:.12g}") == x for x in numbers if x == x), name
+        assert not any(x == 0 and str(x).startswith("-") for x in numbers), name
+
+
+def test_stream_table_in_the_terminal_and_the_page(so2_result, so2_files, capsys):
+    from gibbsmin.report.settle import settle_report
+    from gibbsmin.report.text import render_text
+
+    text = render_text(settle_report(so2_result), width=200)
+    block = text[text.index("Stream table"):].split("\n\n")[0].splitlines()
+    assert block[1].split()[:2] == ["item", "unit"] and "bed 3 outlet" in block[1]
+    temperature = next(line for line in block if line.startswith("temperature"))
+    assert temperature.split()[2:5] == ["420.00", f"{so2_result.stages[0].equilibrium.T - 273.15:.2f}", "440.00"]
+    gauge = next(line for line in block if line.startswith("pressure") and "bar(g)" in line)
+    assert gauge.split()[2] == "0.33675"
+    assert any("Nm3/h (0 degC, 1.01325 bar)" in line for line in block)
+    page = (so2_files / "s.html").read_text()
+    assert page.index("<h2>Stream table</h2>") < page.index("<figure>")
+
+
+def test_stream_table_of_the_reformer_splits_steam_from_the_dry_gas():
+    from gibbsmin.case import read_case, settle_case
+    from gibbsmin.report.stream_table import stream_table
+
+    table = stream_table(settle_case(read_case(EXAMPLES / "reformer.toml")))
+    names = [c.title for c in table.columns]
+    assert names == ["item", "unit", "natural_gas", "recycle_hydrogen", "outlet"]
+    rows = {(r[0], r[1]): r[2:] for r in table.rows}
+    # As typed: the dry analysis of the natural gas, and steam at S/C 3.0 on its hydrocarbon carbon:
+    # 3.0 x 1450 x (0.931 + 2 x 0.036 + 3 x 0.006) = 4441.35 kmol/h.
+    for species, typed in {"CH4": 93.1, "C2H6": 3.6, "C3H8": 0.6, "CO2": 1.2, "N2": 1.5}.items():
+        assert rows[species, "mol% dry"][0] == pytest.approx(typed, rel=1e-12)
+    assert rows["H2O", "kmol/h"][0] == pytest.approx(4441.35, rel=1e-12)
+    assert ("H2O", "mol% dry") not in rows
+    assert rows["pressure", "bar(g)"][0] == pytest.approx(31.5, rel=1e-12)
+    assert rows["pressure", "bar(g)"][2] == pytest.approx(29.8, rel=1e-12)
+    assert rows["temperature", "degC"][2] == pytest.approx(865.0, abs=1e-9)

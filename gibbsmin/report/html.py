@@ -33,10 +33,10 @@ _POLICY = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
 def _table_html(table: Table) -> str:
     head = "".join(f"<th>{escape(c.title)}</th>" for c in table.columns)
     rows = []
-    for row in table.rows:
+    for i, row in enumerate(table.rows):
         cells = []
-        for value, column in zip(row, table.columns):
-            text = escape(format_cell(value, column.style))
+        for j, (value, column) in enumerate(zip(row, table.columns)):
+            text = escape(format_cell(value, table.style(i, j)))
             if column.style == "verdict":
                 cells.append(f'<td class="{escape(str(value))}">{text}</td>')
             elif column.style == "text" or isinstance(value, str) or value is None:

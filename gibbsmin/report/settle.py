@@ -15,6 +15,7 @@ from ..thermo import default_database
 from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
+from .stream_table import stream_table
 
 
 def is_gauge(unit: str) -> bool:
@@ -80,16 +81,6 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
 
 def _shown(species: str, y: float, spec: ReportSpec) -> bool:
     return species in spec.show if spec.show is not None else y >= spec.cutoff
-
-
-def feed_table(result: CaseResult) -> Table:
-    spec = result.case.report
-    feed = result.case.mixed_feed()
-    total = sum(feed.values())
-    rows = [(s, flow_in(s, n, spec.flow_unit), 100 * n / total) for s, n in feed.items()]
-    rows.append(("total", sum(flow_in(s, n, spec.flow_unit) for s, n in feed.items()), 100.0))
-    return Table("Feed (all feeds mixed)", (Column("species", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
-                                            Column("mol% wet", "percent")), tuple(rows), key="feed")
 
 
 def stages_table(result: CaseResult) -> Table:
@@ -317,7 +308,7 @@ def settle_report(result: CaseResult) -> Report:
         except ValueError:
             pass  # no hydrocarbon carbon: S/C says nothing
         facts.append((f"feed {feed.name}", text))
-    tables = [feed_table(result), stages_table(result), *(stage_table(s, spec) for s in result.stages)]
+    tables = [stages_table(result), stream_table(result), *(stage_table(s, spec) for s in result.stages)]
     optional = [
         approach_table(result) if FEATURES["reactions"].available() else None,
         kp_table(result) if FEATURES["reactions"].available() else None,
@@ -332,7 +323,8 @@ def settle_report(result: CaseResult) -> Report:
         by_reason.setdefault(why, []).append(species)
     for why, names in by_reason.items():
         notes.append(f"Left out of the species set ({why}): {', '.join(names)}.")
-    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), tuple(plots), tuple(notes))
+    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), tuple(plots), tuple(notes),
+                  tables_before_plots=2)  # the stages and the stream table, then the plots
 
 
 # --- JSON -------------------------------------------------------------------------------------------
