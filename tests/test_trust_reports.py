@@ -249,3 +249,79 @@ def test_stream_table_of_the_reformer_splits_steam_from_the_dry_gas():
     assert rows["pressure", "bar(g)"][0] == pytest.approx(31.5, rel=1e-12)
     assert rows["pressure", "bar(g)"][2] == pytest.approx(29.8, rel=1e-12)
     assert rows["temperature", "degC"][2] == pytest.approx(865.0, abs=1e-9)
+
+
+# --- item 3: the settle report's facts say only what holds -----------------------------------------
+
+
+def _facts(case_path, capsys=None):
+    import warnings
+
+    from gibbsmin.case import read_case, settle_case
+    from gibbsmin.report.settle import settle_report
+
+    case = read_case(case_path)
+    result = settle_case(case)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        report = settle_report(result)
+    return dict(report.facts), report, [str(w.message) for w in caught]
+
+
+def test_reformer_feed_line_gives_dry_gas_and_steam_apart():
+    facts, _, caught = _facts(EXAMPLES / "reformer.toml")
+    # As typed: 1450 kmol/h of dry gas, steam at S/C 3.0 = 4441.35 kmol/h (see the stream-table test).
+    assert facts["feed natural_gas"].startswith("1450 kmol/h dry gas + 4441.35 kmol/h steam (5891.35 kmol/h in all)")
+    assert "S/C 3.000 (hydrocarbon basis)" in facts["feed natural_gas"]
+    assert "S/C" not in facts["feed recycle_hydrogen"] and "steam" not in facts["feed recycle_hydrogen"]
+    assert caught == []
+
+
+def test_no_steam_to_carbon_line_where_no_hydrocarbon_free_to_react_meets_steam():
+    # The methanol loop: its methane is held inert and its CH3OH carbon is not S/C carbon; no S/C was asked for,
+    # so neither an S/C line nor a warning about CH3OH. The ammonia loop has no steam at all.
+    facts, _, caught = _facts(EXAMPLES / "methanol_converter_pr.toml")
+    assert "S/C" not in facts["feed feed"] and facts["feed feed"].startswith("10000 kmol/h dry gas + 50 kmol/h H2O")
+    assert not any("CH3OH" in w for w in caught)
+    facts, _, caught = _facts(EXAMPLES / "ammonia_converter_pr.toml")
+    assert "S/C" not in facts["feed feed"] and caught == []
+
+
+def test_steam_to_carbon_of_separate_gas_and_steam_feeds(tmp_path):
+    case = tmp_path / "two_feeds.toml"
+    case.write_text('[case]\ntitle = "invented"\n[feed.gas]\nunit = "kmol/h"\nCH4 = 100.0\nCH3OH = 5.0\n'
+                    'T = "500 degC"\n[feed.steam]\nunit = "kmol/h"\nH2O = 300.0\nT = "500 degC"\n'
+                    '[conditions]\nT = "850 degC"\nP = "20 bar(g)"\n')
+    facts, _, caught = _facts(case)
+    assert "S/C" not in facts["feed gas"] and facts["feed steam"].startswith("300 kmol/h steam")
+    # 300 kmol/h H2O over 100 kmol/h of methane carbon (the CH3OH carbon is not hydrocarbon carbon).
+    assert facts["feeds mixed"] == "S/C 3.000 (hydrocarbon basis; the carbon of CH3OH not counted)"
+    assert caught == []
+
+
+def test_duty_note_names_the_residual_enthalpy_of_a_cubic(tmp_path):
+    text = (EXAMPLES / "ammonia_bed.toml").read_text().replace('P = "144 bar(g)"\n',
+                                                              'P = "144 bar(g)"\ngas = "peng-robinson"\n')
+    assert "peng-robinson" in text
+    case = tmp_path / "bed_pr.toml"
+    case.write_text(text)
+    _, report, _ = _facts(case)
+    stages = next(t for t in report.tables if t.key == "stages")
+    assert "plus the peng-robinson residual enthalpy of the gas" in stages.notes[0]
+    _, ideal, _ = _facts(EXAMPLES / "ammonia_bed.toml")
+    note = next(t for t in ideal.tables if t.key == "stages").notes[0]
+    assert "ideal-gas enthalpies" in note and "residual" not in note
+
+
+def test_a_failed_carbon_limit_search_is_named_not_dropped(monkeypatch):
+    import gibbsmin.carbon
+    from gibbsmin.errors import ConvergenceError
+
+    def failing(*args, **kwargs):
+        raise ConvergenceError("no sign change of ln a_C found")
+
+    monkeypatch.setattr(gibbsmin.carbon, "carbon_limit", failing)
+    _, report, _ = _facts(EXAMPLES / "reformer.toml")
+    carbon = next(t for t in report.tables if t.key == "carbon")
+    assert carbon.rows[0][4] == pytest.approx(3.0, rel=1e-12) and carbon.rows[0][5] is None
+    assert "outlet: min S/C not found (no sign change of ln a_C found)" in carbon.notes
