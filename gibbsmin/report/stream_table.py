@@ -130,6 +130,11 @@ def stream_table(result: CaseResult) -> Table:
     styles += ["flow", "flow", "flow", "fixed3"]
     species, hidden = _species_order(columns, spec)
     gas_species = [s for s in species if any(s in w for w in wet)]
+    condensed = [s for s in species if s not in gas_species]
+    if condensed:  # the gas alone as well, where a stream carries graphite or liquid water
+        rows += [("gas flow", _FLOW, *(c.gas.total_flow(_FLOW) if c.gas else 0.0 for c in columns)),
+                 ("gas flow", _normal_text(normal), *(c.gas.total_flow("Nm3/h") if c.gas else 0.0 for c in columns))]
+        styles += ["flow", "flow"]
     for s in species:
         rows.append((s, _FLOW, *(f.get(s, 0.0) for f in flows)))
         styles.append("flow")
@@ -141,9 +146,9 @@ def stream_table(result: CaseResult) -> Table:
             rows.append((s, "mol% dry", *(d.get(s, 0.0) if d else None for d in dry)))
             styles.append("percent")
     notes = [f"Nm3 at {normal.describe()}; mol% wet and dry are of the gas (water left out of the dry basis)"]
-    condensed = [s for s in species if s not in gas_species]
     if condensed:
-        notes.append(f"{', '.join(condensed)}: condensed, in the flows and totals but not in the gas mol%")
+        notes.append(f"{', '.join(condensed)}: condensed, in the total flows (Nm3 counted as ideal gas, as the "
+                     "trade states it) but not in the gas flows or the gas mol%")
     if hidden:
         why = "not listed in [report] show" if spec.show else f"below {_cutoff_text(spec.cutoff)} in every stream"
         notes.append(f"({hidden} gas species {why} not shown; the totals include them)")
