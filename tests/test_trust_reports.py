@@ -7,6 +7,7 @@ What a practising engineer expects of a stream table and an audit page is common
 from __future__ import annotations
 
 import os
+import shutil
 import tempfile
 from pathlib import Path
 
@@ -382,3 +383,35 @@ def test_audit_workbook_and_csv_read_as_tables(plant_audit, tmp_path):
     assert float_noise(text) == []
     findings = pandas.read_csv(io.StringIO(_csv_blocks(text)["findings"]), keep_default_na=False)  # "n/a" as text
     assert findings["verdict"].tolist() == ["fail"] * 4 + ["warn", "n/a"]
+
+
+@pytest.mark.skipif(not (shutil.which("chromium") or os.path.exists("/usr/bin/chromium")),
+                    reason="headless Chromium is not installed on this machine")
+def test_audit_findings_are_on_the_first_screen_in_a_browser(plant_audit, tmp_path):
+    # Laid out by headless Chromium 1200 px wide: the findings heading within the first 800 px (it was at
+    # 4,783 px below ten closure charts before issue 16).
+    import re
+    import subprocess
+
+    from gibbsmin.report.audit import audit_report
+    from gibbsmin.report.html import render_html
+
+    page = tmp_path / "audit.html"
+    page.write_text(render_html(audit_report(plant_audit)))
+    probe = tmp_path / "probe.html"
+    probe.write_text(
+        f'<!DOCTYPE html><html><body><iframe id="f" src="{page.as_uri()}" style="width:1200px;height:800px">'
+        '</iframe><pre id="out">pending</pre><script>'
+        "document.getElementById('f').onload = function () {"
+        " var d = document.getElementById('f').contentDocument;"
+        " var h = Array.from(d.querySelectorAll('h2')).find(function (e) {"
+        "  return e.textContent.indexOf('Findings') === 0; });"
+        " document.getElementById('out').textContent = 'findings at ' + Math.round(h.getBoundingClientRect().top);"
+        "};</script></body></html>")
+    browser = shutil.which("chromium") or "/usr/bin/chromium"
+    done = subprocess.run([browser, "--headless", "--disable-gpu", "--no-sandbox", "--allow-file-access-from-files",
+                           "--virtual-time-budget=5000", "--dump-dom", probe.as_uri()],
+                          capture_output=True, text=True, timeout=90)
+    found = re.search(r"findings at (\d+)", done.stdout)
+    assert found, done.stderr[-500:]
+    assert int(found.group(1)) < 800
