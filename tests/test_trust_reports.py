@@ -291,6 +291,7 @@ def test_reformer_feed_line_gives_dry_gas_and_steam_apart():
     # As typed: 1450 kmol/h of dry gas, steam at S/C 3.0 = 4441.35 kmol/h (see the stream-table test).
     assert facts["feed natural_gas"].startswith("1450 kmol/h dry gas + 4441.35 kmol/h steam (5891.35 kmol/h in all)")
     assert "S/C 3.000 (hydrocarbon basis)" in facts["feed natural_gas"]
+    assert "at 520.00 degC, 31.5 bar(g) (32.5132 bar abs)" in facts["feed natural_gas"]  # typed 31.5 bar(g)
     assert "S/C" not in facts["feed recycle_hydrogen"] and "steam" not in facts["feed recycle_hydrogen"]
     assert caught == []
 

@@ -29,6 +29,9 @@ def temperature_text(T: float, unit: str) -> str:
 
 
 def pressure_text(P: float, unit: str) -> str:
+    """A pressure in the report's unit; in bar as the trade writes it, gauge with absolute beside it."""
+    if unit in ("bar", "bar(g)"):
+        return f"{from_pascal(P, 'bar(g)') + 0.0:.6g} bar(g) ({from_pascal(P, 'bar'):.6g} bar abs)"
     return f"{from_pascal(P, unit):.6g} {unit}{'' if is_gauge(unit) else ' (abs)'}"
 
 
