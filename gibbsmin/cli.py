@@ -121,22 +121,9 @@ def _add_outputs(parser: argparse.ArgumentParser) -> None:
 
 
 def _write_outputs(report, args: argparse.Namespace) -> list[Path]:
-    from .report.files import write_atomic
+    from .report.files import write_report_files
 
-    written = []
-    if args.csv:
-        from .report.spreadsheet import render_csv
-
-        written.append(write_atomic(args.csv, render_csv(report)))
-    if args.xlsx:
-        from .report.spreadsheet import render_xlsx
-
-        written.append(write_atomic(args.xlsx, render_xlsx(report)))
-    if args.html:
-        from .report.html import render_html
-
-        written.append(write_atomic(args.html, render_html(report)))
-    return written
+    return write_report_files(report, csv=args.csv, xlsx=args.xlsx, html=args.html)
 
 
 def _print_json(document: dict) -> None:

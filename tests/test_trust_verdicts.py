@@ -275,8 +275,26 @@ def test_a_range_error_on_the_command_line_names_the_case_file_key(tmp_path, cap
     assert "allow_extrapolation=True" not in err
 
 
+METHANOL_REFORMER_CASE = """\
+    [case]
+    title = "Invented methanol-bearing reformer feed, steam set by S/C"
+
+    [feed]
+    unit = "kmol/h"
+    CH4 = 90.0
+    CH3OH = 10.0
+    steam_to_carbon = 3.0
+
+    [conditions]
+    T = "800 degC"
+    P = "20 bar"
+    """
+
+
 def test_a_warning_on_the_command_line_names_the_case_file_key(tmp_path, capsys):
-    code, out, err = run(["settle", write_case(tmp_path, COLD_LOOP_CASE), "--quiet"], capsys)
+    # S/C is asked for and the feed holds methanol, whose carbon the default basis leaves out: the
+    # reader warns, and the warning must name the case-file key, not the Python option.
+    code, out, err = run(["settle", write_case(tmp_path, METHANOL_REFORMER_CASE), "--quiet"], capsys)
     assert code == 0
     assert '[feed] carbon_basis = "all"' in err and "carbon_basis='all'" not in err
 
