@@ -22,6 +22,7 @@ from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .solve import SOLVERS, SolverResult, solve
 from .system import Problem, System, reduce, select_species, standard_mu0
 from .thermo.database import SpeciesDatabase, default_database
+from .thermo.datasets import choose_database
 
 #: Beyond this stationarity residual an uncertified answer is refused rather than returned with a warning.
 _USABLE_STATIONARITY = 1e-4
@@ -213,6 +214,7 @@ def equilibrate(
     gas: str = "ideal",
     kij: str | Mapping[tuple[str, str], float] | InteractionTable | None = "shipped",
     db: SpeciesDatabase | None = None,
+    data: str | None = None,
     allow_extrapolation: bool = False,
     sensitivities: bool = False,
     T_bounds: tuple[float, float] | None = None,
@@ -262,6 +264,10 @@ def equilibrate(
         its pairs of the model.  The result's ``extras["binary_interactions"]``
         lists the non-zero ones used.
     db : SpeciesDatabase, optional
+    data : str, optional
+        The thermochemical data set by name (``gibbsmin.thermo.DATA_SETS``):
+        "nasa-1993" (the default) or "atct-anchored"; not with a ``db`` of
+        another set.  The result's ``extras["data_set"]`` names the one used.
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.
     sensitivities : bool
@@ -298,7 +304,7 @@ def equilibrate(
         raise InputError("P is required: the pressure in Pa, e.g. P=30e5")
     P = _positive_number(P, "P", "Pa")
     check_method(method)
-    db = db or default_database()
+    db = choose_database(data, db)
     inlet = energy.read_inlet(feed, T_feed, db)
     heat = energy.heat_input_of(heat_input)
     energy_balance = T is None
@@ -342,6 +348,7 @@ def equilibrate(
                                                       allow_extrapolation=allow_extrapolation)
     extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                   residual_enthalpy=None if phase is None else phase.residual_enthalpy)
+    extras["data_set"] = db.data_set
     if phase is not None:
         extras["gas_phase_stability"] = nonideal.stability_checked(phase, eq)
     if sensitivities and phase is not None:
