@@ -11,7 +11,7 @@ import math
 import numbers
 import warnings
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import NDArray
@@ -218,6 +218,7 @@ def equilibrate(
     allow_extrapolation: bool = False,
     sensitivities: bool = False,
     T_bounds: tuple[float, float] | None = None,
+    uncertainty: bool = False,
 ) -> Equilibrium:
     """Equilibrium of a feed at fixed temperature and pressure, or at the temperature the energy balance sets.
 
@@ -278,6 +279,11 @@ def equilibrate(
     T_bounds : (float, float), optional
         Lowest and highest outlet temperature the energy balance may give,
         [K]; by default the range where every named gas species has data.
+    uncertainty : bool
+        Fill ``Equilibrium.uncertainty``: the standard uncertainty [mol] of
+        every amount, propagated linearly from the data set's uncertainties of
+        the enthalpies of formation (``gibbsmin.uncertainty``; needs a data set
+        that states them, ``data="atct-anchored"``).  At a fixed T only.
 
     Returns
     -------
@@ -315,6 +321,9 @@ def equilibrate(
         raise InputError("T fixes the outlet temperature, so the energy balance cannot also fix it: leave T out "
                          "for an adiabatic reactor (or one with heat_input), or drop adiabatic/heat_input to get "
                          "the duty at T (pass T_feed)")
+    if uncertainty and energy_balance:
+        raise InputError("uncertainty=True is propagated at a fixed outlet temperature; give T (the energy "
+                         "balance's own uncertainty is not computed yet)")
     if energy_balance:
         if not inlet.has_temperatures:
             raise InputError("the energy balance needs the feed temperature: pass T_feed in K (one number, or one "
@@ -357,7 +366,22 @@ def equilibrate(
     elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
+    if uncertainty:
+        eq = replace(eq, uncertainty=_amount_uncertainty(setup, problem, result, eq, phase, method,
+                                                         allow_extrapolation, db.data_set))
     return checked(energy.with_extras(eq, extras))
+
+
+def _amount_uncertainty(setup, problem, result, eq, phase, method, allow_extrapolation, data_set):
+    from . import nonideal, uncertainty
+
+    amounts_at = None
+    if phase is not None:  # phi moves with the composition: differences of whole solves
+        def amounts_at(offsets):
+            moved = nonideal.solve_nonideal(setup, eq.T, eq.P, phase, method=method, offsets=offsets, start=result,
+                                            allow_extrapolation=allow_extrapolation)[0]
+            return np.array([moved.amounts[s] for s in setup.system.names])
+    return uncertainty.amount_uncertainty(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
 
 
 def check_method(method: str) -> None:

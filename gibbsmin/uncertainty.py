@@ -1,0 +1,86 @@
+"""How far an answer can be trusted: the standard uncertainty of each amount from the formation data.
+
+The inputs are the per-species standard uncertainties of delta-f H(298.15 K)
+that a data set states (``SpeciesRecord.hf298_uncertainty``; the set
+"atct-anchored" has them).  A shift dH_j of species j's enthalpy of formation
+moves its g0 by dH_j at every temperature; the amounts respond linearly,
+dn = J dH, with J = d n / d(delta-f H) from the implicit differentiation of the
+optimality conditions (``sensitivity.formation_enthalpy_sensitivities``) or,
+for a cubic gas whose fugacity coefficients move with the composition, from
+central differences of whole solves.  With the covariance Sigma of the inputs
+(diagonal: each species' value is its own ATcT entry or the default), the
+amounts' standard uncertainties are sqrt(diag(J Sigma J^T)) [mol].
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .errors import InputError
+from .settle import Setup
+from .solve import SolverResult
+from .system import Problem
+from .thermo.database import SpeciesRecord
+from .thermo.nasa7 import R
+
+
+def formation_uncertainties(records: Sequence[SpeciesRecord], data_set: str = "") -> NDArray[np.float64]:
+    """Standard uncertainty of each species' delta-f H(298.15 K), [J/mol]; an error where the data state none."""
+    missing = [r.name for r in records if r.hf298_uncertainty is None]
+    if missing:
+        where = f"data set {data_set!r}" if data_set else "the species data"
+        raise InputError(f"{where} states no uncertainty of the enthalpy of formation of {', '.join(missing[:5])}"
+                         f"{' ...' if len(missing) > 5 else ''}; pass data='atct-anchored', whose species all "
+                         "carry one, to have uncertainty=True")
+    return np.array([float(r.hf298_uncertainty) for r in records])
+
+
+def input_covariance(u: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Covariance of the formation enthalpies, [(J/mol)^2]: independent inputs."""
+    return np.diag(np.asarray(u, dtype=float) ** 2)
+
+
+def propagated(jacobian: NDArray[np.float64], covariance: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Standard uncertainty of each output, sqrt(diag(J Sigma J^T)), for J of shape (outputs, inputs)."""
+    return np.sqrt(np.maximum(np.einsum("ij,jk,ik->i", jacobian, covariance, jacobian), 0.0))
+
+
+def difference_jacobian(amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]], T: float,
+                        u: NDArray[np.float64]) -> NDArray[np.float64]:
+    """d n / d(delta-f H) by central differences of whole solves, [mol per J/mol].
+
+    ``amounts_at(offsets)`` solves with ``offsets`` added to g0/RT of the
+    system's species and returns every amount in the system's order.  The step
+    of species j is its own uncertainty u_j, so each column is the secant over
+    plus and minus one standard uncertainty; species with u_j = 0 move nothing.
+    """
+    S = u.size
+    jacobian = np.zeros((S, S))
+    for j in np.flatnonzero(u > 0.0):
+        offsets = np.zeros(S)
+        offsets[j] = u[j] / (R * T)
+        jacobian[:, j] = (amounts_at(offsets) - amounts_at(-offsets)) / (2.0 * u[j])
+    return jacobian
+
+
+def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: float, data_set: str = "",
+                       amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
+                       ) -> dict[str, float]:
+    """Standard uncertainty [mol] of every amount of a solved fixed-T,P point, by species name.
+
+    ``amounts_at`` (see :func:`difference_jacobian`) replaces the implicit
+    derivatives, for a gas model whose potentials depend on the composition.
+    NaN everywhere where the present phases fix T (the derivatives do not exist).
+    """
+    from .sensitivity import formation_enthalpy_sensitivities  # sensitivity builds on settle, as this module
+
+    system = setup.system
+    u = formation_uncertainties(system.records, data_set)
+    if amounts_at is None:
+        jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
+    else:
+        jacobian = difference_jacobian(amounts_at, T, u)
+    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, input_covariance(u)))}
