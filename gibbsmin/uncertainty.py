@@ -84,3 +84,20 @@ def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: 
     else:
         jacobian = difference_jacobian(amounts_at, T, u)
     return {name: float(v) for name, v in zip(system.names, propagated(jacobian, input_covariance(u)))}
+
+
+def approach_uncertainty(approach) -> float:
+    """Standard uncertainty [K] of a measured gas's equilibrium temperature (and so of its approach).
+
+    ``approach`` is a ``reactions.Approach`` whose reaction was built on a data
+    set that states uncertainties.  The gas's quotient Q is measured, so only K
+    moves: shifts dH_j of the formation enthalpies move ln K by
+    -sum_j nu_j dH_j / (R T) at every T, and T_eq, where ln K = ln Q, by
+    T_eq sum_j nu_j dH_j / dH_r(T_eq).  NaN where T_eq does not exist.
+    """
+    if not np.isfinite(approach.T_eq):
+        return float("nan")
+    rx = approach.reaction
+    nu = np.array(rx.coefficients, dtype=float)
+    u_dG = float(propagated(nu[None, :], input_covariance(formation_uncertainties(rx.records)))[0])  # J/mol
+    return approach.T_eq * u_dG / abs(rx.enthalpy(approach.T_eq, allow_extrapolation=True))

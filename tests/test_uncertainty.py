@@ -108,3 +108,53 @@ def test_uncertainty_with_an_energy_balance_is_refused_clearly():
 def test_no_uncertainty_unless_asked():
     eq = equilibrate({"H2": 3.0, "N2": 1.0}, T=723.15, P=30e5, data="atct-anchored")
     assert eq.uncertainty is None and "amount_uncertainty_mol" not in eq.to_dict()
+
+
+# ---------------------------------------------------------------- approach temperatures
+
+# An invented reformer outlet and a shift-converter outlet, analysed as measured gases (Q fixed).
+MEASURED = {
+    "reformer": ({"H2": 47.0, "CO": 9.6, "CO2": 5.0, "CH4": 3.4, "H2O": 35.0}, 1123.15, 29.0e5,
+                 ["steam methane reforming", "water-gas shift"]),
+    "shift": ({"H2": 55.0, "CO": 0.6, "CO2": 15.0, "CH4": 0.3, "H2O": 29.0}, 493.15, 28.0e5, ["water-gas shift"]),
+}
+
+
+def _equilibrium_temperatures(rx, ln_Q, T_start, shifts):
+    """T where ln K - sum(nu dH)/(R T) = ln Q, for each draw of shifts dH (rows), by Newton from T_start."""
+    nu = np.array(rx.coefficients)
+    moved = shifts @ nu  # J/mol
+    T = np.full(moved.size, T_start)
+    for _ in range(30):
+        f = rx.ln_K(T, allow_extrapolation=True) - moved / (R * T) - ln_Q
+        slope = rx.enthalpy(T, allow_extrapolation=True) / (R * T**2) + moved / (R * T**2)
+        T = T - f / slope
+    return T
+
+
+@pytest.mark.parametrize("case", sorted(MEASURED))
+def test_approach_uncertainty_matches_monte_carlo(case):
+    from gibbsmin.reactions import approach_temperatures
+    from gibbsmin.uncertainty import approach_uncertainty
+
+    gas, T, P, reactions = MEASURED[case]
+    found = approach_temperatures(gas, T, P, reactions, db=data_set("atct-anchored"))
+    rng = np.random.default_rng(7)
+    for name, approach in found.items():
+        rx = approach.reaction
+        shifts = rng.normal(size=(DRAWS, len(rx.records))) * formation_uncertainties(rx.records)
+        T_eq = _equilibrium_temperatures(rx, approach.ln_Q, approach.T_eq, shifts)
+        assert np.median(T_eq) == pytest.approx(approach.T_eq, abs=0.05)
+        linear = approach_uncertainty(approach)
+        assert linear == pytest.approx(T_eq.std(ddof=1), rel=0.10), (name, linear, T_eq.std(ddof=1))
+        assert 0.01 < linear < 2.0  # tenths of a kelvin, as the formation data's tens of J/mol make it
+
+
+def test_approach_uncertainty_needs_stated_uncertainties():
+    from gibbsmin.reactions import approach_temperatures
+    from gibbsmin.uncertainty import approach_uncertainty
+
+    gas, T, P, reactions = MEASURED["shift"]
+    approach = approach_temperatures(gas, T, P, reactions)["water-gas shift"]
+    with pytest.raises(gibbsmin.InputError, match="states no uncertainty"):
+        approach_uncertainty(approach)
