@@ -8,8 +8,9 @@ dn = J dH, with J = d n / d(delta-f H) from the implicit differentiation of the
 optimality conditions (``sensitivity.formation_enthalpy_sensitivities``) or,
 for a cubic gas whose fugacity coefficients move with the composition, from
 central differences of whole solves.  With the covariance Sigma of the inputs
-(diagonal: each species' value is its own ATcT entry or the default), the
-amounts' standard uncertainties are sqrt(diag(J Sigma J^T)) [mol].
+(diagonal, each species' value being its own ATcT entry or the default, except
+where a phase is tied to another's anchor), the amounts' standard
+uncertainties are sqrt(diag(J Sigma J^T)) [mol].
 """
 
 from __future__ import annotations
@@ -38,9 +39,21 @@ def formation_uncertainties(records: Sequence[SpeciesRecord], data_set: str = ""
     return np.array([float(r.hf298_uncertainty) for r in records])
 
 
-def input_covariance(u: NDArray[np.float64]) -> NDArray[np.float64]:
-    """Covariance of the formation enthalpies, [(J/mol)^2]: independent inputs."""
-    return np.diag(np.asarray(u, dtype=float) ** 2)
+def input_covariance(records: Sequence[SpeciesRecord], data_set: str = "") -> NDArray[np.float64]:
+    """Covariance of the formation enthalpies of records, [(J/mol)^2].
+
+    Independent, except a species tied to another phase's anchor
+    (``hf298_tied_to``): it shares that species' uncertainty in full, so the
+    two covary by the other's variance.
+    """
+    u = formation_uncertainties(records, data_set)
+    covariance = np.diag(u**2)
+    position = {r.name: i for i, r in enumerate(records)}
+    for i, record in enumerate(records):
+        j = position.get(record.hf298_tied_to)
+        if j is not None:
+            covariance[i, j] = covariance[j, i] = u[j] ** 2
+    return covariance
 
 
 def propagated(jacobian: NDArray[np.float64], covariance: NDArray[np.float64]) -> NDArray[np.float64]:
@@ -78,12 +91,12 @@ def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: 
     from .sensitivity import formation_enthalpy_sensitivities  # sensitivity builds on settle, as this module
 
     system = setup.system
-    u = formation_uncertainties(system.records, data_set)
+    covariance = input_covariance(system.records, data_set)
     if amounts_at is None:
         jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
     else:
-        jacobian = difference_jacobian(amounts_at, T, u)
-    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, input_covariance(u)))}
+        jacobian = difference_jacobian(amounts_at, T, np.sqrt(np.diag(covariance)))
+    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}
 
 
 def approach_uncertainty(approach) -> float:
@@ -99,5 +112,5 @@ def approach_uncertainty(approach) -> float:
         return float("nan")
     rx = approach.reaction
     nu = np.array(rx.coefficients, dtype=float)
-    u_dG = float(propagated(nu[None, :], input_covariance(formation_uncertainties(rx.records)))[0])  # J/mol
+    u_dG = float(propagated(nu[None, :], input_covariance(rx.records))[0])  # J/mol
     return approach.T_eq * u_dG / abs(rx.enthalpy(approach.T_eq, allow_extrapolation=True))

@@ -94,6 +94,20 @@ def test_propagation_with_correlated_inputs():
     assert propagated(J, np.outer(u, u))[0] == pytest.approx(7.0)
 
 
+def test_a_tied_phase_covaries_with_its_other_phase():
+    from gibbsmin.uncertainty import input_covariance
+
+    db = data_set("atct-anchored")
+    records = db.resolve(["H2O", "H2O(l)", "H2O(s)"])
+    covariance = input_covariance(records)
+    u_liquid = db["H2O(l)"].hf298_uncertainty
+    assert covariance[1, 2] == covariance[2, 1] == pytest.approx(u_liquid**2)
+    assert covariance[0, 1] == covariance[0, 2] == 0.0
+    assert covariance[2, 2] == pytest.approx(u_liquid**2 + 2000.0**2)
+    # The melting of ice, H2O(s) -> H2O(l), cancels the shared part: only the default is left.
+    assert propagated(np.array([[0.0, 1.0, -1.0]]), covariance)[0] == pytest.approx(2000.0)
+
+
 def test_uncertainty_needs_a_data_set_that_states_it():
     with pytest.raises(gibbsmin.InputError, match="data set 'nasa-1993' states no uncertainty .* data='atct-anchored'"):
         equilibrate({"H2": 3.0, "N2": 1.0}, T=723.15, P=30e5, species=["H2", "N2", "NH3"], uncertainty=True)

@@ -18,7 +18,7 @@ from .nasa7 import R, Nasa7Table
 STATES = ("gas", "liquid", "solid")
 _REQUIRED = ("name", "formula", "state", "hf298", "source", "T_ranges", "low")
 _OPTIONAL = ("aliases", "high", "critical", "nasa_name", "nasa_note",
-             "hf298_uncertainty", "hf298_source", "hf298_shift", "atct_entry")
+             "hf298_uncertainty", "hf298_source", "hf298_shift", "atct_entry", "hf298_tied_to")
 _CRITICAL_KEYS = ("Tc", "Pc", "omega", "source", "CAS")
 
 
@@ -51,6 +51,7 @@ class SpeciesRecord:
     note: str = ""
     hf298_uncertainty: float | None = None  # J/mol, standard uncertainty; None where the data set states none
     hf298_source: str = ""  # source key of hf298 where it differs from the polynomial's (a re-anchored set)
+    hf298_tied_to: str = ""  # the species (another phase) whose anchor shift, and its uncertainty, this one shares
     molar_mass: float = field(init=False)  # g/mol
 
     def __post_init__(self) -> None:
@@ -222,6 +223,7 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         note=str(entry.get("nasa_note", "")),
         hf298_uncertainty=uncertainty,
         hf298_source=str(entry.get("hf298_source", "")),
+        hf298_tied_to=str(entry.get("hf298_tied_to", "")),
     )
     h298 = float(nasa7_table((record,)).h_RT(298.15)[0]) * R * 298.15
     if abs(h298 - record.hf298) > 1.0:
