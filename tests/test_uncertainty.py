@@ -55,6 +55,8 @@ CASES = {
     "ammonia PR": ({"H2": 3.0, "N2": 1.0, "Ar": 0.1}, 723.15, 200e5, ["H2", "N2", "NH3", "Ar"], "peng-robinson"),
     # invented steam reformer outlet, S/C 3, 900 K (where CH4, CO and CO2 all matter), 30 bar
     "reformer": ({"CH4": 1.0, "H2O": 3.0}, 900.0, 30e5, ["CH4", "H2O", "CO", "CO2", "H2"], "ideal"),
+    # invented steam-starved feed that lays down graphite (a present condensed phase), 1000 K, 5 bar
+    "carbon forming": ({"CH4": 1.0, "H2O": 0.5}, 1000.0, 5e5, ["CH4", "H2O", "CO", "CO2", "H2", "C(s)"], "ideal"),
 }
 
 
@@ -65,6 +67,8 @@ def test_linear_uncertainty_matches_monte_carlo(case):
     sampled, mean = _monte_carlo(feed, T, P, species, gas)
     compared = [s for s in species if sampled[s] > 1e-12 * sum(feed.values())]
     assert len(compared) >= 3
+    if "C(s)" in species:
+        assert eq.amounts["C(s)"] > 0.1 and "C(s)" in compared
     for name in compared:
         assert eq.uncertainty[name] == pytest.approx(sampled[name], rel=0.10), (name, eq.uncertainty, sampled)
         # The draws centre on the answer (linear regime: the mean moves by far less than the spread).
