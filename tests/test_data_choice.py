@@ -121,3 +121,11 @@ def test_case_file_with_an_unknown_data_set_says_which_exist():
         parse_case(CASE + 'data = "atct"\n')
     message = str(caught.value)
     assert "data" in message and "'nasa-1993', 'atct-anchored'" in message
+
+
+def test_sweep_of_a_case_takes_its_data_set():
+    from gibbsmin.sweep.command import spec_from_case
+
+    axes = (grid("T", [700.0, 750.0]),)
+    assert spec_from_case(parse_case(CASE + 'data = "atct-anchored"\n'), axes).data == "atct-anchored"
+    assert spec_from_case(parse_case(CASE), axes).data == "nasa-1993"
