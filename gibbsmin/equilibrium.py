@@ -46,6 +46,10 @@ class Equilibrium:
     extras : dict
         Further results by name (duty, approach temperatures, ...) filled in by
         the layers above the core.
+    uncertainty : dict or None
+        Species name to the standard uncertainty of its amount [mol] from the
+        data set's formation-enthalpy uncertainties (``equilibrate(...,
+        uncertainty=True)``; ``gibbsmin.uncertainty``); None when not asked for.
     """
 
     T: float
@@ -60,6 +64,7 @@ class Equilibrium:
     gas_model: str = "ideal"
     omitted: Mapping[str, str] = field(default_factory=dict)
     extras: Mapping[str, object] = field(default_factory=dict)
+    uncertainty: Mapping[str, float] | None = None
 
     @property
     def species(self) -> tuple[str, ...]:
@@ -136,6 +141,8 @@ class Equilibrium:
                 "phase_stability": self.certificate.phase_stability,
             },
             "omitted_species": dict(self.omitted),
+            **({} if self.uncertainty is None else
+               {"amount_uncertainty_mol": {s: (None if np.isnan(v) else v) for s, v in self.uncertainty.items()}}),
             **{k: v for k, v in self.extras.items()},
         }
 

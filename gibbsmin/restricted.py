@@ -49,7 +49,8 @@ from .reactions import Reaction, independent_reactions, reaction
 from .settle import Setup, check_method, checked, prepare, solve_fixed
 from .streams import Stream
 from .system import System
-from .thermo.database import SpeciesDatabase, default_database
+from .thermo.database import SpeciesDatabase
+from .thermo.datasets import choose_database
 from .units import to_kelvin, to_pascal
 
 __all__ = ["equilibrate_with_approach", "reaction_offsets", "settling_temperature"]
@@ -208,6 +209,7 @@ def equilibrate_with_approach(
     T_bounds: tuple[float, float] | None = None,
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
+    data: str | None = None,
 ) -> Equilibrium:
     """Equilibrium with reactions held at a temperature approach and species frozen, at fixed T or adiabatic.
 
@@ -248,6 +250,8 @@ def equilibrate_with_approach(
         its approach from that outlet temperature.
     db : SpeciesDatabase, optional
     allow_extrapolation : bool
+    data : str, optional
+        The thermochemical data set by name, as for :func:`gibbsmin.equilibrate`.
 
     Returns
     -------
@@ -265,7 +269,7 @@ def equilibrate_with_approach(
     """
     from . import energy
 
-    db = db or default_database()
+    db = choose_database(data, db)
     P = to_pascal(P)
     check_method(method)
     if isinstance(feed, Stream):
@@ -355,5 +359,6 @@ def equilibrate_with_approach(
         "settling temperature K": {rx.name: settling_temperature(rx, eq.T, dT) for rx, dT in held},
         "reactions at equilibrium": [r.equation for r in complete if r.name not in {rx.name for rx, _ in held}],
         "frozen mol": dict(frozen_mol),
+        "data_set": db.data_set,
     }
     return with_stability_verdict(dataclasses.replace(eq, extras=extras))

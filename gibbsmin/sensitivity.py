@@ -243,6 +243,34 @@ def equilibrium_sensitivities(setup: Setup, problem: Problem, result: SolverResu
     )
 
 
+def formation_enthalpy_sensitivities(setup: Setup, problem: Problem, result: SolverResult,
+                                     T: float) -> NDArray[np.float64]:
+    """d n_i / d(delta-f H_j) of a solved fixed-T,P point, [mol per J/mol], shape (species, species).
+
+    A shift dH of species j's enthalpy of formation moves its h and g by dH at
+    every T, so mu0_j by dH/(R T): one right-hand-side column per kept gas
+    species and per present condensed species (an absent condensed species
+    moves nothing to first order).  NaN everywhere where the phases fix T.
+    """
+    S, G = len(setup.system.names), problem.n_gas
+    state, K, singular = _fixed_T_system(setup, problem, result)
+    if singular:
+        return np.full((S, S), np.nan)
+    M, C = state.A_g.shape[0], state.A_c.shape[1]
+    m_gas = np.zeros((G, G + C))
+    m_gas[:, :G] = np.eye(G) / (R * T)
+    m_condensed = np.zeros((C, G + C))
+    m_condensed[:, G:] = np.eye(C) / (R * T)
+    rhs = np.vstack([state.A_g @ (state.nu_g[:, None] * m_gas), (state.nu_g @ m_gas)[None, :], m_condensed])
+    dn_gas, dn_cond = _responses(state, K, rhs, m_gas)
+    gas_rows, condensed_rows = problem.keep[:G], problem.keep[G:][state.present]
+    columns = np.concatenate([gas_rows, condensed_rows])
+    full = np.zeros((S, S))
+    full[np.ix_(gas_rows, columns)] = dn_gas
+    full[np.ix_(condensed_rows, columns)] = dn_cond
+    return full
+
+
 #: Relative step of the central differences of :func:`difference_sensitivities`.
 DIFFERENCE_STEP = 1e-4
 

@@ -11,7 +11,7 @@ import math
 import numbers
 import warnings
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import NDArray
@@ -22,6 +22,7 @@ from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .solve import SOLVERS, SolverResult, solve
 from .system import Problem, System, reduce, select_species, standard_mu0
 from .thermo.database import SpeciesDatabase, default_database
+from .thermo.datasets import choose_database
 
 #: Beyond this stationarity residual an uncertified answer is refused rather than returned with a warning.
 _USABLE_STATIONARITY = 1e-4
@@ -213,9 +214,11 @@ def equilibrate(
     gas: str = "ideal",
     kij: str | Mapping[tuple[str, str], float] | InteractionTable | None = "shipped",
     db: SpeciesDatabase | None = None,
+    data: str | None = None,
     allow_extrapolation: bool = False,
     sensitivities: bool = False,
     T_bounds: tuple[float, float] | None = None,
+    uncertainty: bool = False,
 ) -> Equilibrium:
     """Equilibrium of a feed at fixed temperature and pressure, or at the temperature the energy balance sets.
 
@@ -262,6 +265,10 @@ def equilibrate(
         its pairs of the model.  The result's ``extras["binary_interactions"]``
         lists the non-zero ones used.
     db : SpeciesDatabase, optional
+    data : str, optional
+        The thermochemical data set by name (``gibbsmin.thermo.DATA_SETS``):
+        "nasa-1993" (the default) or "atct-anchored"; not with a ``db`` of
+        another set.  The result's ``extras["data_set"]`` names the one used.
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.
     sensitivities : bool
@@ -272,6 +279,11 @@ def equilibrate(
     T_bounds : (float, float), optional
         Lowest and highest outlet temperature the energy balance may give,
         [K]; by default the range where every named gas species has data.
+    uncertainty : bool
+        Fill ``Equilibrium.uncertainty``: the standard uncertainty [mol] of
+        every amount, propagated linearly from the data set's uncertainties of
+        the enthalpies of formation (``gibbsmin.uncertainty``; needs a data set
+        that states them, ``data="atct-anchored"``).  At a fixed T only.
 
     Returns
     -------
@@ -298,7 +310,7 @@ def equilibrate(
         raise InputError("P is required: the pressure in Pa, e.g. P=30e5")
     P = _positive_number(P, "P", "Pa")
     check_method(method)
-    db = db or default_database()
+    db = choose_database(data, db)
     inlet = energy.read_inlet(feed, T_feed, db)
     heat = energy.heat_input_of(heat_input)
     energy_balance = T is None
@@ -309,6 +321,9 @@ def equilibrate(
         raise InputError("T fixes the outlet temperature, so the energy balance cannot also fix it: leave T out "
                          "for an adiabatic reactor (or one with heat_input), or drop adiabatic/heat_input to get "
                          "the duty at T (pass T_feed)")
+    if uncertainty and energy_balance:
+        raise InputError("uncertainty=True is propagated at a fixed outlet temperature; give T (the energy "
+                         "balance's own uncertainty is not computed yet)")
     if energy_balance:
         if not inlet.has_temperatures:
             raise InputError("the energy balance needs the feed temperature: pass T_feed in K (one number, or one "
@@ -342,6 +357,7 @@ def equilibrate(
                                                       allow_extrapolation=allow_extrapolation)
     extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                   residual_enthalpy=None if phase is None else phase.residual_enthalpy)
+    extras["data_set"] = db.data_set
     if phase is not None:
         extras["gas_phase_stability"] = nonideal.stability_checked(phase, eq)
     if sensitivities and phase is not None:
@@ -350,8 +366,23 @@ def equilibrate(
     elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
+    if uncertainty:
+        eq = replace(eq, uncertainty=_amount_uncertainty(setup, problem, result, eq, phase, method,
+                                                         allow_extrapolation, db.data_set))
     # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
     return nonideal.with_stability_verdict(checked(energy.with_extras(eq, extras)))
+
+
+def _amount_uncertainty(setup, problem, result, eq, phase, method, allow_extrapolation, data_set):
+    from . import nonideal, uncertainty
+
+    amounts_at = None
+    if phase is not None:  # phi moves with the composition: differences of whole solves
+        def amounts_at(offsets):
+            moved = nonideal.solve_nonideal(setup, eq.T, eq.P, phase, method=method, offsets=offsets, start=result,
+                                            allow_extrapolation=allow_extrapolation)[0]
+            return np.array([moved.amounts[s] for s in setup.system.names])
+    return uncertainty.amount_uncertainty(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
 
 
 def check_method(method: str) -> None:

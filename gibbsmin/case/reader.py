@@ -10,7 +10,7 @@ from pathlib import Path
 
 from ..errors import InputError, UnknownSpeciesError
 from ..streams import CARBON_BASES, Stream
-from ..thermo import SpeciesDatabase, default_database
+from ..thermo import DATA_SETS, SpeciesDatabase, default_database
 from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal, to_fraction
 from .features import missing
 from .spec import CASE_KEYS, Case, CurveSpec, Feed, ReportSpec, SpeciesSpec, Stage
@@ -288,6 +288,7 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
         name=section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}"),
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
         approach=approach, gas=gas, kij=kij, kij_pairs=kij_pairs, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
+        data=section.get("data", choice(*DATA_SETS), None),
     )
     section.finish(_STAGE_KEYS)
     return stage

@@ -12,7 +12,7 @@ import scipy.optimize
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, UnknownSpeciesError
 from ..settle import equilibrate
-from ..thermo import SpeciesDatabase, default_database
+from ..thermo import SpeciesDatabase, choose_database, default_database
 from .features import FEATURES
 from .spec import Case, CurveSpec, Stage
 from .toml import CaseError
@@ -95,6 +95,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     -------
     CaseResult
     """
+    given = db
     db = db or default_database()
     inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
                   {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
@@ -105,7 +106,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         if stage.T_in is not None:
             inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
         try:
-            eq = _settle_stage(case, stage, inlet, db)
+            eq = _settle_stage(case, stage, inlet, choose_database(stage.data, given))
         except ConvergenceError:
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
@@ -117,7 +118,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     if case.curve is not None:
         if progress is not None:
             progress("equilibrium curve")
-        curve = equilibrium_curve(case, results, db)
+        curve = equilibrium_curve(case, results, choose_database(case.stages[0].data, given))
     return CaseResult(case, tuple(results), curve)
 
 

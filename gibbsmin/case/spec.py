@@ -67,6 +67,8 @@ class Stage:
         The engineer's own k_ij by species pair, over the ``kij`` table.
     method : str
         Solver.
+    data : str or None
+        The thermochemical data set by name; None for the engine's default.
     """
 
     name: str
@@ -81,6 +83,7 @@ class Stage:
     kij: str = "shipped"
     kij_pairs: Mapping[tuple[str, str], float] = field(default_factory=dict)
     method: str = "auto"
+    data: str | None = None
 
     @property
     def interactions(self):
@@ -208,6 +211,8 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "kij_pairs": "with a cubic gas model: your own kij over that table, e.g. [conditions.kij_pairs] "
                      "\"H2 NH3\" = 0.05 (two species names and a value between -1 and 1)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
+        "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
+                "re-anchored to the Active Thermochemical Tables at 298.15 K)",
         "name": "a name for the stage in the report",
     },
     "stage": {"(keys of [conditions])": "[[stage]] tables, one per stage in order, each taking the last outlet"},

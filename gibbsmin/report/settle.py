@@ -307,6 +307,14 @@ def _gas_model_text(eq) -> str:
 MAIN_SPECIES_FRACTION = 1e-3
 
 
+def _data_set_text(result: CaseResult) -> str:
+    """The data set(s) the stages used, each with what it is."""
+    from ..thermo import DATA_SETS
+
+    names = dict.fromkeys(str(s.equilibrium.extras.get("data_set", "")) for s in result.stages)
+    return "; ".join(f"{n}: {DATA_SETS[n].description}" if n in DATA_SETS else n for n in names)
+
+
 def _pair_species(pair: str, y) -> tuple[str, str]:
     # Names may hold '-' themselves (C4H8-1): split where both halves are species of the answer.
     for i, char in enumerate(pair):
@@ -320,6 +328,7 @@ def settle_report(result: CaseResult) -> Report:
     case, spec = result.case, result.case.report
     first = result.stages[0].equilibrium
     facts = [("case file", case.source), ("gas model", _gas_model_text(first)),
+             ("thermochemical data", _data_set_text(result)),
              ("amounts", "flows; the feed's flows are taken as amounts per second")]
     for stage in result.stages:
         stability = stage.equilibrium.extras.get("gas_phase_stability")

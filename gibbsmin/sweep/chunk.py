@@ -14,7 +14,7 @@ import pandas as pd
 
 from ..settle import Setup, build_problem, prepare
 from ..solve import solve
-from ..thermo.database import default_database
+from ..thermo.datasets import data_set
 from .grid import SweepSpec
 
 #: Columns every sweep table has besides the axes and the species.
@@ -45,7 +45,7 @@ def _setup(spec_json: str) -> Setup:
     names = spec.feed_species()
     # Unit amounts only fix the species set and element rows; each point brings its own totals.
     return prepare({n: 1.0 for n in names}, species=spec.species, exclude=spec.exclude, inert=spec.inert,
-                   T_span=spec.T_span())
+                   T_span=spec.T_span(), db=data_set(spec.data))
 
 
 def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
@@ -56,7 +56,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     any point Newton cannot certify), marked by its ``solver``; a point no
     solver certifies keeps ``certified = False``.  No point is dropped.
     """
-    db = default_database()
+    db = data_set(spec.data)
     setup = _setup(spec.to_json())
     system = setup.system
     T, P, feed, shown = spec.conditions(first, last, db)

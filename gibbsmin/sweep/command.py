@@ -55,7 +55,8 @@ def spec_from_case(case, axes) -> SweepSpec:
     return SweepSpec(feed=case.mixed_feed(), T=stage.T, P=stage.P, axes=tuple(axes),
                      species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
                      method=stage.method, gas=stage.gas, kij=stage.kij,
-                     kij_pairs=tuple((a, b, v) for (a, b), v in stage.kij_pairs.items()))
+                     kij_pairs=tuple((a, b, v) for (a, b), v in stage.kij_pairs.items()),
+                     **({} if stage.data is None else {"data": stage.data}))
 
 
 def run(args: argparse.Namespace) -> int:

@@ -21,6 +21,7 @@ from numpy.typing import NDArray
 from ..errors import InputError
 from ..streams import CARBON_BASES, counted_carbon
 from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.datasets import DEFAULT_DATA, check_data_name
 
 #: Axis names with a meaning of their own; any other name is a feed species.
 SPECIAL_AXES = ("T", "P", "S/C")
@@ -85,6 +86,8 @@ class SweepSpec:
         With a cubic: "shipped" (the published table, default) or "none".
     kij_pairs : tuple of (str, str, float)
         The engineer's own k_ij over that table.
+    data : str
+        The thermochemical data set by name (``gibbsmin.thermo.DATA_SETS``).
     """
 
     feed: Mapping[str, float]
@@ -99,6 +102,7 @@ class SweepSpec:
     gas: str = "ideal"
     kij: str = "shipped"
     kij_pairs: tuple[tuple[str, str, float], ...] = ()
+    data: str = DEFAULT_DATA
     _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -117,6 +121,7 @@ class SweepSpec:
         from ..eos import canonical_model_name
 
         object.__setattr__(self, "gas", canonical_model_name(self.gas))
+        check_data_name(self.data)
         if self.kij not in ("shipped", "none"):
             raise InputError(f"a sweep's kij is 'shipped' or 'none', not {self.kij!r}")
         object.__setattr__(self, "_shape", tuple(len(a.values) for a in self.axes))
@@ -186,6 +191,8 @@ class SweepSpec:
             data.update(gas=self.gas, kij=self.kij)
             if self.kij_pairs:
                 data["kij_pairs"] = [list(p) for p in self.kij_pairs]
+        if self.data != DEFAULT_DATA:  # likewise: the default set keeps the old fingerprints
+            data["data"] = self.data
         return json.dumps(data, sort_keys=True)
 
     @classmethod
@@ -199,6 +206,7 @@ class SweepSpec:
             carbon_basis=data["carbon_basis"], method=data["method"],
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
             kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
+            data=data.get("data", DEFAULT_DATA),
         )
 
     def fingerprint(self) -> str:

@@ -9,3 +9,7 @@ from .formation import FormationProperties as FormationProperties
 from .formation import formation_properties as formation_properties
 from .nasa7 import R as R
 from .nasa7 import Nasa7Table as Nasa7Table
+from .datasets import DATA_SETS as DATA_SETS
+from .datasets import DEFAULT_DATA as DEFAULT_DATA
+from .datasets import choose_database as choose_database
+from .datasets import data_set as data_set

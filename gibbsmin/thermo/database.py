@@ -17,7 +17,8 @@ from .nasa7 import R, Nasa7Table
 
 STATES = ("gas", "liquid", "solid")
 _REQUIRED = ("name", "formula", "state", "hf298", "source", "T_ranges", "low")
-_OPTIONAL = ("aliases", "high", "critical", "nasa_name", "nasa_note")
+_OPTIONAL = ("aliases", "high", "critical", "nasa_name", "nasa_note",
+             "hf298_uncertainty", "hf298_source", "hf298_shift", "atct_entry", "hf298_tied_to")
 _CRITICAL_KEYS = ("Tc", "Pc", "omega", "source", "CAS")
 
 
@@ -48,6 +49,9 @@ class SpeciesRecord:
     aliases: tuple[str, ...] = ()
     critical: CriticalConstants | None = None
     note: str = ""
+    hf298_uncertainty: float | None = None  # J/mol, standard uncertainty; None where the data set states none
+    hf298_source: str = ""  # source key of hf298 where it differs from the polynomial's (a re-anchored set)
+    hf298_tied_to: str = ""  # the species (another phase) whose anchor shift, and its uncertainty, this one shares
     molar_mass: float = field(init=False)  # g/mol
 
     def __post_init__(self) -> None:
@@ -69,8 +73,10 @@ class SpeciesRecord:
 class SpeciesDatabase:
     """An ordered, immutable collection of species records with name and alias look-up."""
 
-    def __init__(self, records: Iterable[SpeciesRecord]):
+    def __init__(self, records: Iterable[SpeciesRecord], data_set: str = ""):
         self._records = tuple(records)
+        #: The name of the data set the records come from (``thermo.data_sets``), for reports.
+        self.data_set = data_set
         self._by_name: dict[str, int] = {}
         self._by_alias: dict[str, int] = {}
         for i, record in enumerate(self._records):
@@ -196,6 +202,11 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         raise DataError(f"{context}: NASA 7-coefficient sets must have 7 values each")
     if (len(T_ranges) == 3) != ("high" in entry):
         raise DataError(f"{context}: three T_ranges need a 'high' set, two need none")
+    uncertainty = entry.get("hf298_uncertainty")
+    if uncertainty is not None:
+        if isinstance(uncertainty, bool) or not isinstance(uncertainty, (int, float)) or not uncertainty >= 0.0:
+            raise DataError(f"{context}: hf298_uncertainty must be a number >= 0 in J/mol, got {uncertainty!r}")
+        uncertainty = float(uncertainty)
     critical = None
     if "critical" in entry:
         crit = entry["critical"]
@@ -223,6 +234,9 @@ def _record_from_entry(entry: Mapping[str, object], where: str) -> SpeciesRecord
         aliases=tuple(aliases),
         critical=critical,
         note=str(entry.get("nasa_note", "")),
+        hf298_uncertainty=uncertainty,
+        hf298_source=str(entry.get("hf298_source", "")),
+        hf298_tied_to=str(entry.get("hf298_tied_to", "")),
     )
     h298 = float(nasa7_table((record,)).h_RT(298.15)[0]) * R * 298.15
     if abs(h298 - record.hf298) > 1.0:
@@ -242,8 +256,15 @@ def species_directory() -> Path:
     return package.parent / "species"
 
 
-def load_database(directory: str | os.PathLike[str] | None = None) -> SpeciesDatabase:
-    """Read every ``*.toml`` file of a species directory into a database."""
+def load_database(directory: str | os.PathLike[str] | None = None, data_set: str | None = None) -> SpeciesDatabase:
+    """Read every ``*.toml`` file of a species directory into a database.
+
+    ``data_set`` names it in reports; by default "nasa-1993" for the shipped
+    folder and the folder's name otherwise.
+    """
+    if data_set is None:
+        data_set = "nasa-1993" if directory is None and not os.environ.get("GIBBSMIN_SPECIES") else \
+            f"files in {Path(directory) if directory is not None else species_directory()}"
     directory = Path(directory) if directory is not None else species_directory()
     files = sorted(directory.glob("*.toml"))
     if not files:
@@ -256,7 +277,7 @@ def load_database(directory: str | os.PathLike[str] | None = None) -> SpeciesDat
             raise DataError(f"{path.name}: {exc}") from None
         for entry in document.get("species", []):
             records.append(_record_from_entry(entry, path.name))
-    return SpeciesDatabase(records)
+    return SpeciesDatabase(records, data_set=data_set)
 
 
 @functools.lru_cache(maxsize=1)

@@ -1,0 +1,68 @@
+"""The thermochemical data sets to choose from, by name: the one place that says which g0 is used.
+
+Every entry point that takes ``data="..."`` (``equilibrate``, the restricted
+solve, sweeps, case files) turns it into a ``SpeciesDatabase`` here; the
+database then feeds the System, whose polynomials give g0.
+"""
+
+from __future__ import annotations
+
+import functools
+import os
+from dataclasses import dataclass
+
+from ..errors import InputError
+from .database import SpeciesDatabase, default_database, load_database, species_directory
+
+
+@dataclass(frozen=True)
+class DataSet:
+    """A named data set: its folder under the species directory ("" for the top) and what it is."""
+
+    name: str
+    folder: str
+    description: str
+
+
+DATA_SETS: dict[str, DataSet] = {
+    d.name: d
+    for d in (
+        DataSet("nasa-1993", "",
+                "NASA TM-4513 polynomials (McBride, Gordon and Reno 1993), as shipped; no uncertainties"),
+        DataSet("atct-anchored", "atct-anchored",
+                "NASA TM-4513 polynomials re-anchored to ATcT 1.112 delta-f H at 298.15 K, with uncertainties"),
+    )
+}
+
+#: The data set used when none is named.
+DEFAULT_DATA = "nasa-1993"
+
+
+def check_data_name(data: object) -> str:
+    """A known data-set name, or a clear error listing them."""
+    if not isinstance(data, str) or data not in DATA_SETS:
+        raise InputError(f"unknown data set {data!r}; choose one of {', '.join(DATA_SETS)}")
+    return data
+
+
+@functools.lru_cache(maxsize=None)
+def _load(name: str, directory: str, override: str) -> SpeciesDatabase:
+    if name == DEFAULT_DATA and not override:
+        return default_database()
+    folder = os.path.join(directory, DATA_SETS[name].folder)
+    return load_database(folder, data_set=name if not override else f"{name} (files in {folder})")
+
+
+def data_set(data: str | None = None) -> SpeciesDatabase:
+    """The database of a named data set (loaded once per process)."""
+    name = check_data_name(DEFAULT_DATA if data is None else data)
+    return _load(name, str(species_directory()), os.environ.get("GIBBSMIN_SPECIES", ""))
+
+
+def choose_database(data: str | None, db: SpeciesDatabase | None) -> SpeciesDatabase:
+    """The database of ``data=``, or ``db`` as given; naming both is an error unless they agree."""
+    if db is None:
+        return data_set(data)
+    if data is not None and check_data_name(data) != db.data_set:
+        raise InputError(f"data={data!r} and db= (data set {db.data_set!r}) disagree; pass one of them")
+    return db

@@ -1,0 +1,116 @@
+"""How far an answer can be trusted: the standard uncertainty of each amount from the formation data.
+
+The inputs are the per-species standard uncertainties of delta-f H(298.15 K)
+that a data set states (``SpeciesRecord.hf298_uncertainty``; the set
+"atct-anchored" has them).  A shift dH_j of species j's enthalpy of formation
+moves its g0 by dH_j at every temperature; the amounts respond linearly,
+dn = J dH, with J = d n / d(delta-f H) from the implicit differentiation of the
+optimality conditions (``sensitivity.formation_enthalpy_sensitivities``) or,
+for a cubic gas whose fugacity coefficients move with the composition, from
+central differences of whole solves.  With the covariance Sigma of the inputs
+(diagonal, each species' value being its own ATcT entry or the default, except
+where a phase is tied to another's anchor), the amounts' standard
+uncertainties are sqrt(diag(J Sigma J^T)) [mol].
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .errors import InputError
+from .settle import Setup
+from .solve import SolverResult
+from .system import Problem
+from .thermo.database import SpeciesRecord
+from .thermo.nasa7 import R
+
+
+def formation_uncertainties(records: Sequence[SpeciesRecord], data_set: str = "") -> NDArray[np.float64]:
+    """Standard uncertainty of each species' delta-f H(298.15 K), [J/mol]; an error where the data state none."""
+    missing = [r.name for r in records if r.hf298_uncertainty is None]
+    if missing:
+        where = f"data set {data_set!r}" if data_set else "the species data"
+        raise InputError(f"{where} states no uncertainty of the enthalpy of formation of {', '.join(missing[:5])}"
+                         f"{' ...' if len(missing) > 5 else ''}; pass data='atct-anchored', whose species all "
+                         "carry one, to have uncertainty=True")
+    return np.array([float(r.hf298_uncertainty) for r in records])
+
+
+def input_covariance(records: Sequence[SpeciesRecord], data_set: str = "") -> NDArray[np.float64]:
+    """Covariance of the formation enthalpies of records, [(J/mol)^2].
+
+    Independent, except a species tied to another phase's anchor
+    (``hf298_tied_to``): it shares that species' uncertainty in full, so the
+    two covary by the other's variance.
+    """
+    u = formation_uncertainties(records, data_set)
+    covariance = np.diag(u**2)
+    position = {r.name: i for i, r in enumerate(records)}
+    for i, record in enumerate(records):
+        j = position.get(record.hf298_tied_to)
+        if j is not None:
+            covariance[i, j] = covariance[j, i] = u[j] ** 2
+    return covariance
+
+
+def propagated(jacobian: NDArray[np.float64], covariance: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Standard uncertainty of each output, sqrt(diag(J Sigma J^T)), for J of shape (outputs, inputs)."""
+    return np.sqrt(np.maximum(np.einsum("ij,jk,ik->i", jacobian, covariance, jacobian), 0.0))
+
+
+def difference_jacobian(amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]], T: float,
+                        u: NDArray[np.float64]) -> NDArray[np.float64]:
+    """d n / d(delta-f H) by central differences of whole solves, [mol per J/mol].
+
+    ``amounts_at(offsets)`` solves with ``offsets`` added to g0/RT of the
+    system's species and returns every amount in the system's order.  The step
+    of species j is its own uncertainty u_j, so each column is the secant over
+    plus and minus one standard uncertainty; species with u_j = 0 move nothing.
+    """
+    S = u.size
+    jacobian = np.zeros((S, S))
+    for j in np.flatnonzero(u > 0.0):
+        offsets = np.zeros(S)
+        offsets[j] = u[j] / (R * T)
+        jacobian[:, j] = (amounts_at(offsets) - amounts_at(-offsets)) / (2.0 * u[j])
+    return jacobian
+
+
+def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: float, data_set: str = "",
+                       amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
+                       ) -> dict[str, float]:
+    """Standard uncertainty [mol] of every amount of a solved fixed-T,P point, by species name.
+
+    ``amounts_at`` (see :func:`difference_jacobian`) replaces the implicit
+    derivatives, for a gas model whose potentials depend on the composition.
+    NaN everywhere where the present phases fix T (the derivatives do not exist).
+    """
+    from .sensitivity import formation_enthalpy_sensitivities  # sensitivity builds on settle, as this module
+
+    system = setup.system
+    covariance = input_covariance(system.records, data_set)
+    if amounts_at is None:
+        jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
+    else:
+        jacobian = difference_jacobian(amounts_at, T, np.sqrt(np.diag(covariance)))
+    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}
+
+
+def approach_uncertainty(approach) -> float:
+    """Standard uncertainty [K] of a measured gas's equilibrium temperature (and so of its approach).
+
+    ``approach`` is a ``reactions.Approach`` whose reaction was built on a data
+    set that states uncertainties.  The gas's quotient Q is measured, so only K
+    moves: shifts dH_j of the formation enthalpies move ln K by
+    -sum_j nu_j dH_j / (R T) at every T, and T_eq, where ln K = ln Q, by
+    T_eq sum_j nu_j dH_j / dH_r(T_eq).  NaN where T_eq does not exist.
+    """
+    if not np.isfinite(approach.T_eq):
+        return float("nan")
+    rx = approach.reaction
+    nu = np.array(rx.coefficients, dtype=float)
+    u_dG = float(propagated(nu[None, :], input_covariance(rx.records))[0])  # J/mol
+    return approach.T_eq * u_dG / abs(rx.enthalpy(approach.T_eq, allow_extrapolation=True))
