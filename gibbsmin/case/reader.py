@@ -270,7 +270,7 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     P = section.get("P", read_pressure, hint="e.g. P = '30 bar(g)'")
     if "heat_loss" in section and "heat_input" in section:
         raise section.error("heat_loss", "give heat_loss or heat_input, not both")
-    heat = section.get("heat_input", read_power, 0.0) - section.get("heat_loss", read_power, 0.0)
+    heat = section.get("heat_input", read_power, 0.0) - section.get("heat_loss", read_heat_loss, 0.0)
     if not adiabatic:
         for key in ("heat_input", "heat_loss"):
             if key in section:
@@ -317,6 +317,16 @@ def _read_kij_pairs(section: Section) -> dict[tuple[str, str], float]:
             raise table.error(key, "names one species twice; k_ii is zero by definition")
         pairs[(records[0].name, records[1].name)] = value
     return pairs
+
+
+def read_heat_loss(value: object) -> float:
+    """A heat loss, [W]: heat leaving the stage, so zero or positive; a negative one would silently be a gain."""
+    loss = read_power(value)
+    if loss < 0.0:
+        size = str(value).strip().removeprefix("-").strip()
+        raise InputError(f"{value!r} is negative, but a loss is heat leaving the stage; write heat_loss = "
+                         f"'{size}' for a loss, or heat_input = '{size}' if the stage gains heat")
+    return loss
 
 
 def read_kij_value(value: object) -> float:

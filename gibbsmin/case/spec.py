@@ -195,11 +195,12 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "<name>": "sub-tables [feed.<name>] with the keys above: several feeds, mixed at the inlet",
     },
     "conditions": {
-        "T": "outlet temperature, e.g. '850 degC' (not with adiabatic)",
+        "T": "outlet temperature with its unit, e.g. '850 degC' or '1123.15 K' (not with adiabatic; a bare "
+             "number is refused)",
         "P": "pressure, e.g. '30 bar(g)', '31 bar', '450 psia'",
         "adiabatic": "true: the outlet temperature follows from the energy balance",
-        "heat_loss": "with adiabatic: heat lost, e.g. '0.5 MW'",
-        "heat_input": "with adiabatic: heat added, e.g. '85 MW'",
+        "heat_loss": "with adiabatic: heat lost, e.g. '0.5 MW' (zero or positive; a gain is a heat_input)",
+        "heat_input": "with adiabatic: heat added, e.g. '85 MW' (negative: removed)",
         "T_in": "stages after the first: temperature the previous outlet is cooled or heated to",
         "approach": "table of reaction = temperature approach, e.g. \"steam methane reforming\" = '10 K' "
                     "(positive: short of equilibrium)",
