@@ -67,6 +67,17 @@ class Stage:
         The engineer's own k_ij by species pair, over the ``kij`` table.
     method : str
         Solver.
+    type : str
+        "reactor" (reacts to equilibrium, or as ``service`` / ``reactions`` allow), "heater" and
+        "cooler" (composition unchanged), "knock-out" (only water condenses; the liquid is drawn off).
+    service : str or None
+        A reactor's service (:data:`gibbsmin.case.services.SERVICES`), which sets its reactions.
+    reactions : tuple of str or None
+        Reactions that may proceed (None: every reaction of the species set).
+    frozen : tuple of str
+        Species held at their inlet flow in this stage (besides the case's frozen species).
+    duty : float or None
+        Heat added to a heater, cooler or knock-out instead of its outlet T, [W] (negative: removed).
     """
 
     name: str
@@ -81,6 +92,16 @@ class Stage:
     kij: str = "shipped"
     kij_pairs: Mapping[tuple[str, str], float] = field(default_factory=dict)
     method: str = "auto"
+    type: str = "reactor"
+    service: str | None = None
+    reactions: tuple[str, ...] | None = None
+    frozen: tuple[str, ...] = ()
+    duty: float | None = None
+
+    @property
+    def reacts(self) -> bool:
+        """Whether the stage is a reactor (heaters, coolers and knock-outs keep every species' amount)."""
+        return self.type == "reactor"
 
     @property
     def interactions(self):
@@ -210,6 +231,18 @@ CASE_KEYS: dict[str, dict[str, str]] = {
                      "\"H2 NH3\" = 0.05 (two species names and a value between -1 and 1)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
         "name": "a name for the stage in the report",
+        "type": "what the stage is: 'reactor' (default; settles to equilibrium as its reactions allow), "
+                "'heater' or 'cooler' (composition unchanged; T or duty), 'knock-out' (cooled to T: only water "
+                "condenses, with an ideal gas; the liquid is drawn off and the next stage takes the vapour)",
+        "service": "a reactor's service, which sets the reactions allowed and so the species set: 'HT shift', "
+                   "'LT shift', 'methanation', 'ammonia synthesis', 'methanol synthesis' (the report states "
+                   "the set; not with reactions)",
+        "reactions": "reactions that may proceed in this reactor, e.g. ['water-gas shift']; every other "
+                     "species keeps its inlet flow, no other species forms (default: every reaction of the "
+                     "species set)",
+        "frozen": "species held at their inlet flow in this stage, e.g. ['CH4'] (besides [species] frozen)",
+        "duty": "a heater, cooler or knock-out: heat added instead of the outlet T, e.g. '-12.5 MW' "
+                "(negative: removed)",
     },
     "stage": {"(keys of [conditions])": "[[stage]] tables, one per stage in order, each taking the last outlet"},
     "species": {

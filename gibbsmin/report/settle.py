@@ -117,6 +117,26 @@ def stages_table(result: CaseResult) -> Table:
                  tuple(rows), tuple(notes), key="stages")
 
 
+# --- what each stage let change (case stage types and services) ---------------------------------------
+
+
+def scope_table(result: CaseResult) -> Table | None:
+    """Per stage: its type, the reactions it allowed, the species it held, and on what basis; None when every
+    stage is a full equilibrium over the case's species set."""
+    scopes = [(s.stage.name, s.scope) for s in result.stages if s.scope is not None]
+    if not any(scope.restricted for _, scope in scopes):
+        return None
+    rows = tuple((name, scope.type, scope.changes, ", ".join(scope.held) or "-") for name, scope in scopes)
+    notes = tuple(f"{name}: {scope.basis}" for name, scope in scopes)
+    return Table("What each stage lets react", (Column("stage", "text"), Column("type", "text"),
+                                                Column("reactions allowed", "text"),
+                                                Column("held at inlet flow", "longtext")), rows, notes, key="scope")
+
+
+def _optional(table: Table | None) -> list[Table]:
+    return [] if table is None else [table]
+
+
 def certificate_table(result: CaseResult) -> Table:
     rows = []
     for stage in result.stages:
@@ -317,7 +337,8 @@ def settle_report(result: CaseResult) -> Report:
         except ValueError:
             pass  # no hydrocarbon carbon: S/C says nothing
         facts.append((f"feed {feed.name}", text))
-    tables = [feed_table(result), stages_table(result), *(stage_table(s, spec) for s in result.stages)]
+    tables = [feed_table(result), stages_table(result), *_optional(scope_table(result)),
+              *(stage_table(s, spec) for s in result.stages)]
     optional = [
         approach_table(result) if FEATURES["reactions"].available() else None,
         kp_table(result) if FEATURES["reactions"].available() else None,
