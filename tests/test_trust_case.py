@@ -357,3 +357,20 @@ def test_cooler_with_a_duty_finds_its_outlet_temperature_by_cantera_enthalpies()
     removed = cantera_enthalpy(dict(cold.amounts), cold.T, cold.P) - cantera_enthalpy(dict(hot.amounts), hot.T, cold.P)
     assert removed == pytest.approx(-20e6, rel=1e-6)
     assert result.stages[1].duty_W == pytest.approx(-20e6, rel=1e-12)
+
+
+# --- total with basis = "dry" ------------------------------------------------------------------------
+
+
+def test_total_with_a_dry_basis_is_the_dry_gas_flow_and_steam_comes_on_top():
+    from gibbsmin.case import read_case
+
+    natural_gas = read_case(EXAMPLES / "reformer.toml").feeds[0].stream.feed_mol()
+    dry = sum(n for s, n in natural_gas.items() if s != "H2O")
+    assert dry == pytest.approx(1450 * KMOL_H, rel=1e-12)  # total = "1450 kmol/h" with basis = "dry"
+    carbon = natural_gas["CH4"] + 2 * natural_gas["C2H6"] + 3 * natural_gas["C3H8"]  # hydrocarbon carbon
+    assert natural_gas["H2O"] == pytest.approx(3.0 * carbon, rel=1e-12)  # steam_to_carbon = 3.0 on top
+    # With water_content the total is the wet flow, of which that share is water.
+    wet = parse_case('[feed]\nunit = "mol%"\nbasis = "dry"\ntotal = "100 kmol/h"\nwater_content = "20 mol%"\n'
+                     'CH4 = 100.0\n[conditions]\nT = "850 degC"\nP = "30 bar(g)"\n').mixed_feed()
+    assert sum(wet.values()) == pytest.approx(100 * KMOL_H, rel=1e-12) and wet["H2O"] == pytest.approx(20 * KMOL_H)

@@ -204,9 +204,11 @@ CASE_KEYS: dict[str, dict[str, str]] = {
                 "(mol%, fraction, ppmv)",
         "<species>": "flow or composition of a species, e.g. CH4 = 950.0, or with its own unit: "
                      "H2O = \"52 t/h\"",
-        "total": "total flow when the species are a composition, e.g. '25000 Nm3/h'",
+        "total": "total flow when the species are a composition, e.g. '25000 Nm3/h'; with basis = 'dry' the "
+                 "dry gas flow (steam from steam_to_carbon or steam_rate comes on top), with water_content the "
+                 "wet flow including that water",
         "basis": "'wet' (default) or 'dry': a dry analysis leaves water out",
-        "water_content": "with basis = 'dry': water in the wet stream, e.g. '2 mol%'",
+        "water_content": "with basis = 'dry': water in the wet stream, e.g. '2 mol%' (total is then the wet flow)",
         "normalize": "true to scale a composition that does not sum to 100 %",
         "steam_to_carbon": "add steam up to this S/C ratio [mol H2O per mol C]",
         "steam_rate": "add this much steam, e.g. '52 t/h'",
@@ -233,7 +235,7 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "name": "a name for the stage in the report",
         "type": "what the stage is: 'reactor' (default; settles to equilibrium as its reactions allow), "
                 "'heater' or 'cooler' (composition unchanged; T or duty), 'knock-out' (cooled to T: only water "
-                "condenses, with an ideal gas; the liquid is drawn off and the next stage takes the vapour)",
+                "condenses, as pure liquid; the liquid is drawn off and the next stage takes the vapour)",
         "service": "a reactor's service, which sets the reactions allowed and so the species set: 'HT shift', "
                    "'LT shift', 'methanation', 'ammonia synthesis', 'methanol synthesis' (the report states "
                    "the set; not with reactions)",
