@@ -334,7 +334,8 @@ def _unit_required(value: object, what: str, fix: str) -> None:
     else:
         return
     shown = f"{number:g}" if isinstance(number, float) and math.isfinite(number) else repr(number)
-    raise InputError(f"{what} {value!r} has no unit; {fix.format(shown)}")
+    raise InputError(f"{what} {value.strip() if isinstance(value, str) else value!r} has no unit; "
+                     f"{fix.format(shown)}")
 
 
 def parse_temperature(value: str | pint.Quantity | float) -> float:

@@ -374,3 +374,12 @@ def test_total_with_a_dry_basis_is_the_dry_gas_flow_and_steam_comes_on_top():
     wet = parse_case('[feed]\nunit = "mol%"\nbasis = "dry"\ntotal = "100 kmol/h"\nwater_content = "20 mol%"\n'
                      'CH4 = 100.0\n[conditions]\nT = "850 degC"\nP = "30 bar(g)"\n').mixed_feed()
     assert sum(wet.values()) == pytest.approx(100 * KMOL_H, rel=1e-12) and wet["H2O"] == pytest.approx(20 * KMOL_H)
+
+
+def test_a_sweep_refuses_a_first_stage_it_would_settle_as_a_full_equilibrium(tmp_path, monkeypatch, capsys):
+    text = SHIFT_GAS + '[[stage]]\nservice = "HT shift"\nT = "400 degC"\nP = "28 bar(g)"\n'
+    (tmp_path / "case.toml").write_text(text)
+    monkeypatch.chdir(tmp_path)
+    code = main(["sweep", "case.toml", "--vary", "T=350:450:50degC"])
+    err = capsys.readouterr().err
+    assert code == 2 and "service" in err and len(err.strip().splitlines()) == 1
