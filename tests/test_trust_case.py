@@ -174,7 +174,8 @@ def test_shift_train_example_each_stage_as_its_type_and_service_allow(capsys):
     # ... adiabatic with its 0.3 MW loss: Cantera's enthalpies close the balance (to 1e-6 of the 15 MW cooler duty).
     H_in = cantera_enthalpy(feed, 355 + 273.15, ht["P_Pa"])
     assert cantera_enthalpy(out, ht["T_K"], ht["P_Pa"]) - H_in == pytest.approx(-0.3e6, abs=20.0)
-    # Before stages had services, this stage made methane and ran to about 700 degC (full equilibrium).
+    # Before stages had types and services this train ran to 722 degC making 589 kmol/h CH4, its cooler made
+    # 1174 kmol/h CH4 and its knock-out 200 kmol/h graphite (full equilibrium in every stage).
     assert 400 + 273.15 < ht["T_K"] < 450 + 273.15
     # Cooler: composition exactly as it came, duty = Cantera's enthalpy change of that gas.
     assert present(amounts(cooler)) == pytest.approx(present(out), rel=1e-12)
@@ -224,7 +225,7 @@ def test_ht_shift_with_graphite_in_the_species_list_makes_no_graphite(key):
     feed = result.case.mixed_feed()
     reference = cantera_tp(feed, eq.T, eq.P, ["CO", "H2O", "CO2", "H2"])
     assert eq.amounts["CO"] == pytest.approx(reference["CO"], rel=1e-7)
-    assert eq.T - 273.15 == pytest.approx(432.5, abs=0.5)  # was 641 to 731 degC with graphite or methane formed
+    assert eq.T < 450 + 273.15  # full equilibrium ran to 731 degC, 474 kmol/h CH4 formed
     H_in = cantera_enthalpy(feed, 360 + 273.15, eq.P)
     cp = 40.0 * sum(feed.values())  # J/(s K), a generous bound of the gas's heat capacity (about 35 J/(mol K))
     assert abs(cantera_enthalpy(dict(eq.amounts), eq.T, eq.P) - H_in) / cp < 0.01  # K
@@ -246,10 +247,16 @@ def test_methanol_final_cooler_keeps_methanol_and_co2_and_refuses_condensation()
         assert converter.amounts[s] == pytest.approx(n, rel=1e-7), s
     assert present(cooler.amounts) == pytest.approx(present(converter.amounts), rel=1e-12)
     # Before, this stage re-equilibrated at its T: 16.8 mol% methanol or more, and the CO2 gone.
-    assert 100 * cooler.mole_fractions["CH3OH"] == pytest.approx(9.53, abs=0.01)
+    assert cooler.amounts["CO2"] == pytest.approx(converter.amounts["CO2"], rel=1e-12)
     cold = warm.replace('T = "150 degC"', 'T = "40 degC"')
-    with pytest.raises(CaseError, match=r"water condenses at this cooler's outlet \(129\.8 kmol/h.*type = 'knock-out'"):
+    with pytest.raises(CaseError, match=r"water condenses at this cooler's outlet .*type = 'knock-out'") as caught:
         settle_case(parse_case(cold))
+    # The liquid named: all water above the vapour pressure at 40 degC, 78 bar (IAPWS-95 through CoolProp).
+    y_saturated = PropsSI("P", "T", 313.15, "Q", 0, "Water") / 78e5
+    dry = sum(n for s, n in converter.amounts.items() if s != "H2O")
+    liquid = (converter.amounts["H2O"] - y_saturated * dry / (1 - y_saturated)) / KMOL_H
+    shown = float(str(caught.value).split("outlet (")[1].split(" kmol/h")[0])
+    assert shown == pytest.approx(liquid, rel=0.01)
 
 
 def test_knock_out_at_40_degC_turns_nothing_into_graphite_and_passes_on_its_vapour():
