@@ -301,9 +301,14 @@ def test_stage_frozen_holds_a_species_in_a_full_equilibrium_stage():
 
     text = ('[feed]\nunit = "kmol/h"\nCH4 = 100.0\nH2O = 300.0\nC2H6 = 5.0\n[species]\nexclude = ["C(s)"]\n'
             '[[stage]]\nT = "700 degC"\nP = "30 bar"\nfrozen = ["C2H6"]\n')
-    eq = settle_case(parse_case(text)).outlet
+    result = settle_case(parse_case(text))
+    eq = result.outlet
     assert eq.amounts["C2H6"] == pytest.approx(5 * KMOL_H, rel=1e-12)
     assert eq.amounts["CH4"] < 100 * KMOL_H  # the rest reforms
+    from gibbsmin.report.settle import settle_report
+    from gibbsmin.report.text import render_text
+
+    assert "outlet: the case's species set; held in this stage: C2H6" in render_text(settle_report(result))
 
 
 @pytest.mark.parametrize("stage, words", [

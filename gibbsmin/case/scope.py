@@ -57,11 +57,12 @@ class StageScope:
     reactions: tuple[str, ...] | None = None
     practice: str = ""
     service: str | None = None
+    frozen_here: tuple[str, ...] = ()
 
     @property
     def restricted(self) -> bool:
-        """Whether the stage is anything but a full equilibrium over the case's species set."""
-        return self.type != "reactor" or self.reactions is not None
+        """Whether the stage is anything but a full equilibrium over the case's species set and frozen species."""
+        return self.type != "reactor" or self.reactions is not None or bool(self.frozen_here)
 
     @property
     def changes(self) -> str:
@@ -84,7 +85,8 @@ class StageScope:
                     "gas (no liquid solution is modelled)")
         if self.type != "reactor":
             return f"a {self.type} changes temperature only"
-        return "reactions listed in the case file" if self.reactions is not None else "the case's species set"
+        listed = "reactions listed in the case file" if self.reactions is not None else "the case's species set"
+        return listed + (f"; held in this stage: {', '.join(self.frozen_here)}" if self.frozen_here else "")
 
     def to_dict(self) -> dict[str, object]:
         return {"type": self.type, "service": self.service, "reactions allowed": self.reactions,
@@ -103,7 +105,7 @@ def stage_scope(case: Case, stage: Stage, inlet: Mapping[str, float], db: Specie
                          "remove it from frozen")
     names = SERVICES[stage.service].reactions if stage.service else stage.reactions
     if names is None:
-        return StageScope("reactor", case.species.only, case.species.exclude, wanted)
+        return StageScope("reactor", case.species.only, case.species.exclude, wanted, frozen_here=stage.frozen)
     return _reacting(case, stage, names, present, wanted, db)
 
 
@@ -149,7 +151,7 @@ def _reacting(case: Case, stage: Stage, names: tuple[str, ...], present: list[st
     species = tuple(dict.fromkeys([*reacting, *held, *((LIQUID_WATER,) if water_phase else ())]))
     service = SERVICES.get(stage.service) if stage.service else None
     return StageScope("reactor", species, (), held, tuple(rx.equation for rx in reactions),
-                      service.practice if service else "", stage.service)
+                      service.practice if service else "", stage.service, stage.frozen)
 
 
 def _check_complete(reactions, reacting: list[str], db: SpeciesDatabase) -> None:
