@@ -1,16 +1,18 @@
 """The ``gibbsmin`` command: settle a case file, audit a heat-and-mass balance, list species.
 
 Thin by design: it reads arguments, calls the library, writes what was asked
-for.  Exit codes: 0 success; 1 the audit found failures and ``--fail-on`` asked
+for.  Exit codes: 0 success; 1 a check failed (or warned) and ``--fail-on`` asked
 to be told; 2 bad input (one line on stderr, no traceback); 3 no certified
-answer; 130 interrupted.  ``--traceback`` shows the Python traceback of an error
-(for reporting a bug).
+answer; 130 interrupted.  ``settle --fail-on fail`` exits with 1 when any verdict
+of the report fails (an uncertified answer, graphite in a carbon-free check).
+``--traceback`` shows the Python traceback of an error (for reporting a bug).
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import re
 import sys
 import warnings
 from collections.abc import Callable, Sequence
@@ -29,6 +31,7 @@ example:
   gibbsmin settle examples/reformer.toml
   gibbsmin settle examples/reformer.toml --json > outlet.json
   gibbsmin settle examples/reformer.toml --html reformer.html --xlsx reformer.xlsx
+  gibbsmin settle examples/reformer.toml --fail-on fail     exit 1 if any verdict fails
 
 A case file, e.g. reformer.toml:
 
@@ -78,6 +81,37 @@ def _one_line(text: str) -> str:
     return " ".join(part.strip() for part in str(text).splitlines() if part.strip())
 
 
+#: Keyword arguments of the Python API that the library's messages name, and the case-file table and key that
+#: do the same: a message printed for a case file names the key, not the Python option.
+CASE_FILE_KEYS: dict[str, tuple[str, str]] = {
+    "allow_extrapolation": ("species", "allow_extrapolation"),
+    "species": ("species", "only"),
+    "exclude": ("species", "exclude"),
+    "frozen": ("species", "frozen"),
+    "inert": ("species", "frozen"),
+    "carbon_basis": ("feed", "carbon_basis"),
+    "method": ("conditions", "method"),
+    "gas": ("conditions", "gas"),
+    "kij": ("conditions", "kij"),
+    "adiabatic": ("conditions", "adiabatic"),
+    "heat_input": ("conditions", "heat_input"),
+}
+_PYTHON_OPTION = re.compile(r"(?:\b(pass|use) )?\b(" + "|".join(CASE_FILE_KEYS) + r")="
+                            r"(True|False|'[^']*'|\[[^\]]*\]|[-+0-9.eE]+)")
+
+
+def in_case_file_words(message: str) -> str:
+    """A library message with each Python option (``allow_extrapolation=True``) written as its case-file key
+    (``set [species] allow_extrapolation = true``)."""
+    def key(match: re.Match) -> str:
+        verb, option, value = match.groups()
+        table, name = CASE_FILE_KEYS[option]
+        value = {"True": "true", "False": "false"}.get(value, value.replace("'", '"'))
+        lead = "set " if verb == "pass" else f"{verb} " if verb else ""
+        return f"{lead}[{table}] {name} = {value}"
+    return _PYTHON_OPTION.sub(key, message)
+
+
 def _add_outputs(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--json", action="store_true", help="print a machine-readable JSON document instead of the table")
     parser.add_argument("--csv", metavar="FILE", help="also write the tables as CSV")
@@ -87,22 +121,9 @@ def _add_outputs(parser: argparse.ArgumentParser) -> None:
 
 
 def _write_outputs(report, args: argparse.Namespace) -> list[Path]:
-    from .report.files import write_atomic
+    from .report.files import write_report_files
 
-    written = []
-    if args.csv:
-        from .report.spreadsheet import render_csv
-
-        written.append(write_atomic(args.csv, render_csv(report)))
-    if args.xlsx:
-        from .report.spreadsheet import render_xlsx
-
-        written.append(write_atomic(args.xlsx, render_xlsx(report)))
-    if args.html:
-        from .report.html import render_html
-
-        written.append(write_atomic(args.html, render_html(report)))
-    return written
+    return write_report_files(report, csv=args.csv, xlsx=args.xlsx, html=args.html)
 
 
 def _print_json(document: dict) -> None:
@@ -152,7 +173,21 @@ def _settle(args: argparse.Namespace) -> int:
         _print_json(settle_document(result))
     elif not args.quiet:
         sys.stdout.write(render_text(report))
-    return OK
+    return CHECKS_FAILED if _fails(args.fail_on, _worst_verdict(report)) else OK
+
+
+def _worst_verdict(report) -> str:
+    """The worst verdict in any verdict column of a report's tables ("pass" where there is none)."""
+    from .report.document import VERDICTS
+
+    found = [row[i] for table in report.tables for i, column in enumerate(table.columns)
+             if column.style == "verdict" for row in table.rows]
+    return max((v for v in found if v in VERDICTS), key=VERDICTS.index, default="pass")
+
+
+def _fails(fail_on: str, worst: str) -> bool:
+    """Whether the worst verdict is one ``--fail-on`` asked to be told of."""
+    return fail_on == "fail" and worst == "fail" or fail_on == "warn" and worst in ("warn", "fail")
 
 
 def _keys_text(keys: dict[str, dict[str, str]]) -> str:
@@ -184,7 +219,9 @@ def _species(args: argparse.Namespace) -> int:
         return OK
     if not found:
         what = " and ".join(filter(None, [f"{args.text!r}" if args.text else "", args.element and f"element {args.element}"]))
-        sys.stderr.write(f"gibbsmin species: no species match {what}\n")
+        close = default_database().close_matches(args.text) if args.text else []
+        hint = f"; did you mean {', '.join(close)}?" if close else ""
+        sys.stderr.write(f"gibbsmin species: no species match {what}{hint}\n")
         return OK
     rows = [(r.name, r.formula, r.state, f"{r.T_min:g}-{r.T_max:g}", f"{r.molar_mass:.3f}", ", ".join(r.aliases))
             for r in found]
@@ -222,10 +259,7 @@ def _audit(args: argparse.Namespace) -> int:
         _print_json(audit_document(result))
     elif not args.quiet:
         sys.stdout.write(render_text(audit_report(result, details=args.details)))
-    worst = result.worst
-    if args.fail_on == "fail" and worst == "fail" or args.fail_on == "warn" and worst in ("warn", "fail"):
-        return CHECKS_FAILED
-    return OK
+    return CHECKS_FAILED if _fails(args.fail_on, result.worst) else OK
 
 
 # --- the parser ---------------------------------------------------------------------------------------
@@ -245,9 +279,15 @@ class Command:
     run: Callable[[argparse.Namespace], int]
 
 
+def _add_fail_on(parser: argparse.ArgumentParser, what: str) -> None:
+    parser.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
+                        help=f"exit with code 1 when {what} fails (or warns); default: never")
+
+
 def _settle_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("case", nargs="?", help="the case file (TOML)")
     p.add_argument("--keys", action="store_true", help="list every key a case file may hold, and exit")
+    _add_fail_on(p, "a verdict of the report (an uncertified answer, a carbon check)")
     _add_outputs(p)
 
 
@@ -265,8 +305,7 @@ def _audit_arguments(p: argparse.ArgumentParser) -> None:
                    help="list the keys of a unit description and the row labels of a stream table")
     p.add_argument("--details", action="store_true", help="print the figures behind every check, not only "
                    "behind those that did not pass")
-    p.add_argument("--fail-on", choices=("never", "warn", "fail"), default="never",
-                   help="exit with code 1 when a check fails (or warns); default: never")
+    _add_fail_on(p, "a check")
     _add_outputs(p)
 
 
@@ -280,6 +319,10 @@ COMMANDS: dict[str, Command] = {
     "sweep": Command("sweep a case over a grid of T, P, S/C or feed flows", sweep_command.SWEEP_EXAMPLE,
                      sweep_command.add_arguments, sweep_command.run),
 }
+
+
+#: The subcommands whose input is a case file.
+CASE_FILE_COMMANDS = ("settle", "sweep")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -308,12 +351,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         parser.print_help(sys.stderr)
         return BAD_INPUT
+    # Settle and sweep read case files: there the library's messages name the case-file keys.
+    words = in_case_file_words if args.command in CASE_FILE_COMMANDS else str
     try:
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
             code = args.run(args)
         for w in caught:
-            sys.stderr.write(f"gibbsmin: warning: {_one_line(w.message)}\n")
+            sys.stderr.write(f"gibbsmin: warning: {words(_one_line(w.message))}\n")
         return code
     except KeyboardInterrupt:
         sys.stderr.write("gibbsmin: interrupted; no partial output files were left behind\n")
@@ -321,12 +366,12 @@ def main(argv: Sequence[str] | None = None) -> int:
     except ConvergenceError as exc:
         if args.traceback:
             raise
-        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        sys.stderr.write(f"gibbsmin: error: {words(_one_line(exc))}\n")
         return NOT_CERTIFIED
     except (GibbsminError, UnknownSpeciesError) as exc:
         if args.traceback:
             raise
-        sys.stderr.write(f"gibbsmin: error: {_one_line(exc)}\n")
+        sys.stderr.write(f"gibbsmin: error: {words(_one_line(exc))}\n")
         return BAD_INPUT
     except OSError as exc:
         if args.traceback:

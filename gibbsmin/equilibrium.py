@@ -133,6 +133,7 @@ class Equilibrium:
                 "stationarity_residual": self.certificate.stationarity,
                 "condensed_phase_margin": (None if np.isinf(self.certificate.complementarity)
                                            else self.certificate.complementarity),
+                "phase_stability": self.certificate.phase_stability,
             },
             "omitted_species": dict(self.omitted),
             **{k: v for k, v in self.extras.items()},

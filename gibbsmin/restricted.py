@@ -152,6 +152,42 @@ def _check_held(rx: Reaction, setup: Setup, frozen: Mapping[str, float]) -> None
         raise InputError(f"the approach on {rx.name!r} needs {', '.join(absent)}, which the feed does not contain")
 
 
+#: A held reaction's ln Q may miss ln K at its settling temperature by this much, [-] (the solver's
+#: stationarity tolerance is 1e-7 per species; a reaction sums a few of them).
+APPROACH_LN_TOLERANCE = 1e-6
+
+
+def _check_approaches_met(eq: Equilibrium, held: Sequence[tuple[Reaction, float]],
+                          ln_phi: Mapping[str, float] | None, db: SpeciesDatabase,
+                          allow_extrapolation: bool) -> None:
+    """Refuse an answer whose composition does not hold each reaction at the approach asked for.
+
+    The quotients are recomputed from the answer's gas; a reaction with a
+    condensed species the answer does not hold cannot stand at any approach.
+    """
+    from .errors import ConvergenceError
+    from .reactions import approach_temperatures, gas_state
+
+    state = gas_state(eq, ln_phi=ln_phi, db=db)
+    for rx, dT in held:
+        T_settle = settling_temperature(rx, eq.T, dT)
+        miss = rx.ln_quotient(state) - rx.ln_K(T_settle, allow_extrapolation=allow_extrapolation)
+        if abs(miss) <= APPROACH_LN_TOLERANCE:
+            continue
+        absent = [s for s in rx.species if eq.phase_of.get(s, "gas") != "gas" and eq.amounts.get(s, 0.0) <= 0.0]
+        if absent:
+            why = (f"the answer holds no {', '.join(absent)}, so the reaction is not at any approach (its gas is "
+                   f"on the side where {', '.join(absent)} cannot form); drop that approach or hold another reaction")
+        else:
+            found = approach_temperatures(eq, reactions=[rx], ln_phi=ln_phi, db=db,
+                                          allow_extrapolation=allow_extrapolation)[rx.name].approach_K
+            why = (f"the answer's own composition gives an approach of {found:.4g} K (ln Q misses ln K at "
+                   f"{T_settle:.6g} K by {miss:.3g}); try method='convex', or leave out the species that appear "
+                   f"only at the outlet (e.g. exclude=['C(s)'])")
+        raise ConvergenceError(f"the approach asked for on {rx.name!r} ({dT:g} K) is not met at T = {eq.T:.6g} K: "
+                               f"{why}")
+
+
 def equilibrate_with_approach(
     feed: Mapping[str, object] | Stream,
     T: float | str | None,
@@ -294,14 +330,15 @@ def equilibrate_with_approach(
                            start=start, allow_extrapolation=allow_extrapolation, specification=specification)
 
     residual = None if phase is None else phase.residual_enthalpy
-    from .nonideal import inlet_enthalpies, stability_checked  # the cubic's helpers build on solve_fixed
+    # Imported here: the cubic's helpers build on solve_fixed.
+    from .nonideal import inlet_enthalpies, stability_checked, with_stability_verdict
 
     H_in, gross_in = inlet_enthalpies(phase, inlet, P, db, allow_extrapolation)
     if energy_balance:
         eq, _, _ = energy.solve_energy_balance(
             setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
             coldest_feed=min(inlet.temperatures.values()), method=method, allow_extrapolation=allow_extrapolation,
-            residual_enthalpy=residual, step=step)
+            residual_enthalpy=residual, step=step, phase_set_solve=not held)
         eq = dataclasses.replace(eq, specification=specification)
     else:
         eq, _, _ = step(T)
@@ -310,6 +347,7 @@ def equilibrate_with_approach(
     if phase is not None:
         extras_energy["gas_phase_stability"] = stability_checked(phase, eq)
     eq = checked(eq)
+    _check_approaches_met(eq, held, ln_phi, db, allow_extrapolation)
     extras = {
         **eq.extras,
         **extras_energy,
@@ -318,4 +356,4 @@ def equilibrate_with_approach(
         "reactions at equilibrium": [r.equation for r in complete if r.name not in {rx.name for rx, _ in held}],
         "frozen mol": dict(frozen_mol),
     }
-    return dataclasses.replace(eq, extras=extras)
+    return with_stability_verdict(dataclasses.replace(eq, extras=extras))

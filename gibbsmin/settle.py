@@ -350,7 +350,8 @@ def equilibrate(
     elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
-    return checked(energy.with_extras(eq, extras))
+    # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
+    return nonideal.with_stability_verdict(checked(energy.with_extras(eq, extras)))
 
 
 def check_method(method: str) -> None:

@@ -53,7 +53,11 @@ def test_cubic_answers_are_certified_with_phi_at_their_own_composition(feed, T, 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)  # a drawn cold, wet gas may be told it would condense
         eq = gibbsmin.equilibrate(feed, T, P, species=[*LOOP_SPECIES], gas=gas)
-    assert eq.certificate.certified, eq.certificate.summary()
+    # A drawn gas that the tangent-plane test finds unstable is rightly not certified (it is not the
+    # equilibrium); its one-gas minimum must still meet every residual limit.
+    cert = eq.certificate
+    assert cert.certified or cert.phase_stability == "unstable", cert.summary()
+    assert cert.element_balance <= 1e-9 and cert.stationarity <= 1e-7, cert.summary()
     assert eq.extras["ln_phi_change"] <= 1e-10
     assert _stationarity(eq, gas) < STATIONARITY
 

@@ -99,8 +99,8 @@ def test_xlsx_keeps_numbers_as_numbers(tmp_path):
     path = tmp_path / "n.xlsx"
     path.write_bytes(render_xlsx(report))
     sheet = openpyxl.load_workbook(path)["x"]
-    assert sheet["B3"].value == pytest.approx(47.52841, rel=1e-15)  # unrounded, with a display format
-    assert sheet["B3"].number_format == "0.0000"
+    assert sheet["B2"].value == pytest.approx(47.52841, rel=1e-15)  # unrounded, with a display format (row 1: headings)
+    assert sheet["B2"].number_format == "0.0000"
 
 
 def test_atomic_write_leaves_nothing_half_written(tmp_path, monkeypatch):

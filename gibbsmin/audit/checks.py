@@ -55,6 +55,8 @@ class Check:
         pass, warn, fail or n/a.
     detail : str
         The figures behind the verdict, in words.
+    also : tuple of (float, str)
+        The same finding in other units, e.g. an energy imbalance in MW beside its kelvin.
     """
 
     where: str
@@ -63,6 +65,7 @@ class Check:
     unit: str
     verdict: str
     detail: str
+    also: tuple[tuple[float, str], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -222,7 +225,8 @@ def _energy_check(where: str, spec: UnitSpec, inlets: Sequence[TableStream], out
     basis = "" if spec.gas == "ideal" else f" (with the {spec.gas} residual enthalpy of each stream)"
     detail = (f"H_out - H_in = {(H_out - H_in) / 1e6:.4g} MW{basis}, stated duty {spec.duty / 1e6:.4g} MW: "
               f"imbalance {imbalance / 1e6:+.4g} MW{share}, {as_kelvin:+.3g} K on the outlet temperature")
-    return Check(where, "energy balance", as_kelvin, "K", limit.verdict(abs(as_kelvin)), detail)
+    return Check(where, "energy balance", as_kelvin, "K", limit.verdict(abs(as_kelvin)), detail,
+                 also=((imbalance / 1e6, "MW"),))
 
 
 def _splitter_check(where: str, inlets, outlets, limit: Limit) -> Check:

@@ -36,12 +36,15 @@ class CarbonActivity:
         reaction's species on both sides.
     from_element_potential : float or None
         exp(lambda_C - g0_C(s)/RT) [-], for an (unrestricted) Equilibrium.
+    graphite_mol : float
+        Graphite the judged answer holds, [mol] (0 for a gas given on its own).
     """
 
     T: float
     P: float
     by_reaction: Mapping[str, float]
     from_element_potential: float | None = None
+    graphite_mol: float = 0.0
 
     @property
     def activity(self) -> float:
@@ -67,15 +70,33 @@ class CarbonActivity:
         return self.margin < -SATURATION_TOLERANCE
 
     @property
+    def carbon_free(self) -> bool:
+        """True only where the answer holds no graphite and its gas could not deposit any."""
+        return self.graphite_mol <= 0.0 and not self.possible
+
+    @property
+    def status(self) -> str:
+        """``"fail"`` where the answer holds graphite, ``"warn"`` where its gas could deposit some, else ``"pass"``."""
+        if self.graphite_mol > 0.0:
+            return "fail"
+        return "warn" if self.possible else "pass"
+
+    @property
     def verdict(self) -> str:
-        """The judgement in words, with the activity, the reaction and the margin."""
+        """The judgement in words, with the activity, the reaction and the margin (and graphite held)."""
         a, margin = self.activity, self.margin
         if self.possible:
-            return f"carbon possible: a_C = {a:.4g} by {self.limiting_reaction} (margin {margin:.3g})"
-        if margin <= SATURATION_TOLERANCE:
-            return f"at graphite saturation: a_C = {a:.6g} (graphite present or on the boundary)"
-        where = f" by {self.limiting_reaction}" if self.limiting_reaction else ""
-        return f"no carbon: a_C at most {a:.4g}{where} (margin {margin:.3g})"
+            words = f"carbon possible: a_C = {a:.4g} by {self.limiting_reaction} (margin {margin:.3g})"
+        elif margin <= SATURATION_TOLERANCE:
+            words = f"at graphite saturation: a_C = {a:.6g}"
+        else:
+            where = f" by {self.limiting_reaction}" if self.limiting_reaction else ""
+            words = f"no carbon: a_C at most {a:.4g}{where} (margin {margin:.3g})"
+        if self.graphite_mol > 0.0:
+            return f"{words}; the answer holds {self.graphite_mol:.4g} mol graphite: NOT carbon-free"
+        if margin <= SATURATION_TOLERANCE and not self.possible:
+            return f"{words} (on the boundary)"
+        return words
 
 
 def carbon_activity(
@@ -106,7 +127,8 @@ def carbon_activity(
     Returns
     -------
     CarbonActivity
-        ``verdict`` says whether carbon is possible, with the margin.
+        ``verdict`` says whether carbon is possible, with the margin;
+        ``status`` is "fail" whenever an Equilibrium given holds graphite.
 
     Examples
     --------
@@ -122,11 +144,24 @@ def carbon_activity(
         with np.errstate(over="ignore"):
             by_reaction[name] = float(np.exp(rx.ln_K(state.T) - rx.ln_quotient(state)))
     potential = None
-    if isinstance(composition, Equilibrium) and not composition.extras.get("approach K"):
+    graphite = 0.0
+    if isinstance(composition, Equilibrium):
+        graphite = graphite_held(composition, db)
         lam = composition.element_potentials.get("C", math.nan)
-        if math.isfinite(lam):
+        if math.isfinite(lam) and not composition.extras.get("approach K"):
             potential = float(np.exp(lam - _g0_graphite(state.T, db)))
-    return CarbonActivity(state.T, state.P, by_reaction, potential)
+    return CarbonActivity(state.T, state.P, by_reaction, potential, graphite)
+
+
+def graphite_held(eq: Equilibrium, db: SpeciesDatabase | None = None) -> float:
+    """Amount of solid carbon (any condensed species made of carbon alone) an answer holds, [mol of C]."""
+    db = db or default_database()
+    held = 0.0
+    for name, n in eq.condensed.items():
+        elements = dict(db[name].elements)
+        if set(elements) == {"C"}:
+            held += n * elements["C"]
+    return held
 
 
 def _g0_graphite(T: float, db: SpeciesDatabase) -> float:

@@ -82,6 +82,7 @@ def solve_energy_balance(
     allow_extrapolation: bool = False,
     residual_enthalpy: ResidualEnthalpy | None = None,
     step: FixedTStep | None = None,
+    phase_set_solve: bool = True,
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
 
@@ -102,6 +103,11 @@ def solve_energy_balance(
     step : callable, optional
         The fixed-T solve to iterate on; ``settle.solve_fixed`` on the ideal
         gas by default.  A non-ideal gas model passes its own.
+    phase_set_solve : bool
+        Where the bracket's ends differ in phases, solve on their union with T
+        unknown (``sensitivity.settle_on_phase_set``).  That solve knows only
+        the plain standard potentials: a step that shifts them (a reaction
+        held at an approach) passes False and is bisected instead.
 
     Returns
     -------
@@ -135,15 +141,18 @@ def solve_energy_balance(
         # mixture knows nothing of, and the search then walks down from there.
         T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
     scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
-    search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation)
+    search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
+                     phase_set_solve)
     return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
 
 
 class _Search:
     """The bracketed search for the outlet temperature (one instance per solve)."""
 
-    def __init__(self, setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation):
+    def __init__(self, setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
+                 phase_set_solve=True):
         self.setup, self.H_target, self.P = setup, H_target, P
+        self.phase_set_solve = phase_set_solve
         self.allow_extrapolation = allow_extrapolation
         self.T_low, self.T_high = T_bounds
         self.scale, self.residual_enthalpy, self.step = scale, residual_enthalpy, step
@@ -261,7 +270,7 @@ class _Search:
 
     def _try_phase_boundary(self, low: _Point, high: _Point):
         """Solve on the union of the phase sets of the bracket's ends, if they differ."""
-        if low.phases == high.phases:
+        if low.phases == high.phases or not self.phase_set_solve:
             return None
         narrow = high.T - low.T < 1e-6 * high.T
         if self.phase_set_tries >= _PHASE_SET_TRIES and not narrow:

@@ -43,6 +43,7 @@ from .hooks import inlet_enthalpies as inlet_enthalpies
 from .hooks import inlet_residual_enthalpy as inlet_residual_enthalpy
 from .hooks import nonideal_sensitivities as nonideal_sensitivities
 from .hooks import stability_checked as stability_checked
+from .hooks import with_stability_verdict as with_stability_verdict
 from .loop import IDEAL_SPECIES_WARNING as IDEAL_SPECIES_WARNING
 from .loop import OuterLoopOptions as OuterLoopOptions
 from .loop import solve_batch_nonideal as solve_batch_nonideal

@@ -134,6 +134,22 @@ def stability_checked(phase: GasPhase, eq: Equilibrium, stacklevel: int = 3) -> 
     return stability
 
 
+def with_stability_verdict(eq: Equilibrium) -> Equilibrium:
+    """The answer with the verdict of ``extras["gas_phase_stability"]`` in its certificate.
+
+    A gas the tangent-plane test finds unstable as one phase is not the
+    equilibrium (gibbsmin has no liquid-solution phase), so it is not certified.
+    """
+    record = eq.extras.get("gas_phase_stability")
+    if not record:
+        return eq
+    if record.get("tested"):
+        verdict = "stable" if record.get("stable") else "unstable"
+    else:
+        verdict = "screened" if record.get("stable") else "not tested"
+    return replace(eq, certificate=eq.certificate.with_phase_stability(verdict))
+
+
 def energy_hooks(setup: Setup, P: float, phase: GasPhase, *, method: str = "auto",
                  allow_extrapolation: bool = False) -> dict[str, object]:
     """Keyword arguments of ``energy.solve_energy_balance`` that put this gas model into the energy balance.

@@ -337,7 +337,10 @@ def reaction(spec: str | Reaction, *, db: SpeciesDatabase | None = None) -> Reac
         match = re.match(pattern, spec.strip(), flags=re.IGNORECASE)
         if match and match.group(1) in db:
             return steam_reforming(match.group(1), db=db)
-    close = difflib.get_close_matches(key, list(_NAME_OF_KEY), n=3, cutoff=0.6)
+    # "shift reaction", "the shift": the trade's name is in there once the filler words are gone.
+    core = re.sub(r"\b(?:the|reactions?)\b", " ", key).strip()
+    close = (core and difflib.get_close_matches(re.sub(r"\s+", " ", core), list(_NAME_OF_KEY), n=3, cutoff=0.6)) \
+        or difflib.get_close_matches(key, list(_NAME_OF_KEY), n=3, cutoff=0.6)
     suggestions = list(dict.fromkeys(_NAME_OF_KEY[c] for c in close))
     hint = f"did you mean {', '.join(map(repr, suggestions))}? " if close else ""
     raise InputError(

@@ -6,25 +6,49 @@ from .. import __version__
 from ..audit.checks import SEVERITY, AuditResult, UnitAudit
 from .caution import CAUTION
 from .document import Column, Plot, Report, Table
+from .numbers import format_cell
 from .settle import json_ready
 
 _KMOL_H = 1000.0 / 3600.0
 
 
+def _also_text(check) -> str | None:
+    """The check's figure in its other units ("+10.97 MW"), or None."""
+    return ", ".join(f"{value:+.4g} {unit}" for value, unit in check.also) or None
+
+
+def _figure_text(check) -> str:
+    """The figure judged, with its unit and its other units: "+118 K (+10.97 MW)"; empty when not computed."""
+    if check.value is None:
+        return ""
+    figure = format_cell(check.value, "figure")
+    text = f"{'+' if check.value > 0 and figure != '0' else ''}{figure} {check.unit}"
+    also = _also_text(check)
+    return f"{text} ({also})" if also else text
+
+
 def verdict_table(result: AuditResult) -> Table:
-    rows = [(c.where, c.name, c.value, c.unit, c.verdict) for c in result.checks]
+    rows = [(c.where, c.name, c.value, c.unit, _also_text(c), c.verdict) for c in result.checks]
     counts = ", ".join(f"{result.count(v)} {v}" for v in ("pass", "warn", "fail", "n/a"))
     return Table(f"Verdicts ({counts})", (Column("where", "text"), Column("check", "text"), Column("value", "figure"),
-                                          Column("unit", "text"), Column("verdict", "verdict")),
+                                          Column("unit", "text"), Column("also", "text"),
+                                          Column("verdict", "verdict")),
                  tuple(rows), key="verdicts")
 
 
+#: The order findings are listed in: failures first, then warnings, then what could not be checked.
+_FINDING_ORDER = {"fail": 0, "warn": 1, "n/a": 2, "pass": 3}
+
+
 def findings_table(result: AuditResult, everything: bool = False) -> Table:
-    """The figures behind each verdict: of the checks that did not pass (or of all, for the files)."""
-    rows = [(c.where, c.name, c.verdict, c.detail) for c in result.checks if everything or c.verdict != "pass"]
-    title = "Details of every check" if everything else "Findings: the checks that did not pass"
+    """The figures behind each verdict: of the checks that did not pass, failures first (or of all, for the files)."""
+    checks = result.checks if everything else sorted((c for c in result.checks if c.verdict != "pass"),
+                                                      key=lambda c: _FINDING_ORDER[c.verdict])
+    rows = [(c.where, c.name, c.verdict, _figure_text(c), c.detail) for c in checks]
+    title = "Details of every check" if everything else "Findings: the checks that did not pass, failures first"
     return Table(title, (Column("where", "text"), Column("check", "text"), Column("verdict", "verdict"),
-                         Column("detail", "longtext")), tuple(rows), key="details" if everything else "findings")
+                         Column("figure", "text"), Column("detail", "longtext")), tuple(rows),
+                 key="details" if everything else "findings")
 
 
 def element_table(result: AuditResult) -> Table:
@@ -100,10 +124,10 @@ def _unit_plots(unit: UnitAudit, result: AuditResult) -> list[Plot]:
                           "of equilibrium)", categories=tuple(f.name for f in unit.reactions),
                           values=tuple(f.approach_K for f in unit.reactions),
                           verdicts=tuple(f.verdict for f in unit.reactions)))
-    if unit.elements:
+    closures = tuple(v[2] for v in unit.elements.values())
+    verdicts = tuple(limits["element_closure"].verdict(abs(c)) for c in closures)
+    if any(v != "pass" for v in verdicts):  # closures within their limits are in the element table, not charted
         warn, fail = limits["element_closure"].warn, limits["element_closure"].fail
-        closures = tuple(v[2] for v in unit.elements.values())
-        verdicts = tuple(limits["element_closure"].verdict(abs(c)) for c in closures)
         marks = [("warn", warn), ("-warn", -warn)]
         if fail is not None:
             marks += [("fail", fail), ("-fail", -fail)]
@@ -131,9 +155,13 @@ def audit_report(result: AuditResult, details: bool = True) -> Report:
     tables.append(thresholds_table(result))
     reactors = [u for u in result.units if u.spec.type == "reactor"]
     plots = [p for unit in reactors for p in _unit_plots(unit, result)]
-    notes = ("Enthalpies are ideal-gas (liquid water as the pure liquid) on the formation basis; duties are heat "
-             "added to the unit. An energy imbalance is shown as the outlet-temperature error it amounts to.",)
-    return Report(f"gibbsmin {__version__} audit - {plant.title}", facts, tuple(tables), tuple(plots), notes)
+    notes = ("Enthalpies are ideal-gas (liquid water as the pure liquid) on the formation basis, with a unit's "
+             "cubic residual enthalpy where its description names a gas model; duties are heat added to the unit. "
+             "An energy imbalance is shown in MW and as the outlet-temperature error it amounts to.",
+             "Element closures are charted only for reactors with a closure outside its limits; every closure is in "
+             "the element table.")
+    return Report(f"gibbsmin {__version__} audit - {plant.title}", facts, tuple(tables), tuple(plots), notes,
+                  tables_before_plots=1)
 
 
 def audit_document(result: AuditResult) -> dict[str, object]:
@@ -147,8 +175,8 @@ def audit_document(result: AuditResult) -> dict[str, object]:
         units.append({
             "id": unit.spec.id, "name": unit.spec.name, "type": unit.spec.type,
             "inlets": list(unit.spec.inlets), "outlets": list(unit.spec.outlets), "stated_duty_W": unit.spec.duty,
-            "checks": [{"check": c.name, "value": c.value, "unit": c.unit, "verdict": c.verdict, "detail": c.detail}
-                       for c in unit.checks],
+            "checks": [{"check": c.name, "value": c.value, "unit": c.unit, "verdict": c.verdict, "detail": c.detail,
+                        "also": [{"value": v, "unit": u} for v, u in c.also]} for c in unit.checks],
             "elements_mol_s": {e: {"in": a, "out": b, "closure_percent": c} for e, (a, b, c) in unit.elements.items()},
             "reactions": [finding(f) for f in unit.reactions],
             "equilibrium": None if unit.equilibrium is None else unit.equilibrium.to_dict(),

@@ -23,7 +23,7 @@ class Column:
     title : str
     style : str
         ``"text"``, ``"percent"`` (mol%), ``"flow"``, ``"number"`` (six significant digits),
-        ``"fixed2"`` (two decimals), ``"exp"`` (scientific), ``"figure"`` (four significant digits, noise as 0),
+        ``"fixed2"`` (two decimals; ``"fixed1"``, ``"fixed3"`` alike), ``"exp"`` (scientific), ``"figure"`` (four significant digits, noise as 0),
         ``"verdict"`` (pass, warn, fail, n/a) or ``"longtext"`` (text the terminal wraps).
     """
 
@@ -33,18 +33,36 @@ class Column:
 
 @dataclass(frozen=True)
 class Table:
-    """A titled table; cells are numbers, texts or None (empty)."""
+    """A titled table; cells are numbers, texts or None (empty).
+
+    ``row_styles``, where given, hold one style per row for that row's number
+    cells (a stream table's temperature row and mol% rows differ); a text
+    column keeps its own style.
+    """
 
     title: str
     columns: tuple[Column, ...]
     rows: tuple[tuple[object, ...], ...]
     notes: tuple[str, ...] = ()
     key: str = ""  # a short machine name (sheet name, CSV block name)
+    row_styles: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         for row in self.rows:
             if len(row) != len(self.columns):
                 raise ValueError(f"table {self.title!r}: a row has {len(row)} cells for {len(self.columns)} columns")
+        if self.row_styles and len(self.row_styles) != len(self.rows):
+            raise ValueError(f"table {self.title!r}: {len(self.row_styles)} row styles for {len(self.rows)} rows")
+
+    def style(self, row: int, column: int) -> str:
+        """How the cell at (row, column) is written: its row's style for a number column, else its column's."""
+        own = self.columns[column].style
+        if self.row_styles and own not in _TEXT_STYLES:
+            return self.row_styles[row]
+        return own
+
+
+_TEXT_STYLES = ("text", "verdict", "longtext")
 
 
 @dataclass(frozen=True)
@@ -78,7 +96,11 @@ class Plot:
 
 @dataclass(frozen=True)
 class Report:
-    """A whole report: a title, facts (label, text) about the case, tables, plots and the caution."""
+    """A whole report: a title, facts (label, text) about the case, tables, plots and the caution.
+
+    ``tables_before_plots`` tables (the findings of an audit, say) come before
+    the plots in the HTML page; the others after them.
+    """
 
     title: str
     facts: tuple[tuple[str, str], ...] = ()
@@ -86,3 +108,4 @@ class Report:
     plots: tuple[Plot, ...] = ()
     notes: tuple[str, ...] = ()
     caution: str = field(default=CAUTION)
+    tables_before_plots: int = 0

@@ -33,10 +33,10 @@ _POLICY = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
 def _table_html(table: Table) -> str:
     head = "".join(f"<th>{escape(c.title)}</th>" for c in table.columns)
     rows = []
-    for row in table.rows:
+    for i, row in enumerate(table.rows):
         cells = []
-        for value, column in zip(row, table.columns):
-            text = escape(format_cell(value, column.style))
+        for j, (value, column) in enumerate(zip(row, table.columns)):
+            text = escape(format_cell(value, table.style(i, j)))
             if column.style == "verdict":
                 cells.append(f'<td class="{escape(str(value))}">{text}</td>')
             elif column.style == "text" or isinstance(value, str) or value is None:
@@ -54,7 +54,9 @@ def render_html(report: Report) -> str:
     facts = "".join(f"<tr><th>{escape(label)}</th><td>{escape(text)}</td></tr>" for label, text in report.facts)
     plots = "".join(f"<figure>{render_svg(p)}</figure>\n" for p in report.plots)
     notes = "".join(f'<p class="note">{escape(n)}</p>' for n in report.notes)
-    tables = "\n".join(_table_html(t) for t in report.tables)
+    lead = report.tables_before_plots
+    leading = "\n".join(_table_html(t) for t in report.tables[:lead])
+    tables = "\n".join(_table_html(t) for t in report.tables[lead:])
     return f"""<!DOCTYPE html>
 <html lang="en">
 <head>
@@ -68,6 +70,7 @@ def render_html(report: Report) -> str:
 <h1>{escape(report.title)}</h1>
 <div class="caution"><strong>{escape(report.caution)}</strong></div>
 <table class="facts">{facts}</table>
+{leading}
 {plots}
 {tables}
 {notes}

@@ -15,6 +15,8 @@ from ..thermo import default_database
 from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
+from .feeds import flow_text, meets_steam, mixed_steam_to_carbon, steam_to_carbon_text
+from .stream_table import stream_table
 
 
 def is_gauge(unit: str) -> bool:
@@ -27,6 +29,9 @@ def temperature_text(T: float, unit: str) -> str:
 
 
 def pressure_text(P: float, unit: str) -> str:
+    """A pressure in the report's unit; in bar as the trade writes it, gauge with absolute beside it."""
+    if unit in ("bar", "bar(g)"):
+        return f"{from_pascal(P, 'bar(g)') + 0.0:.6g} bar(g) ({from_pascal(P, 'bar'):.6g} bar abs)"
     return f"{from_pascal(P, unit):.6g} {unit}{'' if is_gauge(unit) else ' (abs)'}"
 
 
@@ -82,16 +87,6 @@ def _shown(species: str, y: float, spec: ReportSpec) -> bool:
     return species in spec.show if spec.show is not None else y >= spec.cutoff
 
 
-def feed_table(result: CaseResult) -> Table:
-    spec = result.case.report
-    feed = result.case.mixed_feed()
-    total = sum(feed.values())
-    rows = [(s, flow_in(s, n, spec.flow_unit), 100 * n / total) for s, n in feed.items()]
-    rows.append(("total", sum(flow_in(s, n, spec.flow_unit) for s, n in feed.items()), 100.0))
-    return Table("Feed (all feeds mixed)", (Column("species", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
-                                            Column("mol% wet", "percent")), tuple(rows), key="feed")
-
-
 def stages_table(result: CaseResult) -> Table:
     """One row per stage: inlet and outlet temperature, pressure, what was fixed, duty, certificate."""
     spec = result.case.report
@@ -105,7 +100,7 @@ def stages_table(result: CaseResult) -> Table:
                      from_pascal(eq.P, spec.pressure_unit), eq.specification,
                      None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
     notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
-             "to the outlet; ideal-gas enthalpies on the formation basis"]
+             f"to the outlet; {_enthalpies_text(result)}"]
     if not FEATURES["energy"].available():
         notes = ["duty: not computed (the energy balance is not available in this version)"]
     elif not result.case.feed_temperatures_known:
@@ -115,6 +110,22 @@ def stages_table(result: CaseResult) -> Table:
                             Column(f"T out [{unit}]", "fixed2"), Column(f"P [{spec.pressure_unit}]", "number"),
                             Column("fixed", "text"), Column("duty [MW]", "number"), Column("certified", "verdict")),
                  tuple(rows), tuple(notes), key="stages")
+
+
+def _enthalpies_text(result: CaseResult) -> str:
+    """Which enthalpies the duties were taken with: ideal-gas ones, and each cubic's residual enthalpy."""
+    text = "ideal-gas enthalpies on the formation basis (condensed species as pure phases)"
+    cubic: dict[str, list[str]] = {}
+    for stage in result.stages:
+        if stage.equilibrium.gas_model != "ideal":
+            cubic.setdefault(stage.equilibrium.gas_model, []).append(stage.stage.name)
+    if not cubic:
+        return text
+    everywhere = len(result.stages) == sum(len(names) for names in cubic.values())
+    parts = [f"the {model} residual enthalpy of the gas{'' if everywhere else ' in ' + ', '.join(names)}"
+             for model, names in cubic.items()]
+    return (f"{text}, plus {' and '.join(parts)} (each feed at its own temperature and the stage pressure, "
+            "the outlet at its own)")
 
 
 # --- what each stage let change (case stage types and services) ---------------------------------------
@@ -142,13 +153,16 @@ def certificate_table(result: CaseResult) -> Table:
     for stage in result.stages:
         c = stage.equilibrium.certificate
         rows.append((stage.stage.name, "pass" if c.certified else "fail", c.solver, c.iterations,
-                     c.element_balance, c.stationarity, None if math.isinf(c.complementarity) else c.complementarity))
+                     c.element_balance, c.stationarity, None if math.isinf(c.complementarity) else c.complementarity,
+                     c.phase_stability))
     return Table("Certificate of each answer (optimality conditions recomputed from the answer)",
                  (Column("stage", "text"), Column("certified", "verdict"), Column("solver", "text"),
                   Column("iterations", "number"), Column("element balance", "exp"), Column("stationarity", "exp"),
-                  Column("condensed-phase margin", "exp")), tuple(rows),
+                  Column("condensed-phase margin", "exp"), Column("one gas", "text")), tuple(rows),
                  ("element balance: max |A n - b| / max b; stationarity: max |mu/RT - a.lambda|; margin: "
-                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",),
+                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",
+                  "one gas: the tangent-plane test of a cubic gas (unstable: a liquid-like phase would form, so the "
+                  "answer is not the equilibrium and is not certified)"),
                  key="certificate")
 
 
@@ -215,11 +229,14 @@ def carbon_table(result: CaseResult) -> Table | None:
     if not result.case.report.carbon:
         return None
     rows = []
+    failures = []
     for stage in result.stages:
         eq = stage.equilibrium
         activity = carbon_activity(eq)
-        verdict = "warn" if activity.possible else "pass"
-        feed_ratio, limit = _steam_to_carbon_limit(result, stage)
+        verdict = activity.status  # "fail" whenever the outlet holds graphite
+        feed_ratio, limit, failure = _steam_to_carbon_limit(result, stage)
+        if failure:
+            failures.append(f"{stage.stage.name}: min S/C not found ({failure})")
         rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio, limit,
                      verdict, activity.verdict))
     basis = result.case.feeds[0].stream.carbon_basis
@@ -231,11 +248,12 @@ def carbon_table(result: CaseResult) -> Table | None:
                   "and catalyst)",
                   f"min S/C: the lowest steam-to-carbon ratio ({basis} carbon) at which the stage's inlet, with its "
                   "steam changed, has no graphite at equilibrium at the outlet's T and P; blank where the inlet "
-                  "has no such carbon or no limit lies between S/C 0.05 and 64"), key="carbon")
+                  "has no such carbon or no limit lies between S/C 0.05 and 64", *failures), key="carbon")
 
 
-def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, float | None]:
-    """The S/C of a stage's inlet and the carbon limit at its outlet's T and P (None where undefined)."""
+def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, float | None, str | None]:
+    """The S/C of a stage's inlet, the carbon limit at its outlet's T and P (None where undefined), and why
+    a limit that should have been found was not (None when it was, or when there is none to find)."""
     from ..carbon import carbon_limit
     from ..errors import GibbsminError
     from ..streams import Stream
@@ -244,17 +262,19 @@ def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, flo
     eq = stage.equilibrium
     basis = result.case.feeds[0].stream.carbon_basis
     db = result.case.feeds[0].stream.database
+    stream = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis, database=db)
+    if stream.carbon_flow() == 0.0:
+        return None, None, None  # no carbon the ratio counts: neither a ratio nor a limit
+    ratio = stream.steam_to_carbon()
+    # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
+    dry = {name: n for name, n in inlet.items() if name != "H2O"}
     try:
-        ratio = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis,
-                       database=db).steam_to_carbon()
-        # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
-        dry = {name: n for name, n in inlet.items() if name != "H2O"}
         limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
                              exclude=result.case.species.exclude, gas=eq.gas_model,
                              kij=stage.stage.interactions, db=db)
-    except (GibbsminError, ValueError):
-        return None, None
-    return ratio, (limit.steam_to_carbon if limit.status == "found" else None)
+    except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
+        return ratio, None, " ".join(str(exc).split())
+    return ratio, (limit.steam_to_carbon if limit.status == "found" else None), None
 
 
 def curve_plot(result: CaseResult) -> Plot | None:
@@ -328,16 +348,17 @@ def settle_report(result: CaseResult) -> Report:
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
     for feed in case.feeds:
         stream = feed.stream
-        text = f"{stream.total_flow(spec.flow_unit):.6g} {spec.flow_unit}"
+        text = flow_text(feed, spec, case.species.frozen)
         if feed.T_given:
             text += f" at {temperature_text(stream.T, spec.temperature_unit)}"
         text += f", {pressure_text(stream.P, spec.pressure_unit)}"
-        try:
-            text += f", S/C {stream.steam_to_carbon():.3f} ({stream.carbon_basis} basis)"
-        except ValueError:
-            pass  # no hydrocarbon carbon: S/C says nothing
+        if meets_steam(stream, case.species.frozen):
+            text += steam_to_carbon_text(stream)
         facts.append((f"feed {feed.name}", text))
-    tables = [feed_table(result), stages_table(result), *_optional(scope_table(result)),
+    mixed = mixed_steam_to_carbon(case)
+    if mixed is not None:
+        facts.append(("feeds mixed", mixed))
+    tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
               *(stage_table(s, spec) for s in result.stages)]
     optional = [
         approach_table(result) if FEATURES["reactions"].available() else None,
@@ -353,7 +374,8 @@ def settle_report(result: CaseResult) -> Report:
         by_reason.setdefault(why, []).append(species)
     for why, names in by_reason.items():
         notes.append(f"Left out of the species set ({why}): {', '.join(names)}.")
-    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), tuple(plots), tuple(notes))
+    return Report(f"gibbsmin {__version__} - {case.title}", tuple(facts), tuple(tables), tuple(plots), tuple(notes),
+                  tables_before_plots=2)  # the stages and the stream table, then the plots
 
 
 # --- JSON -------------------------------------------------------------------------------------------

@@ -1,8 +1,18 @@
-"""Reports as spreadsheets: CSV (all tables in blocks, one after another) and XLSX (one sheet per table).
+"""Reports as spreadsheets: CSV (every table a block of its own) and XLSX (one sheet per table).
 
-Numbers are written unrounded (the terminal and HTML forms round); text that
-a spreadsheet would read as a formula (starting with =, +, - or @) is written
-as text.
+CSV: the report's title, facts and caution come first; then each table is a
+block after a blank line: lines starting with ``#`` (its name and title, then
+its notes), then a plain rectangular table (a header row and the rows), so
+that a block read without its ``#`` lines is what ``pandas.read_csv`` takes.
+
+XLSX: a summary sheet (title, facts, notes, caution, and each sheet's title and
+notes), then one sheet per table with the column headings in row 1 and the
+rows below, so that ``pandas.read_excel(path, sheet_name=...)`` reads it as it is.
+
+Numbers are written to 12 significant digits (the terminal and HTML forms
+round further), so a sum's last bit (865.0000000000001) and a negative zero do
+not show; text that a spreadsheet would read as a formula (starting with =, +,
+- or @) is written as text.
 """
 
 from __future__ import annotations
@@ -12,10 +22,11 @@ import io
 import re
 
 from .document import Report, Table
+from .numbers import clean_number
 
 _FORMULA_START = ("=", "+", "-", "@")
-_NUMBER_FORMATS = {"percent": "0.0000", "flow": "0.00", "fixed2": "0.00", "fixed1": "0.0", "exp": "0.000E+00",
-                   "number": "General"}
+_NUMBER_FORMATS = {"percent": "0.0000", "flow": "0.00", "fixed2": "0.00", "fixed1": "0.0", "fixed3": "0.000",
+                   "exp": "0.000E+00", "number": "General"}
 _FILLS = {"pass": "D8F0DF", "warn": "FBEFC5", "fail": "F6D0CB"}
 
 
@@ -26,31 +37,42 @@ def _safe_text(value: object) -> object:
     return value
 
 
+def _number(value: object) -> object:
+    """Numbers as clean floats (bools and texts as they are)."""
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        return clean_number(float(value))
+    return value
+
+
 def _csv_value(value: object) -> object:
     if value is None:
         return ""
-    if isinstance(value, float):
-        return repr(value)
+    if isinstance(value, float) or isinstance(value, int) and not isinstance(value, bool):
+        return repr(_number(value))
     return _safe_text(value)
 
 
+def _comment(text: str) -> str:
+    """A '#' line of a CSV block (one line, whatever the text holds)."""
+    return "# " + " ".join(str(text).split()) + "\n"
+
+
 def render_csv(report: Report) -> str:
-    """All of the report's tables as CSV blocks: a title line, the header, the rows, a blank line."""
+    """The report as CSV: title, facts and caution, then each table as a block (see the module docstring)."""
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow([_safe_text(report.title)])
     for label, text in report.facts:
         writer.writerow([_safe_text(label), _safe_text(text)])
     writer.writerow([_safe_text(report.caution)])
-    writer.writerow([])
     for table in report.tables:
-        writer.writerow([_safe_text(table.title)])
+        out.write("\n")
+        out.write(_comment(f"table {table.key}: {table.title}" if table.key else f"table: {table.title}"))
+        for note in table.notes:
+            out.write(_comment(note))
         writer.writerow([_safe_text(c.title) for c in table.columns])
         for row in table.rows:
             writer.writerow([_csv_value(v) for v in row])
-        for note in table.notes:
-            writer.writerow([_safe_text(note)])
-        writer.writerow([])
     return out.getvalue()
 
 
@@ -71,7 +93,7 @@ def _text_cell(sheet, row: int, column: int, value: str):
 
 
 def render_xlsx(report: Report) -> bytes:
-    """The report as an XLSX workbook: a summary sheet (title, facts, notes, caution), then one sheet per table."""
+    """The report as an XLSX workbook: a summary sheet, then one sheet per table (headings in row 1)."""
     from openpyxl import Workbook
     from openpyxl.styles import Alignment, Font, PatternFill
 
@@ -91,26 +113,32 @@ def render_xlsx(report: Report) -> bytes:
     caution = _text_cell(summary, row + 1, 1, report.caution)
     caution.font = Font(bold=True, color="C0392B")
     caution.alignment = Alignment(wrap_text=True)
+    row += 3
     summary.column_dimensions["A"].width = 24
     summary.column_dimensions["B"].width = 90
     taken = {"summary"}
     for table in report.tables:
-        sheet = book.create_sheet(_sheet_name(table, taken))
-        _text_cell(sheet, 1, 1, table.title).font = Font(bold=True)
+        name = _sheet_name(table, taken)
+        _text_cell(summary, row, 1, f"sheet {name}").font = Font(bold=True)
+        _text_cell(summary, row, 2, table.title)
+        for note in table.notes:
+            row += 1
+            _text_cell(summary, row, 2, note)
+        row += 1
+        sheet = book.create_sheet(name)
         for j, column in enumerate(table.columns, start=1):
-            _text_cell(sheet, 2, j, column.title).font = Font(bold=True)
-            sheet.column_dimensions[sheet.cell(row=2, column=j).column_letter].width = max(12, len(column.title) + 2)
-        for i, values in enumerate(table.rows, start=3):
-            for j, (value, column) in enumerate(zip(values, table.columns), start=1):
+            _text_cell(sheet, 1, j, column.title).font = Font(bold=True)
+            sheet.column_dimensions[sheet.cell(row=1, column=j).column_letter].width = max(12, len(column.title) + 2)
+        sheet.freeze_panes = "A2"
+        for i, values in enumerate(table.rows):
+            for j, (value, column) in enumerate(zip(values, table.columns)):
                 if isinstance(value, str):
-                    cell = _text_cell(sheet, i, j, value)
+                    cell = _text_cell(sheet, i + 2, j + 1, value)
                     if column.style == "verdict" and value in _FILLS:
                         cell.fill = PatternFill("solid", fgColor=_FILLS[value])
                 elif value is not None:
-                    cell = sheet.cell(row=i, column=j, value=float(value) if not isinstance(value, bool) else value)
-                    cell.number_format = _NUMBER_FORMATS.get(column.style, "General")
-        for k, note in enumerate(table.notes):
-            _text_cell(sheet, len(table.rows) + 4 + k, 1, note)
+                    cell = sheet.cell(row=i + 2, column=j + 1, value=_number(value))
+                    cell.number_format = _NUMBER_FORMATS.get(table.style(i, j), "General")
     buffer = io.BytesIO()
     book.save(buffer)
     return buffer.getvalue()

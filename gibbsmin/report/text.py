@@ -12,7 +12,7 @@ from .numbers import format_cell
 def render_table(table: Table, width: int = 120) -> str:
     """A table with aligned columns: text left, numbers right; a last ``longtext`` column wraps."""
     header = [c.title for c in table.columns]
-    body = [[format_cell(v, c.style) for v, c in zip(row, table.columns)] for row in table.rows]
+    body = [[format_cell(v, table.style(i, j)) for j, v in enumerate(row)] for i, row in enumerate(table.rows)]
     wraps = bool(table.columns) and table.columns[-1].style == "longtext"
     widths = [max(len(h), *(len(r[i]) for r in body)) if body else len(h) for i, h in enumerate(header)]
     if wraps:

@@ -15,7 +15,8 @@ element potentials.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from typing import Literal
 
 import math
 
@@ -34,6 +35,11 @@ class Tolerances:
     element_balance: float = 1e-9     # max |A n - b| / max b
     stationarity: float = 1e-7        # max |mu_j/RT - a_j . pi|
     complementarity: float = 1e-7     # min over absent condensed of (mu0 - a . pi) >= -this
+
+
+#: What is known of whether the answer's gas is stable as one phase: "not tested" (an ideal gas, or a sweep),
+#: "screened" (far above every critical temperature present), "stable" or "unstable" (tangent-plane test).
+PhaseStability = Literal["not tested", "screened", "stable", "unstable"]
 
 
 @dataclass(frozen=True)
@@ -55,7 +61,11 @@ class Certificate:
         Which solver produced the answer.
     iterations : int
     certified : bool
-        All residuals within the tolerances.
+        All residuals within the tolerances, and the gas not found unstable
+        as one phase.
+    phase_stability : str
+        One of :data:`PhaseStability`; an "unstable" answer (a liquid-like
+        phase would form that the species set cannot hold) is never certified.
     """
 
     element_balance: float
@@ -65,13 +75,22 @@ class Certificate:
     solver: str
     iterations: int
     certified: bool
+    phase_stability: PhaseStability = "not tested"
+
+    def with_phase_stability(self, verdict: PhaseStability) -> Certificate:
+        """This certificate with the one-phase stability verdict of its answer (uncertified when unstable)."""
+        return replace(self, phase_stability=verdict, certified=self.certified and verdict != "unstable")
 
     def summary(self) -> str:
         verdict = "certified" if self.certified else "NOT certified"
         comp = "none absent" if np.isinf(self.complementarity) else f"{self.complementarity:.2e}"
+        stability = {"stable": "; one gas: stable (tangent-plane test)",
+                     "screened": "; one gas: stable (far above every critical temperature)",
+                     "unstable": "; one gas: NOT stable (a liquid-like phase would form; not the equilibrium)",
+                     }.get(self.phase_stability, "")
         return (f"{verdict} by {self.solver} in {self.iterations} iterations: "
                 f"element balance {self.element_balance:.1e}, stationarity {self.stationarity:.1e}, "
-                f"condensed-phase margin {comp}")
+                f"condensed-phase margin {comp}{stability}")
 
 
 @dataclass(frozen=True)

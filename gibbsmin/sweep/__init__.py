@@ -7,3 +7,4 @@ from .grid import grid as grid
 from .run import SweepOutput as SweepOutput
 from .run import run_sweep as run_sweep
 from .grid import axis_from_text as axis_from_text
+from .grid import axis_size as axis_size

@@ -4,11 +4,16 @@ from __future__ import annotations
 
 import argparse
 import io
+import math
 import sys
 
 from ..errors import InputError
 from ..report.files import write_atomic
-from .grid import SweepSpec, axis_from_text
+from .grid import SweepSpec, axis_from_text, axis_size, check_axis_names
+
+#: Above this many points a sweep runs only with --yes (at the 79,000 to 255,000 points/s of DEVELOPERS.md a
+#: million points take seconds; far larger grids are usually a typing slip in a step).
+LARGE_SWEEP = 1_000_000
 
 SWEEP_EXAMPLE = """\
 example:
@@ -22,6 +27,8 @@ The first stage of the case (fixed T and P) is solved at every point of the
 grid spanned by the --vary axes: T, P (with units), S/C (steam to hydrocarbon
 carbon; the case's steam is replaced) or a feed species' flow in mol/s.
 --out keeps Parquet chunks in a folder and resumes an interrupted run.
+T and P need a unit (T=650:950:25degC, not T=650:950:25).  Above
+1,000,000 points the sweep asks for --yes.
 """
 
 
@@ -36,6 +43,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--workers", type=int, default=1, help="local worker processes (default 1)")
     p.add_argument("--scheduler", metavar="ADDRESS", help="run the chunks on this Dask scheduler")
     p.add_argument("--chunk-size", type=int, default=5000, help="points per chunk (default 5000)")
+    p.add_argument("--yes", action="store_true", help=f"run a sweep of more than {LARGE_SWEEP:,} points")
 
 
 def spec_from_case(case, axes) -> SweepSpec:
@@ -57,7 +65,17 @@ def run(args: argparse.Namespace) -> int:
     from ..case import read_case
     from .run import run_sweep
 
+    sizes = [axis_size(text) for text in args.vary]
+    total = math.prod(sizes)
+    size_text = f"{total:,} points ({' x '.join(f'{n:,}' for n in sizes)})"
+    if total > LARGE_SWEEP and not args.yes:
+        raise InputError(f"this sweep spans {size_text}, more than {LARGE_SWEEP:,}: check the steps, or add --yes "
+                         "to run it")
+    if total > LARGE_SWEEP:
+        sys.stderr.write(f"gibbsmin sweep: {size_text}\n")
     case = read_case(args.case)
+    names = [text.partition("=")[0].strip() for text in args.vary]
+    check_axis_names(names, list(case.mixed_feed()))
     spec = spec_from_case(case, [axis_from_text(text) for text in args.vary])
     result = run_sweep(spec, args.out, chunk_size=args.chunk_size, workers=args.workers,
                        scheduler=args.scheduler, progress=sys.stderr.isatty())

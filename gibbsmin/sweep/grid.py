@@ -213,15 +213,12 @@ def grid(name: str, values: Sequence[float], unit: str = "", shown: Sequence[flo
 _RANGE = re.compile(r"^\s*([-+0-9.eE]+)\s*:\s*([-+0-9.eE]+)\s*:\s*([-+0-9.eE]+)\s*$")
 
 
-def axis_from_text(text: str) -> Axis:
-    """An axis from the command line's form: NAME=START:STOP:STEP[unit] or NAME=V1,V2,...[unit].
+#: The unit a bare number on a T or P axis would need, and examples of the fix.
+_UNIT_NEEDED = {"T": ("degC", "K"), "P": ("bar", "bar(g)")}
 
-    Examples: ``T=700:1000:25degC``, ``P=20,30,40bar``, ``P=25:35:5bar(g)``,
-    ``S/C=2:4:0.5``, ``CO2=0:0.2:0.05`` (a feed species, in the feed's basis).
-    The stop value is included when the steps reach it.
-    """
-    from ..units import to_kelvin, to_pascal
 
+def _read_axis(text: str) -> tuple[str, str, tuple[float, float, float] | None, list[float]]:
+    """Name, unit, (start, stop, step) of a range (or None) and the listed values of an axis's text."""
     name, sep, rest = text.partition("=")
     name = name.strip()
     if not sep or not name or not rest.strip():
@@ -231,27 +228,75 @@ def axis_from_text(text: str) -> Axis:
     if match is None:
         raise InputError(f"cannot read the values of axis {text!r}")
     numbers, unit = match.group(1), (match.group(2) or "").strip()
+    if name in _UNIT_NEEDED and not unit:
+        first, second = _UNIT_NEEDED[name]
+        raise InputError(f"axis {text!r} has no unit, and a bare number is ambiguous for {name}: give a unit, "
+                         f"e.g. {name}={numbers.strip()}{first} or {name}={numbers.strip()}{second}")
     ranged = _RANGE.match(numbers)
     try:
         parts = [float(v) for v in (ranged.groups() if ranged else numbers.split(","))]
     except ValueError:
         raise InputError(f"cannot read the numbers of axis {text!r}") from None
+    if not ranged:
+        return name, unit, None, parts
+    start, stop, step = parts
+    if step == 0 or (stop - start) / step < 0 or not math.isfinite((stop - start) / step):
+        raise InputError(f"axis {text!r}: the step must be non-zero and lead from start to stop")
+    return name, unit, (start, stop, step), []
+
+
+def _range_count(start: float, stop: float, step: float) -> int:
+    return int(math.floor((stop - start) / step + 1e-9)) + 1
+
+
+def axis_size(text: str) -> int:
+    """How many values an axis's text spans, without making them (a sweep's size is checked first)."""
+    _, _, ranged, listed = _read_axis(text)
+    return _range_count(*ranged) if ranged else len(listed)
+
+
+def axis_from_text(text: str) -> Axis:
+    """An axis from the command line's form: NAME=START:STOP:STEP[unit] or NAME=V1,V2,...[unit].
+
+    Examples: ``T=700:1000:25degC``, ``P=20,30,40bar``, ``P=25:35:5bar(g)``,
+    ``S/C=2:4:0.5``, ``CO2=0:0.2:0.05`` (a feed species, in the feed's basis).
+    The stop value is included when the steps reach it.  T and P need their
+    unit: a bare number is refused, as in a case file.
+    """
+    from ..units import to_kelvin, to_pascal
+
+    name, unit, ranged, shown = _read_axis(text)
     if ranged:
-        start, stop, step = parts
-        if step == 0 or (stop - start) / step < 0:
-            raise InputError(f"axis {text!r}: the step must be non-zero and lead from start to stop")
-        count = int(math.floor((stop - start) / step + 1e-9)) + 1
-        shown = [start + k * step for k in range(count)]
-    else:
-        shown = parts
+        start, _, step = ranged
+        shown = [start + k * step for k in range(_range_count(*ranged))]
     if name == "T":
-        unit = unit or "K"
         values = [to_kelvin(f"{v} {unit}") for v in shown]
     elif name == "P":
-        unit = unit or "Pa"
         values = [to_pascal(f"{v} {unit}") for v in shown]
     elif unit:
         raise InputError(f"axis {name} takes plain numbers (the ratio, or amounts in the feed's basis), not {unit!r}")
     else:
         values = shown
     return Axis(name, tuple(values), unit, tuple(shown))
+
+
+def check_axis_names(names: Sequence[str], feed: Sequence[str], db: SpeciesDatabase | None = None) -> None:
+    """Refuse an axis that is neither T, P, S/C nor a species, naming the axes there are and the closest."""
+    import difflib
+
+    from ..errors import UnknownSpeciesError
+
+    db = db or default_database()
+    for name in names:
+        if name in SPECIAL_AXES:
+            continue
+        try:
+            db[name]
+        except UnknownSpeciesError as unknown:
+            choices = {c.casefold(): c for c in (*SPECIAL_AXES, *feed)}
+            close = [choices[c] for c in difflib.get_close_matches(name.casefold(), list(choices), n=3, cutoff=0.6)]
+            close = list(dict.fromkeys(close + unknown.suggestions))[:4]
+            hint = f"; did you mean {', '.join(close)}?" if close else ""
+            raise InputError(
+                f"unknown sweep axis {name!r}: an axis is T (with a unit), P (with a unit), S/C, or the amount of a "
+                f"species (the feed's: {', '.join(feed)}){hint}") from None

@@ -138,6 +138,19 @@ class SpeciesDatabase:
         return found
 
 
+    def close_matches(self, text: str, n: int = 4) -> list[str]:
+        """Species whose name or an alias is spelled close to ``text`` (any case), as "NH3 (ammonia)" or "NH3"."""
+        import difflib
+
+        spellings: dict[str, str] = {}
+        for record in self:
+            spellings.setdefault(record.name.casefold(), record.name)
+            for alias in record.aliases:
+                spellings.setdefault(alias.casefold(), f"{record.name} ({alias})")
+        close = difflib.get_close_matches(text.casefold(), list(spellings), n=n, cutoff=0.6)
+        return list(dict.fromkeys(spellings[c] for c in close))
+
+
 def nasa7_table(records: Sequence[SpeciesRecord]) -> Nasa7Table:
     """The polynomial table of records, in their order."""
     if not records:
