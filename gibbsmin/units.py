@@ -56,7 +56,9 @@ __all__ = [
     "STANDARD_US_GAS",
     "to_kelvin",
     "from_kelvin",
+    "parse_temperature",
     "to_pascal",
+    "parse_pressure",
     "from_pascal",
     "to_mol_s",
     "from_mol_s",
@@ -318,6 +320,41 @@ def from_kelvin(T: float, unit: str) -> float:
     return float(Quantity(T, "kelvin").to(_temperature_unit(unit, unit)).magnitude)
 
 
+def _unit_required(value: object, what: str, fix: str) -> None:
+    """Refuse a number, or a text that is only a number, where an engineer typed ``what``: say how to write it."""
+    if isinstance(value, bool) or isinstance(value, pint.Quantity):
+        return  # true/false is refused by the converter; a Quantity carries its unit
+    if isinstance(value, numbers.Real):
+        number = value
+    elif isinstance(value, str):
+        match = _NUMBER.match(value.translate(_SUPERSCRIPTS))
+        if match is None or match.group(2):
+            return
+        number = float(match.group(1))
+    else:
+        return
+    shown = f"{number:g}" if isinstance(number, float) and math.isfinite(number) else repr(number)
+    raise InputError(f"{what} {value.strip() if isinstance(value, str) else value!r} has no unit; "
+                     f"{fix.format(shown)}")
+
+
+def parse_temperature(value: str | pint.Quantity | float) -> float:
+    """A temperature an engineer typed (case file, command line), [K]: the unit is required.
+
+    ``"850 degC"``, ``"1123.15 K"``, ``"1562 degF"`` are read as :func:`to_kelvin`
+    reads them; a bare number (``850`` or ``"850"``) is refused with the fix,
+    because 850 may mean degC as easily as K.  The API's floats in K stay with
+    :func:`to_kelvin`.
+
+    Examples
+    --------
+    >>> parse_temperature("850 degC")
+    1123.15
+    """
+    _unit_required(value, "temperature", "a bare number is not taken as kelvin: write e.g. '{0} degC' or '{0} K'")
+    return to_kelvin(value)
+
+
 # --- pressure -------------------------------------------------------------------------------------
 
 
@@ -401,6 +438,21 @@ def from_pascal(P: float, unit: str, *, atmosphere: float = STANDARD_ATMOSPHERE)
     """An absolute pressure [Pa] in ``unit``; gauge units (``"bar(g)"``, ``"psig"``) subtract ``atmosphere`` [Pa]."""
     parsed, gauge = _pressure_unit(unit, unit)
     return float(Quantity(P - atmosphere if gauge else P, "pascal").to(parsed).magnitude)
+
+
+def parse_pressure(value: str | pint.Quantity | float, *, atmosphere: float = STANDARD_ATMOSPHERE) -> float:
+    """An absolute pressure an engineer typed (case file, command line), [Pa]: the unit is required.
+
+    Read as :func:`to_pascal` reads it; a bare number (``30`` or ``"30"``) is
+    refused with the fix (gauge or absolute, bar or MPa?).
+
+    Examples
+    --------
+    >>> parse_pressure("30 bar(g)")
+    3101325.0
+    """
+    _unit_required(value, "pressure", "write it with one, e.g. '{0} bar(g)' (gauge) or '{0} bar' (absolute)")
+    return to_pascal(value, atmosphere=atmosphere)
 
 
 # --- flows --------------------------------------------------------------------------------------

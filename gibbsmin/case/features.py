@@ -53,6 +53,7 @@ KEY_NEEDS: dict[str, str] = {
     "conditions.heat_loss": "energy",
     "conditions.heat_input": "energy",
     "conditions.T_in": "energy",
+    "conditions.duty": "energy",
     "conditions.approach": "approach",
     "conditions.gas": "gas",
     "curve": "energy",

@@ -13,6 +13,7 @@ from ..streams import CARBON_BASES, Stream
 from ..thermo import DATA_SETS, SpeciesDatabase, default_database
 from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal, to_fraction
 from .features import missing
+from .services import SERVICES
 from .spec import CASE_KEYS, Case, CurveSpec, Feed, ReportSpec, SpeciesSpec, Stage
 from .toml import CaseError, NotAvailableError, Section, TomlSource, kind
 from .values import (
@@ -35,6 +36,7 @@ _TABLES = ("case", "feed", "conditions", "stage", "species", "curve", "report")
 _FEED_SETTINGS = tuple(k for k in CASE_KEYS["feed"] if not k.startswith("<"))
 _STAGE_KEYS = tuple(CASE_KEYS["conditions"])
 _GAS_MODELS = ("ideal", "peng-robinson", "srk")
+STAGE_TYPES = ("reactor", "heater", "cooler", "knock-out")
 
 
 def read_case(path: str | os.PathLike[str], db: SpeciesDatabase | None = None) -> Case:
@@ -58,7 +60,7 @@ def _read(source: TomlSource, db: SpeciesDatabase | None) -> Case:
         head.finish(tuple(CASE_KEYS["case"]))
     feeds = _read_feeds(root, normal, db)
     species = _read_species(root.section("species"), db)
-    stages = _read_stages(root)
+    stages = _read_stages(root, db)
     curve = _read_curve(root, db)
     report = _read_report(root.section("report"), db)
     root.finish(_TABLES)
@@ -224,9 +226,7 @@ def _read_species(section: Section | None, db: SpeciesDatabase) -> SpeciesSpec:
     if section is None:
         return SpeciesSpec()
 
-    def names(value: object) -> tuple[str, ...]:
-        return tuple(db[name].name for name in read_names(value))
-
+    names = _names_in(db)
     spec = SpeciesSpec(
         only=section.get("only", names, None),
         exclude=section.get("exclude", names, ()),
@@ -237,7 +237,7 @@ def _read_species(section: Section | None, db: SpeciesDatabase) -> SpeciesSpec:
     return spec
 
 
-def _read_stages(root: Section) -> tuple[Stage, ...]:
+def _read_stages(root: Section, db: SpeciesDatabase) -> tuple[Stage, ...]:
     single = root.section("conditions")
     many = root.sections("stage")
     if single is not None and many:
@@ -245,24 +245,22 @@ def _read_stages(root: Section) -> tuple[Stage, ...]:
     if single is None and not many:
         raise root.error(None, "needs a [conditions] table with T and P (or [[stage]] tables)")
     sections = [single] if single is not None else many
-    return tuple(_read_stage(s, i, len(sections)) for i, s in enumerate(sections))
+    return tuple(_read_stage(s, i, len(sections), db) for i, s in enumerate(sections))
 
 
-def _read_stage(section: Section, index: int, count: int) -> Stage:
-    for key in ("adiabatic", "heat_loss", "heat_input", "T_in"):
+def _read_stage(section: Section, index: int, count: int, db: SpeciesDatabase) -> Stage:
+    for key in ("adiabatic", "heat_loss", "heat_input", "T_in", "duty"):
         if key in section:
             _need(section, key, "energy")
+    kind = section.get("type", choice(*STAGE_TYPES), "reactor")
+    if kind != "reactor":
+        return _read_exchanger(section, index, count, kind)
+    if "duty" in section:
+        raise section.error("duty", "goes with type = 'heater', 'cooler' or 'knock-out'; a reactor takes "
+                            "adiabatic = true with heat_input or heat_loss")
     if "approach" in section:
         _need(section, "approach", "approach")
-    gas = section.get("gas", choice(*_GAS_MODELS), "ideal")
-    if gas != "ideal":
-        _need(section, "gas", "gas")
-    kij = section.get("kij", choice("shipped", "none"), "shipped")
-    for key in ("kij", "kij_pairs"):
-        if key in section and gas == "ideal":
-            raise section.error(key, f"{key} only goes with a cubic gas model: add gas = 'peng-robinson' (or "
-                                f"'srk'), or remove {key}")
-    kij_pairs = _read_kij_pairs(section)
+    gas_model = _read_gas_model(section)
     adiabatic = section.get("adiabatic", read_bool, False)
     if adiabatic and "T" in section:
         raise section.error("T", "an adiabatic stage finds its own outlet temperature; remove T or adiabatic")
@@ -270,7 +268,7 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
     P = section.get("P", read_pressure, hint="e.g. P = '30 bar(g)'")
     if "heat_loss" in section and "heat_input" in section:
         raise section.error("heat_loss", "give heat_loss or heat_input, not both")
-    heat = section.get("heat_input", read_power, 0.0) - section.get("heat_loss", read_power, 0.0)
+    heat = section.get("heat_input", read_power, 0.0) - section.get("heat_loss", read_heat_loss, 0.0)
     if not adiabatic:
         for key in ("heat_input", "heat_loss"):
             if key in section:
@@ -284,14 +282,83 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
         for reaction in table.keys():
             approach[reaction] = table.get(reaction, read_temperature_difference)
             _check_reaction(table, reaction, reaction)
+    if "service" in section and "reactions" in section:
+        raise section.error("reactions", "give service (its reactions) or reactions (your own), not both")
+    service = section.get("service", choice(*SERVICES), None)
+    reactions = section.get("reactions", read_names, None)
+    for reaction in reactions or ():
+        _check_reaction(section, "reactions", reaction)
+    if reactions == ():
+        raise section.error("reactions", "is empty; a stage where nothing reacts is type = 'cooler' (or 'heater')")
     stage = Stage(
-        name=section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}"),
+        name=_stage_name(section, index, count),
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
-        approach=approach, gas=gas, kij=kij, kij_pairs=kij_pairs, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
+        approach=approach, **gas_model, method=_read_method(section), service=service, reactions=reactions,
+        frozen=section.get("frozen", _names_in(db), ()), data=section.get("data", choice(*DATA_SETS), None),
+    )
+    section.finish(_STAGE_KEYS)
+    return stage
+
+
+def _stage_name(section: Section, index: int, count: int) -> str:
+    return section.get("name", read_text, "outlet" if count == 1 else f"stage {index + 1}")
+
+
+def _read_method(section: Section) -> str:
+    return section.get("method", choice("auto", "newton", "convex"), "auto")
+
+
+def _names_in(db: SpeciesDatabase) -> Callable[[object], tuple[str, ...]]:
+    def names(value: object) -> tuple[str, ...]:
+        return tuple(db[name].name for name in read_names(value))
+    return names
+
+
+#: The one direction of heat each non-reacting stage type takes (+1 heats, -1 cools).
+_HEAT_DIRECTION = {"heater": 1.0, "cooler": -1.0, "knock-out": -1.0}
+
+
+def _read_exchanger(section: Section, index: int, count: int, kind: str) -> Stage:
+    """A heater, cooler or knock-out: outlet T or duty, pressure; nothing reacts, so no reaction keys."""
+    for key in ("adiabatic", "heat_loss", "heat_input", "approach", "service", "reactions", "frozen"):
+        if key in section:
+            raise section.error(key, f"only goes with type = 'reactor'; nothing reacts in a {kind} (every species "
+                                "keeps its flow" + (", water may condense)" if kind == "knock-out" else ")"))
+    if ("T" in section) == ("duty" in section):
+        raise section.error(None, f"a {kind} needs either its outlet T (e.g. T = '40 degC') or its duty "
+                            "(e.g. duty = '-12 MW'), not both")
+    gas_model = _read_gas_model(section)
+    duty = section.get("duty", read_power, None)
+    direction = _HEAT_DIRECTION[kind]
+    if duty is not None and duty * direction < 0.0:
+        size = str(section.data["duty"]).strip().removeprefix("-").strip()
+        fix = f"duty = '-{size}'" if direction < 0 else f"duty = '{size}'"
+        raise section.error("duty", f"a {kind} {'removes' if direction < 0 else 'adds'} heat, so its duty is "
+                            f"{'negative' if direction < 0 else 'positive'} (heat added); write {fix}"
+                            + (", or type = 'heater'" if direction < 0 else ", or type = 'cooler'"))
+    if "T_in" in section:
+        raise section.error("T_in", f"a {kind} takes the previous outlet as it is; give its own outlet T instead")
+    stage = Stage(
+        name=_stage_name(section, index, count),
+        T=section.get("T", read_temperature, None), P=section.get("P", read_pressure, hint="e.g. P = '30 bar(g)'"),
+        line=section.source.line(section.path), **gas_model, method=_read_method(section), type=kind, duty=duty,
         data=section.get("data", choice(*DATA_SETS), None),
     )
     section.finish(_STAGE_KEYS)
     return stage
+
+
+def _read_gas_model(section: Section) -> dict[str, object]:
+    """The stage's gas model, kij choice and own kij pairs, as Stage's keyword arguments."""
+    gas = section.get("gas", choice(*_GAS_MODELS), "ideal")
+    if gas != "ideal":
+        _need(section, "gas", "gas")
+    kij = section.get("kij", choice("shipped", "none"), "shipped")
+    for key in ("kij", "kij_pairs"):
+        if key in section and gas == "ideal":
+            raise section.error(key, f"{key} only goes with a cubic gas model: add gas = 'peng-robinson' (or "
+                                f"'srk'), or remove {key}")
+    return {"gas": gas, "kij": kij, "kij_pairs": _read_kij_pairs(section)}
 
 
 def _read_kij_pairs(section: Section) -> dict[tuple[str, str], float]:
@@ -318,6 +385,16 @@ def _read_kij_pairs(section: Section) -> dict[tuple[str, str], float]:
             raise table.error(key, "names one species twice; k_ii is zero by definition")
         pairs[(records[0].name, records[1].name)] = value
     return pairs
+
+
+def read_heat_loss(value: object) -> float:
+    """A heat loss, [W]: heat leaving the stage, so zero or positive; a negative one would silently be a gain."""
+    loss = read_power(value)
+    if loss < 0.0:
+        size = str(value).strip().removeprefix("-").strip()
+        raise InputError(f"{value!r} is negative, but a loss is heat leaving the stage; write heat_loss = "
+                         f"'{size}' for a loss, or heat_input = '{size}' if the stage gains heat")
+    return loss
 
 
 def read_kij_value(value: object) -> float:
@@ -399,7 +476,7 @@ def _check_listed(section: Section, key: str, reactions: tuple[str, ...]) -> Non
 def _check_energy_inputs(root: Section, case: Case) -> None:
     """An energy balance needs every feed's temperature: say which feed lacks one, at read time."""
     first = case.stages[0]
-    needs_energy = first.adiabatic or case.curve is not None
+    needs_energy = first.adiabatic or first.duty is not None or case.curve is not None
     if needs_energy and not case.feed_temperatures_known:
         feed = next(f for f in case.feeds if not f.T_given)
         raise CaseError(case.source, feed.line, f"feed.{feed.name}" if len(case.feeds) > 1 else "feed",

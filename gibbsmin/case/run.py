@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
+import dataclasses
 import math
+import warnings
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
@@ -10,10 +12,12 @@ import numpy as np
 import scipy.optimize
 
 from ..equilibrium import Equilibrium
-from ..errors import ConvergenceError, GibbsminError, UnknownSpeciesError
+from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
 from ..settle import equilibrate
 from ..thermo import SpeciesDatabase, choose_database, default_database
+from ..units import from_mol_s
 from .features import FEATURES
+from .scope import LIQUID_WATER, StageScope, possible_condensates, stage_scope
 from .spec import Case, CurveSpec, Stage
 from .toml import CaseError
 
@@ -45,11 +49,20 @@ class Inlet:
 
 @dataclass(frozen=True)
 class StageResult:
-    """One stage: its specification, its inlet, and its equilibrium (``extras`` hold duty and approaches)."""
+    """One stage: its specification, its inlet, its equilibrium (``extras`` hold duty and approaches) and what
+    it let change (``scope``: the species set, the species held, the reactions allowed)."""
 
     stage: Stage
     inlet: Inlet
     equilibrium: Equilibrium
+    scope: StageScope | None = None
+
+    @property
+    def outlet(self) -> dict[str, float]:
+        """What leaves for the next stage, species to mol/s: a knock-out's vapour, any other stage's whole outlet."""
+        eq = self.equilibrium
+        return {s: n for s, n in eq.amounts.items()
+                if n > 0.0 and (self.stage.type != "knock-out" or eq.phase_of[s] == "gas")}
 
     @property
     def duty_W(self) -> float | None:
@@ -106,14 +119,16 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         if stage.T_in is not None:
             inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
         try:
-            eq = _settle_stage(case, stage, inlet, choose_database(stage.data, given))
+            stage_db = choose_database(stage.data, given)
+            scope = stage_scope(case, stage, inlet.mixed, stage_db)
+            eq = _settle_stage(case, stage, scope, inlet, stage_db)
         except ConvergenceError:
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
             raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
-        results.append(StageResult(stage, inlet, eq))
-        inlet = Inlet({"outlet of " + stage.name: {s: n for s, n in eq.amounts.items() if n > 0.0}},
-                      {"outlet of " + stage.name: eq.T})
+        result = StageResult(stage, inlet, eq, scope)
+        results.append(result)
+        inlet = Inlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -122,25 +137,69 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     return CaseResult(case, tuple(results), curve)
 
 
-def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
-    species = case.species
+def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
+    if not stage.reacts:
+        _check_heat_direction(stage, inlet)
     energy = {}
     if FEATURES["energy"].available() and inlet.temperatures_known:
-        energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic, "heat_input": stage.heat_input}
+        heat = stage.heat_input if stage.duty is None else stage.duty
+        energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
+                  "heat_input": heat}
     if stage.gas != "ideal":
         energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
         energy["kij"] = stage.interactions
     feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
+    common = {"species": scope.species, "exclude": scope.exclude, "method": stage.method, "db": db,
+              "allow_extrapolation": case.species.allow_extrapolation, **energy}
     if stage.approach:
         from ..restricted import equilibrate_with_approach
 
-        return equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach),
-                                         frozen=list(species.frozen) or None, species=species.only,
-                                         exclude=species.exclude, method=stage.method, db=db,
-                                         allow_extrapolation=species.allow_extrapolation, **energy)
-    return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
-                       inert=species.frozen, method=stage.method, db=db,
-                       allow_extrapolation=species.allow_extrapolation, **energy)
+        eq = equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach), frozen=list(scope.held) or None,
+                                       **common)
+    else:
+        eq = equilibrate(feed, stage.T, stage.P, inert=scope.held, **common)
+    if stage.type in ("heater", "cooler"):
+        _check_no_condensate(case, stage, scope, eq, db)
+    extras = {**eq.extras, "stage": scope.to_dict()}
+    if stage.type == "knock-out":
+        others = possible_condensates(eq.amounts, eq.T, db)
+        if others:
+            note = (f"{', '.join(others)} may condense in a real drum at {eq.T - 273.15:.1f} degC; this knock-out "
+                    "condenses water alone (no liquid solution is modelled), so the vapour shown holds all of it")
+            warnings.warn(f"{stage.name}: {note}", stacklevel=3)
+            extras["condensables_not_modelled"] = note
+    return dataclasses.replace(eq, extras=extras)
+
+
+def _check_heat_direction(stage: Stage, inlet: Inlet) -> None:
+    """A cooler (or knock-out) whose outlet is hotter than its inlet, or a heater that cools, is a typing slip."""
+    if stage.T is None or not inlet.temperatures_known:
+        return
+    temperatures = [T for T in inlet.temperatures.values() if T is not None]
+    heats = stage.type == "heater"
+    if (heats and stage.T < min(temperatures)) or (not heats and stage.T > max(temperatures)):
+        inlet_T = min(temperatures) if heats else max(temperatures)
+        raise InputError(f"a {stage.type}'s outlet ({stage.T - 273.15:.2f} degC) is {'colder' if heats else 'hotter'} "
+                         f"than its inlet ({inlet_T - 273.15:.2f} degC); check T, or make it type = "
+                         f"'{'cooler' if heats else 'heater'}'")
+
+
+def _check_no_condensate(case: Case, stage: Stage, scope: StageScope, eq: Equilibrium, db: SpeciesDatabase) -> None:
+    """A heater or cooler keeps its gas as it is: refuse an outlet below the water dew point (the enthalpy of the
+    supersaturated gas would leave out the condensation heat)."""
+    if "H2O" not in eq.amounts:
+        return
+    model = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    probe = equilibrate(eq.amounts, eq.T, eq.P, species=[*scope.species, LIQUID_WATER],
+                        inert=[s for s in scope.held if s != "H2O"], db=db,
+                        allow_extrapolation=case.species.allow_extrapolation, **model)
+    liquid = probe.condensed.get(LIQUID_WATER, 0.0)
+    if liquid > _NEGLIGIBLE * sum(eq.amounts.values()):
+        unit = case.report.flow_unit
+        shown = from_mol_s(liquid, unit, molar_mass=db["H2O"].molar_mass)
+        raise InputError(f"water condenses at this {stage.type}'s outlet ({shown:.4g} {unit} of liquid at "
+                         f"{eq.T - 273.15:.2f} degC), and a {stage.type} keeps the gas as it is; make it "
+                         "type = 'knock-out' to take the condensate out, or keep the outlet above the dew point")
 
 
 def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase, gas: str = "ideal",
@@ -198,6 +257,8 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
         values.append(_curve_value(spec, eq.amounts, feed, db))
     lines = []
     for k, result in enumerate(results):
+        if not result.stage.reacts:
+            continue  # composition fixed: the next stage's cooling line spans it
         T_line, v_line = _operating_line(result, spec, feed, db)
         if k > 0 and lines:
             # The cooler between stages: composition fixed, temperature from one outlet to the next inlet.

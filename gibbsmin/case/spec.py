@@ -67,6 +67,17 @@ class Stage:
         The engineer's own k_ij by species pair, over the ``kij`` table.
     method : str
         Solver.
+    type : str
+        "reactor" (reacts to equilibrium, or as ``service`` / ``reactions`` allow), "heater" and
+        "cooler" (composition unchanged), "knock-out" (only water condenses; the liquid is drawn off).
+    service : str or None
+        A reactor's service (:data:`gibbsmin.case.services.SERVICES`), which sets its reactions.
+    reactions : tuple of str or None
+        Reactions that may proceed (None: every reaction of the species set).
+    frozen : tuple of str
+        Species held at their inlet flow in this stage (besides the case's frozen species).
+    duty : float or None
+        Heat added to a heater, cooler or knock-out instead of its outlet T, [W] (negative: removed).
     data : str or None
         The thermochemical data set by name; None for the engine's default.
     """
@@ -83,7 +94,17 @@ class Stage:
     kij: str = "shipped"
     kij_pairs: Mapping[tuple[str, str], float] = field(default_factory=dict)
     method: str = "auto"
+    type: str = "reactor"
+    service: str | None = None
+    reactions: tuple[str, ...] | None = None
+    frozen: tuple[str, ...] = ()
+    duty: float | None = None
     data: str | None = None
+
+    @property
+    def reacts(self) -> bool:
+        """Whether the stage is a reactor (heaters, coolers and knock-outs keep every species' amount)."""
+        return self.type == "reactor"
 
     @property
     def interactions(self):
@@ -186,9 +207,11 @@ CASE_KEYS: dict[str, dict[str, str]] = {
                 "(mol%, fraction, ppmv)",
         "<species>": "flow or composition of a species, e.g. CH4 = 950.0, or with its own unit: "
                      "H2O = \"52 t/h\"",
-        "total": "total flow when the species are a composition, e.g. '25000 Nm3/h'",
+        "total": "total flow when the species are a composition, e.g. '25000 Nm3/h'; with basis = 'dry' the "
+                 "dry gas flow (steam from steam_to_carbon or steam_rate comes on top), with water_content the "
+                 "wet flow including that water",
         "basis": "'wet' (default) or 'dry': a dry analysis leaves water out",
-        "water_content": "with basis = 'dry': water in the wet stream, e.g. '2 mol%'",
+        "water_content": "with basis = 'dry': water in the wet stream, e.g. '2 mol%' (total is then the wet flow)",
         "normalize": "true to scale a composition that does not sum to 100 %",
         "steam_to_carbon": "add steam up to this S/C ratio [mol H2O per mol C]",
         "steam_rate": "add this much steam, e.g. '52 t/h'",
@@ -198,11 +221,12 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "<name>": "sub-tables [feed.<name>] with the keys above: several feeds, mixed at the inlet",
     },
     "conditions": {
-        "T": "outlet temperature, e.g. '850 degC' (not with adiabatic)",
+        "T": "outlet temperature with its unit, e.g. '850 degC' or '1123.15 K' (not with adiabatic; a bare "
+             "number is refused)",
         "P": "pressure, e.g. '30 bar(g)', '31 bar', '450 psia'",
         "adiabatic": "true: the outlet temperature follows from the energy balance",
-        "heat_loss": "with adiabatic: heat lost, e.g. '0.5 MW'",
-        "heat_input": "with adiabatic: heat added, e.g. '85 MW'",
+        "heat_loss": "with adiabatic: heat lost, e.g. '0.5 MW' (zero or positive; a gain is a heat_input)",
+        "heat_input": "with adiabatic: heat added, e.g. '85 MW' (negative: removed)",
         "T_in": "stages after the first: temperature the previous outlet is cooled or heated to",
         "approach": "table of reaction = temperature approach, e.g. \"steam methane reforming\" = '10 K' "
                     "(positive: short of equilibrium)",
@@ -214,6 +238,18 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
                 "re-anchored to the Active Thermochemical Tables at 298.15 K)",
         "name": "a name for the stage in the report",
+        "type": "what the stage is: 'reactor' (default; settles to equilibrium as its reactions allow), "
+                "'heater' or 'cooler' (composition unchanged; T or duty), 'knock-out' (cooled to T: only water "
+                "condenses, as pure liquid; the liquid is drawn off and the next stage takes the vapour)",
+        "service": "a reactor's service, which sets the reactions allowed and so the species set: 'HT shift', "
+                   "'LT shift', 'methanation', 'ammonia synthesis', 'methanol synthesis' (the report states "
+                   "the set; not with reactions)",
+        "reactions": "reactions that may proceed in this reactor, e.g. ['water-gas shift']; every other "
+                     "species keeps its inlet flow, no other species forms (default: every reaction of the "
+                     "species set)",
+        "frozen": "species held at their inlet flow in this stage, e.g. ['CH4'] (besides [species] frozen)",
+        "duty": "a heater, cooler or knock-out: heat added instead of the outlet T, e.g. '-12.5 MW' "
+                "(negative: removed)",
     },
     "stage": {"(keys of [conditions])": "[[stage]] tables, one per stage in order, each taking the last outlet"},
     "species": {

@@ -91,6 +91,17 @@ def _scan_lines(text: str) -> Iterator[tuple[int, str, int]]:
         yield number, "".join(out), start_depth
 
 
+def _deepest_line(text: str) -> int | None:
+    """The line on which the bracket depth (outside strings and comments) is greatest."""
+    deepest, line_of = 0, None
+    for number, line, depth in _scan_lines(text):
+        for ch in line:
+            depth += 1 if ch in "[{" else -1 if ch in "]}" else 0
+            if depth > deepest:
+                deepest, line_of = depth, number
+    return line_of
+
+
 def _first_equals(line: str) -> int | None:
     """Position of the first '=' outside quotes (a quoted key may hold '=')."""
     quote = None
@@ -135,6 +146,10 @@ class TomlSource:
             self.data = tomllib.loads(text)
         except tomllib.TOMLDecodeError as exc:
             raise CaseError(name, None, "", f"is not valid TOML: {exc}") from None
+        except RecursionError:
+            # tomllib reads nested arrays and inline tables recursively; thousands of levels exhaust the stack.
+            raise CaseError(name, _deepest_line(text), "", "nests arrays or inline tables too deeply to read (a case "
+                            "file needs a few levels); check for unclosed or repeated brackets") from None
         self._lines: dict[_KeyPath, int] = {}
         self._index_lines(text)
 

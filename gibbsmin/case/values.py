@@ -17,9 +17,9 @@ from ..units import (
     Quantity,
     ReferenceConditions,
     from_mol_s,
+    parse_pressure,
+    parse_temperature,
     to_fraction,
-    to_kelvin,
-    to_pascal,
 )
 from .toml import kind
 
@@ -83,15 +83,13 @@ def _quantity(value: object, what: str, example: str) -> pint.Quantity:
 
 
 def read_temperature(value: object) -> float:
-    """An absolute temperature, [K]: '850 degC', '1123 K', or a number of K."""
-    return to_kelvin(value)
+    """An absolute temperature, [K]: '850 degC', '1123.15 K'; bare numbers are refused (degC or K?)."""
+    return parse_temperature(value)
 
 
 def read_pressure(value: object) -> float:
     """An absolute pressure, [Pa]: '30 bar(g)', '31 bara', '3.1 MPa'; bare numbers are refused (bar or bar(g)?)."""
-    if isinstance(value, numbers.Real) and not isinstance(value, bool):
-        raise InputError(f"{value!r} has no unit; write the pressure with one, e.g. '30 bar(g)' or '31 bar'")
-    return to_pascal(value)
+    return parse_pressure(value)
 
 
 _DIFFERENCE_UNITS = {"K": "kelvin", "kelvin": "kelvin", "degC": "kelvin", "C": "kelvin", "°C": "kelvin",

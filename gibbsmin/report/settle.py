@@ -128,6 +128,26 @@ def _enthalpies_text(result: CaseResult) -> str:
             "the outlet at its own)")
 
 
+# --- what each stage let change (case stage types and services) ---------------------------------------
+
+
+def scope_table(result: CaseResult) -> Table | None:
+    """Per stage: its type, the reactions it allowed, the species it held, and on what basis; None when every
+    stage is a full equilibrium over the case's species set."""
+    scopes = [(s.stage.name, s.scope) for s in result.stages if s.scope is not None]
+    if not any(scope.restricted for _, scope in scopes):
+        return None
+    rows = tuple((name, scope.type, scope.changes, ", ".join(scope.held) or "-") for name, scope in scopes)
+    notes = tuple(f"{name}: {scope.basis}" for name, scope in scopes)
+    return Table("What each stage lets react", (Column("stage", "text"), Column("type", "text"),
+                                                Column("reactions allowed", "text"),
+                                                Column("held at inlet flow", "longtext")), rows, notes, key="scope")
+
+
+def _optional(table: Table | None) -> list[Table]:
+    return [] if table is None else [table]
+
+
 def certificate_table(result: CaseResult) -> Table:
     rows = []
     for stage in result.stages:
@@ -347,7 +367,8 @@ def settle_report(result: CaseResult) -> Report:
     mixed = mixed_steam_to_carbon(case)
     if mixed is not None:
         facts.append(("feeds mixed", mixed))
-    tables = [stages_table(result), stream_table(result), *(stage_table(s, spec) for s in result.stages)]
+    tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
+              *(stage_table(s, spec) for s in result.stages)]
     optional = [
         approach_table(result) if FEATURES["reactions"].available() else None,
         kp_table(result) if FEATURES["reactions"].available() else None,

@@ -49,9 +49,12 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 def spec_from_case(case, axes) -> SweepSpec:
     """The sweep of a case's first stage along ``axes``."""
     stage = case.stages[0]
-    if stage.T is None or stage.adiabatic or stage.approach:
+    # A sweep settles a full equilibrium; a stage type, service, reactions or frozen would be silently dropped.
+    restricted = not stage.reacts or stage.service or stage.reactions is not None or stage.frozen
+    if stage.T is None or stage.adiabatic or stage.approach or restricted:
         raise InputError(f"{case.source}: a sweep runs the first stage at fixed T and P; "
-                         "stage " + repr(stage.name) + " asks for more (adiabatic or approach)")
+                         "stage " + repr(stage.name) + " asks for more (adiabatic, approach, a type, service, "
+                         "reactions or frozen)")
     return SweepSpec(feed=case.mixed_feed(), T=stage.T, P=stage.P, axes=tuple(axes),
                      species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
                      method=stage.method, gas=stage.gas, kij=stage.kij,
