@@ -23,6 +23,12 @@ from .solve import SOLVERS, SolverResult, solve
 from .system import Problem, System, reduce, select_species, standard_mu0
 from .thermo.database import SpeciesDatabase, default_database
 
+#: The total feed amounts accepted, [mol].  The answer does not depend on the total, and far beyond
+#: these the element totals, G/RT and the enthalpies leave the range of floating-point numbers
+#: (a total of 1e308 mol overflows its hydrogen count); within them every solve keeps a margin of
+#: more than 1e100 on either side.
+FEED_TOTAL_RANGE = (1e-100, 1e100)
+
 #: Beyond this stationarity residual an uncertified answer is refused rather than returned with a warning.
 _USABLE_STATIONARITY = 1e-4
 
@@ -72,8 +78,15 @@ def check_feed(feed: object, db: SpeciesDatabase) -> dict[str, float]:
         if amount < 0:
             raise InputError(f"feed amount of {name} is negative ({amount}); amounts must be zero or positive")
         amounts[record.name] = amounts.get(record.name, 0.0) + float(amount)
-    if sum(amounts.values()) <= 0.0:
+    total = sum(amounts.values())
+    if total <= 0.0:
         raise InputError("every feed amount is zero; give at least one species a positive amount")
+    low, high = FEED_TOTAL_RANGE
+    if not low <= total <= high:
+        raise InputError(
+            f"the feed totals {total:g} mol, outside the {low:g} to {high:g} mol that can be computed; "
+            "scale the feed, e.g. to fractions that sum to one (the equilibrium composition does not depend "
+            "on the total)")
     return amounts
 
 
