@@ -54,3 +54,39 @@ def test_zero_mol_percent_in_a_case_file_settles(tmp_path, capsys):
     assert main(["settle", str(case), "--json"]) == 0
     out = capsys.readouterr().out
     assert '"Ar"' in out and "duty" in out
+
+
+def test_import_without_any_writable_numba_cache_folder_warns_and_works(tmp_path):
+    """A read-only install with no writable home: numba's cache=True used to fail at import."""
+    import os
+    import shutil
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    package = Path(gibbsmin.__file__).resolve().parent
+    copy = tmp_path / "site" / "gibbsmin"
+    shutil.copytree(package, copy, ignore=shutil.ignore_patterns("__pycache__"))
+    # A regular file where a folder is wanted blocks writing even for root (chmod would not).
+    for kernel_folder in ("solve",):
+        (copy / kernel_folder / "__pycache__").write_text("not a folder")
+    blocker = tmp_path / "blocker"
+    blocker.write_text("not a folder")
+    env = {k: v for k, v in os.environ.items() if not k.startswith(("NUMBA_", "XDG_"))}
+    env.update(PYTHONPATH=str(tmp_path / "site"), HOME=str(blocker), NUMBA_CACHE_DIR=str(blocker / "numba"),
+               PYTHONDONTWRITEBYTECODE="1")
+    script = (
+        "import warnings, numpy as np\n"
+        "with warnings.catch_warnings(record=True) as caught:\n"
+        "    warnings.simplefilter('always')\n"
+        "    import gibbsmin\n"
+        "    from gibbsmin.solve import certificate\n"
+        f"assert gibbsmin.__file__.startswith({str(copy)!r}), gibbsmin.__file__\n"
+        "print(sum('compiled-kernel cache' in str(w.message) for w in caught))\n"
+        "out = np.array([[1e-12, 1e-12, 1.0, 1.0]])\n"
+        "print(certificate._verdicts(out, np.array([True]), 1e-9, 1e-7, 1e-7)[0])\n"
+    )
+    run = subprocess.run([sys.executable, "-c", script], env=env, cwd=tmp_path, capture_output=True, text=True,
+                         timeout=120)
+    assert run.returncode == 0, run.stderr
+    assert run.stdout.split() == ["1", "True"]

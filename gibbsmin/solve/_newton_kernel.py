@@ -11,7 +11,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit, prange
+from numba import prange
+
+from ._compile import compiled
 
 LN_TRACE = math.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
 LN_LIFT = math.log(1e-4)   # a trace species may rise at most to this mole fraction in one step
@@ -23,7 +25,7 @@ SINGULAR = 2
 CYCLING = 3
 
 
-@njit(cache=True)
+@compiled()
 def _lu_solve(J, rhs, x):
     """Solve J x = rhs in place by Gaussian elimination with partial pivoting; False if singular."""
     K = J.shape[0]
@@ -58,7 +60,7 @@ def _lu_solve(J, rhs, x):
     return True
 
 
-@njit(cache=True)
+@compiled()
 def _manage_phases(pi, mu0_c, A_c, allowed, same, n_c, active, phase_tol):
     """Drop a present condensed species with no amount, else add the most stable absent one.
 
@@ -96,7 +98,7 @@ def _manage_phases(pi, mu0_c, A_c, allowed, same, n_c, active, phase_tol):
     return True
 
 
-@njit(cache=True)
+@compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place.
@@ -222,7 +224,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     return max_iterations, NOT_CONVERGED
 
 
-@njit(cache=True)
+@compiled()
 def _iterate_chain(first, last, A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                    iterations, status, tol, max_iterations, phase_tol, max_phase_changes):
     """Points first..last-1 in order, each started from its predecessor's answer when that converged.
@@ -252,7 +254,7 @@ def _iterate_chain(first, last, A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, 
             iterations[p] += extra
 
 
-@njit(cache=True, parallel=True)
+@compiled(parallel=True)
 def iterate_batch(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi, iterations, status,
                   tol, max_iterations, phase_tol, max_phase_changes, chains):
     """Iterate every point of a batch, cut into ``chains`` runs of neighbours solved in parallel threads.
@@ -268,7 +270,7 @@ def iterate_batch(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
                        max_phase_changes)
 
 
-@njit(cache=True)
+@compiled()
 def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
         tol, max_iterations, phase_tol, max_phase_changes, chains, parallel):
     """The whole Newton solve of a batch in compiled code: scaling, start, iteration, unscaling.

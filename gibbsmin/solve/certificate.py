@@ -20,10 +20,10 @@ from dataclasses import dataclass
 import math
 
 import numpy as np
-from numba import njit
 from numpy.typing import NDArray
 
 from ..system import Problem
+from ._compile import compiled
 from .result import SolverResult
 
 
@@ -104,7 +104,7 @@ class CertificateBatch:
         return (self[i] for i in range(len(self)))
 
 
-@njit(cache=True)
+@compiled()
 def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
     """Residuals of every point: out[p] = (element balance, stationarity, complementarity, min amount)."""
     M, S = A.shape
@@ -144,7 +144,7 @@ def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, ou
         out[p, 3] = min_amount
 
 
-@njit(cache=True)
+@compiled()
 def _verdicts(out, converged, element_balance, stationarity, complementarity):
     """Whether each point's residuals (rows of ``out``) are within the tolerances."""
     certified = np.empty(out.shape[0], dtype=np.bool_)
