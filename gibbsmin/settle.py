@@ -175,7 +175,9 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     n[keep[:G]] = np.exp(result.ln_n_gas[i])
     n[keep[G:]] = result.n_condensed[i]
     mu = problem.mu0[i].copy()
-    mu[:G] += result.ln_n_gas[i] - np.log(n[keep[:G]].sum())
+    gas_total = n[keep[:G]].sum()
+    if gas_total > 0.0:
+        mu[:G] += result.ln_n_gas[i] - np.log(gas_total)
     n_kept = n[keep]
     G_RT = float(np.sum(n_kept[n_kept > 0] * mu[n_kept > 0]))
     potentials = _element_potentials(system, problem, result.pi[i])
