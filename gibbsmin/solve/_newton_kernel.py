@@ -168,6 +168,10 @@ def _choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, v
                 active[best - G] = True
                 pinned[best - G] = True
                 n_c[best - G] = 0.0
+    for j in range(G + C):
+        v[j] = 0.0
+    for t in range(M):
+        v[basis[t]] = 1.0  # on return: 1.0 marks the components
     return True
 
 
@@ -179,6 +183,7 @@ def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
     of the balance, written as sum_j nu_kj n_j = b'_k, carries no round-off
     of the other components: a row whose component is a trace species holds
     only trace amounts, and the traces it sets are exact to their own precision.
+    ``B`` is (M, 3M): the components' columns, then B^-1, then scratch.
     Returns False when B is singular.
     """
     M, G = A_g.shape
@@ -187,27 +192,30 @@ def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
         j = basis[t]
         for k in range(M):
             B[k, t] = A_g[k, j] if j < G else A_c[k, j - G]
-    for j in range(G + C + 1):
-        for k in range(M):
-            if j < G:
-                work[k] = A_g[k, j]
-            elif j < G + C:
-                work[k] = A_c[k, j - G]
-            else:
-                work[k] = b[k]
+    for col in range(M + 1):  # the columns of B^-1, then b' (solved, not multiplied: exact for integer B and b)
         for k in range(M):
             for i in range(M):
-                B[k, M + i] = B[k, i]  # a fresh copy of B for each elimination
-        if not _lu_solve(B[:, M:], work, work[M:]):
+                B[k, 2 * M + i] = B[k, i]
+            work[k] = b[k] if col == M else (1.0 if k == col else 0.0)
+        if not _lu_solve(B[:, 2 * M:], work, work[M:]):
             return False
         for k in range(M):
-            value = work[M + k]
-            if j < G:
-                nu_g[k, j] = value
-            elif j < G + C:
-                nu_c[k, j - G] = value
+            if col < M:
+                B[k, M + col] = work[M + k]
             else:
-                b_comp[k] = value
+                b_comp[k] = work[M + k]
+    for j in range(G):
+        for k in range(M):
+            value = 0.0
+            for i in range(M):
+                value += B[k, M + i] * A_g[i, j]
+            nu_g[k, j] = value
+    for c in range(C):
+        for k in range(M):
+            value = 0.0
+            for i in range(M):
+                value += B[k, M + i] * A_c[i, c]
+            nu_c[k, c] = value
     for t in range(M):
         j = basis[t]
         for k in range(M):
@@ -351,6 +359,30 @@ def _one_signed(nu_g_row, nu_c_row, active, b_k):
 
 
 @compiled()
+def _components_still_major(ln_n, n_c, active, basis, in_basis):
+    """Whether no species outside the components is more than e^3 (20) times as abundant as the least of them.
+
+    A chosen set is kept while this holds: near-ties do not flip it, and one
+    pass over the species costs much less than choosing again.
+    """
+    G = ln_n.size
+    least = math.inf
+    for t in range(basis.size):
+        j = basis[t]
+        if j >= G and not active[j - G]:
+            return False
+        value = ln_n[j] if j < G else (math.log(n_c[j - G]) if n_c[j - G] > 0.0 else -1e300)
+        least = min(least, value)
+    for j in range(G):
+        if in_basis[j] == 0.0 and ln_n[j] > least + 3.0:
+            return False
+    for c in range(n_c.size):
+        if active[c] and in_basis[G + c] == 0.0 and n_c[c] > 0.0 and math.log(n_c[c]) > least + 3.0:
+            return False
+    return True
+
+
+@compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place.
@@ -378,8 +410,10 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     basis = np.empty(M, dtype=np.int64)
     Q = np.empty((M, M))
     seen = np.empty(G + C)
-    B = np.empty((M, 2 * M))
+    B = np.empty((M, 3 * M))
     work = np.empty(max(2 * M, 1))
+    previous = np.full(M, -1, dtype=np.int64)
+    d_scale = np.empty(M)
     nu_g = np.empty((M, G))
     nu_c = np.empty((M, C))
     b_comp = np.empty(M)
@@ -394,11 +428,22 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
         total = 0.1
     ln_N = math.log(total)
     changes = 0
+    rechoose = True
     for iteration in range(1, max_iterations + 1):
         N = math.exp(ln_N)
-        if not (_choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, seen)
-                and _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work)):
+        # The components are chosen again when another species has overtaken one of them (or the phases
+        # changed); choosing costs as much as the rest of an iteration.
+        if (rechoose or not _components_still_major(ln_n, n_c, active, basis, seen)) and \
+                not _choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, seen):
             return iteration, SINGULAR
+        same_basis = True
+        for k in range(M):
+            same_basis = same_basis and basis[k] == previous[k]
+        if not same_basis:
+            if not _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
+                return iteration, SINGULAR
+            for k in range(M):
+                previous[k] = basis[k]
         sum_n = 0.0
         sum_nmu = 0.0
         for j in range(G):
@@ -433,8 +478,8 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
             # terms all have one sign can only be met by amounts that vanish (H2 beside CH4 alone), and is
             # met once they are below the round-off of the whole balance.
             residual = abs(b_comp[k] - s_an - cond)
-            if residual > 1e-11 * s_abs and not (_one_signed(nu_g[k], nu_c[k], active, b_comp[k])
-                                                 and residual <= ZERO_BY_BALANCE):
+            if residual > 1e-11 * s_abs and not (residual <= ZERO_BY_BALANCE
+                                                 and _one_signed(nu_g[k], nu_c[k], active, b_comp[k])):
                 balanced = False
             rhs[k] = b_comp[k] - s_an - cond + s_rhs
             J[k, K - 1] = s_an
@@ -450,15 +495,24 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
                 rhs[M + c] = 0.0
         J[K - 1, K - 1] = sum_n - N
         rhs[K - 1] = N - sum_n + sum_nmu
+        # Symmetric scaling of the components' rows and columns to unit diagonal: a trace component's
+        # row is as small as its amounts, and pivoting alone would judge it against the major ones.
+        for k in range(M):
+            d_scale[k] = 1.0 / math.sqrt(J[k, k]) if J[k, k] > 0.0 else 1.0
+        for k in range(M):
+            for i in range(K):
+                J[k, i] *= d_scale[k]
+                J[i, k] *= d_scale[k]
+            rhs[k] *= d_scale[k]
         if not _lu_solve(J, rhs, x):
             return iteration, SINGULAR
+        for k in range(M):
+            x[k] *= d_scale[k]
         # Element potentials from the components' potentials: B^T pi = pi'.
         for k in range(M):
+            pi[k] = 0.0
             for i in range(M):
-                B[k, M + i] = B[i, k]
-            work[k] = x[k]
-        if not _lu_solve(B[:, M:], work, pi):
-            return iteration, SINGULAR
+                pi[k] += B[i, M + k] * x[i]  # pi = (B^-1)^T pi
         d_ln_N = x[K - 1]
         # Step length (Gordon and McBride 1994, eqs. 3.1 to 3.3).
         biggest = 5.0 * abs(d_ln_N)
@@ -485,6 +539,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
         lam = min(lam, lam2)
         if lam <= 0.0:
             lam = 1.0
+        rechoose = False
         worst_c = 0.0
         for j in range(G):
             ln_n[j] += lam * d_ln_n[j]
@@ -506,6 +561,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
             pinned[dropped] = False
             n_c[dropped] = 0.0
             changes += 1
+            rechoose = True
             if changes > max_phase_changes:
                 return iteration, CYCLING
             continue
@@ -525,6 +581,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
                 if changes > max_phase_changes:
                     return iteration, CYCLING
             changes += 1
+            rechoose = True
             if changes > max_phase_changes:
                 return iteration, CYCLING
     return max_iterations, NOT_CONVERGED
