@@ -8,7 +8,9 @@ data the engine ships) or taken from Cantera where it can solve the case.
 from __future__ import annotations
 
 import math
+import re
 
+import numpy as np
 import pytest
 
 import gibbsmin
@@ -90,3 +92,142 @@ def test_import_without_any_writable_numba_cache_folder_warns_and_works(tmp_path
                          timeout=120)
     assert run.returncode == 0, run.stderr
     assert run.stdout.split() == ["1", "True"]
+
+
+# --- Reference values from the NASA polynomials, evaluated by Cantera (an independent evaluation of the
+# --- same coefficients: McBride, Gordon and Reno, NASA TM-4513, 1993), through tests/cantera_reference.py.
+
+def _g_RT(names, T):
+    """g0/RT at 1 bar of each named species, evaluated by Cantera."""
+    pytest.importorskip("cantera")
+    from cantera_reference import cantera_gas, cantera_pure
+
+    values = {}
+    gases = [n for n in names if not n.endswith(")")]
+    if gases:
+        gas = cantera_gas(gases)
+        gas.TP = T, 1e5
+        values.update(zip(gas.species_names, gas.standard_gibbs_RT))
+    for name in (n for n in names if n.endswith(")")):
+        pure = cantera_pure(name)
+        pure.TP = T, 1e5
+        values[name] = float(pure.standard_gibbs_RT[0])
+    return values
+
+
+def test_oxygen_in_steam_at_300_K_is_set_by_the_dissociation_constant_not_by_round_off():
+    # 2 H2O = 2 H2 + O2 with x_H2 = 2 x_O2 (the feed's H:O is exactly 2) and x_H2O = 1 - 3e-27:
+    # K = x_H2^2 x_O2 (P/P0) / x_H2O^2, so x_O2 = (K P0 / (4 P))^(1/3).  It was 3.5e-13, certified.
+    T, P = 300.0, 1e5
+    g = _g_RT(["H2O", "H2", "O2"], T)
+    K = math.exp(-(2 * g["H2"] + g["O2"] - 2 * g["H2O"]))
+    x_O2 = (K / 4.0 * 1e5 / P) ** (1.0 / 3.0)
+    assert 1e-27 < x_O2 < 3e-27
+    for method in ("newton", "convex", "auto"):
+        eq = gibbsmin.equilibrate({"H2O": 1.0}, T, P, species=["H2O", "H2", "O2"], method=method)
+        assert eq.certificate.certified
+        assert eq.mole_fractions["O2"] == pytest.approx(x_O2, rel=1e-9, abs=0)
+        assert eq.mole_fractions["H2"] == pytest.approx(2 * x_O2, rel=1e-9, abs=0)
+
+
+def test_dissociation_traces_of_a_stoichiometric_feed_at_1e_minus_30_are_exact():
+    # H2O = H + OH at 418 K and 58 bar: x_H = x_OH = sqrt(K x_H2O P0 / P), about 6.5e-30.
+    T, P = 418.0, 58e5
+    g = _g_RT(["H2O", "H", "OH"], T)
+    x_H = math.sqrt(math.exp(-(g["H"] + g["OH"] - g["H2O"])) * 1e5 / P)
+    eq = gibbsmin.equilibrate({"H2O": 1.0}, T, P, species=["H", "H2O", "OH"])
+    assert eq.certificate.certified
+    assert x_H < 1e-29
+    assert eq.mole_fractions["H"] == pytest.approx(x_H, rel=1e-9, abs=0)
+    assert eq.mole_fractions["OH"] == pytest.approx(x_H, rel=1e-9, abs=0)
+
+
+def test_carbon_monoxide_beside_atomic_carbon_gas_is_solved():
+    # 'C' is atomic carbon gas (NASA TM-4513).  C + CO2 = 2 CO has no change in moles, and the feed's
+    # C:O is exactly 1, so x_C = x_CO2 = sqrt(1 / K) with K = exp(-(2 g_CO - g_C - g_CO2)/RT).  It raised
+    # ConvergenceError suggesting method='convex', which had been tried.
+    T, P = 800.0, 1e5
+    g = _g_RT(["C", "CO", "CO2"], T)
+    x_C = math.exp(-(g["C"] + g["CO2"] - 2 * g["CO"]) / 2)
+    for method in ("auto", "newton", "convex"):
+        eq = gibbsmin.equilibrate({"CO": 1.0}, T, P, species=["C", "CO", "CO2"], method=method)
+        assert eq.certificate.certified
+        assert eq.mole_fractions["C"] == pytest.approx(x_C, rel=1e-9, abs=0)
+        assert eq.mole_fractions["CO2"] == pytest.approx(x_C, rel=1e-9, abs=0)
+
+
+def test_a_feed_no_species_of_the_set_can_change_is_returned_as_it_is():
+    # H2S, N2, O2 and S(l): hydrogen has no other home than H2S, so no sulfur can leave it, and the
+    # only feasible state is the feed itself (S(l) at zero; its potential fixes sulfur's).  It raised
+    # ConvergenceError.  Common practice, no source: the balance leaves one point.
+    feed = {"N2": 0.075, "H2S": 0.137, "O2": 0.147}
+    for method in ("auto", "newton", "convex"):
+        eq = gibbsmin.equilibrate(feed, 1590.04, 898110.7, species=["H2S", "N2", "O2", "S(l)"], method=method)
+        assert eq.certificate.certified
+        for name, amount in feed.items():
+            assert eq.amounts[name] == pytest.approx(amount, rel=1e-12)
+        assert eq.amounts["S(l)"] == 0.0
+        assert "S(l)" not in eq.phases_present
+
+
+def test_pure_water_below_its_boiling_point_is_all_liquid_with_no_gas_composition():
+    # It returned 4e-17 mol of a gas that was 96.5 % O2, certified.  With the gas absent, its margin is
+    # -ln of the mole fractions it would have summed: ln(P / p_sat) for water, p_sat = exp(g_l - g_g) P0.
+    import json
+
+    T, P = 300.0, 1e5
+    g = _g_RT(["H2O", "H2O(l)"], T)
+    p_sat = math.exp(g["H2O(l)"] - g["H2O"]) * 1e5
+    assert p_sat == pytest.approx(3536.8, rel=0.01)  # IAPWS-95 at 300 K: 3.5368 kPa (from memory)
+    for method in ("auto", "newton", "convex"):
+        eq = gibbsmin.equilibrate({"H2O": 1.0}, T, P, method=method)
+        assert eq.certificate.certified
+        assert not eq.gas_present
+        assert eq.amounts["H2O(l)"] == pytest.approx(1.0, rel=1e-14)
+        assert eq.gas_amount == 0.0
+        assert all(math.isnan(y) for y in eq.mole_fractions.values())
+        assert eq.phases_present == ("H2O(l)",)
+        assert eq.certificate.complementarity == pytest.approx(math.log(P / p_sat), rel=1e-6)
+        table = eq.table()
+        assert re.search(r"^\w\S*\s+gas\s", table, re.M) is None and "no gas phase" in table
+        document = json.loads(json.dumps(eq.to_dict(), allow_nan=False))
+        assert document["species"]["O2"]["mole_fraction_in_phase"] is None
+    # Above the boiling point the same feed is all steam, and the element potentials give its traces.
+    steam = gibbsmin.equilibrate({"H2O": 1.0}, 400.0, P)
+    assert steam.gas_present and steam.condensed == {}
+    assert steam.mole_fractions["H2O"] == pytest.approx(1.0, abs=1e-12)
+
+
+def test_a_vanishing_gas_beside_liquid_water_still_starts_a_warm_started_batch():
+    # A batch warm-starts each point from the one before; an answer with the gas absent must not
+    # poison the next point (300 K all liquid, then 400 K all steam, then 300 K again).
+    from gibbsmin.settle import build_problem, prepare
+    from gibbsmin.solve import solve
+
+    setup = prepare({"H2O": 1.0}, T_span=(300.0, 400.0))
+    problem = build_problem(setup, np.array([300.0, 400.0, 300.0]), np.full(3, 1e5))
+    result, certificates = solve(problem, "newton", chains=1)
+    assert certificates.certified.all()
+    gas_total = np.exp(result.ln_n_gas).sum(axis=1)
+    assert gas_total[0] == 0.0 and gas_total[2] == 0.0 and gas_total[1] == pytest.approx(1.0, rel=1e-12)
+
+
+def test_the_cone_solver_gives_the_same_answer_whatever_ran_before():
+    # The cached cvxpy problem kept Clarabel's solver object between solves (cvxpy's default warm
+    # start), and the same point came out different (ln n apart by 6e-4) as the first or second solve.
+    from gibbsmin.settle import fixed_problem, prepare
+    from gibbsmin.solve import convex
+
+    setup = prepare({"CH4": 1.0, "H2O": 1.0}, T_span=(800.0, 900.0))
+    point = fixed_problem(setup, 900.0, 30e5)
+    other = fixed_problem(setup, 800.0, 5e5)
+    convex._compiled.cache_clear()
+    first = convex.solve_convex(point, polish=False)
+    second = convex.solve_convex(point, polish=False)
+    convex.solve_convex(other, polish=False)
+    after_other = convex.solve_convex(point, polish=False)
+    convex._compiled.cache_clear()
+    fresh = convex.solve_convex(point, polish=False)
+    for again in (second, after_other, fresh):
+        assert np.array_equal(again.ln_n_gas, first.ln_n_gas)
+        assert np.array_equal(again.n_condensed, first.n_condensed)
