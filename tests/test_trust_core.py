@@ -231,3 +231,37 @@ def test_the_cone_solver_gives_the_same_answer_whatever_ran_before():
     for again in (second, after_other, fresh):
         assert np.array_equal(again.ln_n_gas, first.ln_n_gas)
         assert np.array_equal(again.n_condensed, first.n_condensed)
+
+
+def test_element_rows_independent_only_through_an_out_of_range_solid_are_reduced():
+    # H2S, O2 and O with ice allowed only below 273 K: at 2120 K hydrogen and sulfur both sit in H2S
+    # alone, so their potentials are not separately fixed; the rows were kept independent through the
+    # ice column and Newton's system was singular (ConvergenceError).  H2S passes through; O2 = 2 O
+    # follows K from the NASA data (via Cantera).
+    T, P = 2120.79, 9.676e6
+    feed = {"O2": 0.8022, "H2S": 0.8284}
+    eq = gibbsmin.equilibrate(feed, T, P, species=["O2", "H2S", "O", "H2O(s)"])
+    assert eq.certificate.certified
+    assert eq.amounts["H2S"] == pytest.approx(0.8284, rel=1e-12)
+    g = _g_RT(["O2", "O"], T)
+    K = math.exp(-(2 * g["O"] - g["O2"]))
+    y = eq.mole_fractions
+    assert y["O"] ** 2 * P / 1e5 / y["O2"] == pytest.approx(K, rel=1e-9)
+
+
+def test_species_the_balance_forces_to_zero_do_not_stall_newton():
+    # CO2, NH3 and H2S each hold all of one element (O, N, S), so C2H and C3H6 can only be zero; Newton
+    # chased round-off in the components' totals to ln n = -5e200 (ConvergenceError).  Common practice,
+    # no source: the balance leaves one point, the feed.
+    feed = {"CO2": 0.9015, "NH3": 0.3023, "H2S": 0.0470}
+    eq = gibbsmin.equilibrate(feed, 1527.57, 64099.0, species=["CO2", "NH3", "H2S", "C2H", "C3H6"])
+    assert eq.certificate.certified
+    for name, amount in feed.items():
+        assert eq.amounts[name] == pytest.approx(amount, rel=1e-12)
+    assert eq.amounts["C2H"] < 1e-15 and eq.amounts["C3H6"] < 1e-15
+
+
+def test_a_feed_the_species_that_can_appear_cannot_balance_is_refused():
+    # Sulfur in the feed, but the set's only sulfur carrier is a solid outside its data at 1500 K.
+    with pytest.raises(InputError, match="S cannot be balanced by the species that can appear"):
+        gibbsmin.equilibrate({"H2S": 1.0}, 1500.0, 1e5, species=["H2", "S(s)"])

@@ -204,6 +204,14 @@ def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
                 B[k, M + col] = work[M + k]
             else:
                 b_comp[k] = work[M + k]
+    # An excess within the round-off of forming b' is no excess: it would ask a species the balance
+    # forces to zero for an amount of either sign at 1e-17 (a one-signed row could never meet it).
+    for k in range(M):
+        bound = 0.0
+        for i in range(M):
+            bound += abs(B[k, M + i] * b[i])
+        if abs(b_comp[k]) <= 8.0 * 2.220446049250313e-16 * bound:
+            b_comp[k] = 0.0
     for j in range(G):
         for k in range(M):
             value = 0.0
