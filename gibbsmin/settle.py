@@ -431,7 +431,10 @@ def checked(eq: Equilibrium, stacklevel: int = 3) -> Equilibrium:
     if c.element_balance < 1e-6 and c.stationarity < _USABLE_STATIONARITY and c.complementarity > -1e-4:
         warnings.warn(f"equilibrium answer is imprecise: {c.summary()}", RuntimeWarning, stacklevel=stacklevel)
         return eq
+    # Say what was tried: the cone solver has run whenever its name is in the certificate's solver.
+    advice = ("Newton and the convex solver were both tried; check that the species set can represent the feed"
+              if "convex" in c.solver else
+              "try method='auto' (the convex solver where Newton fails), or check that the species set can "
+              "represent the feed")
     raise ConvergenceError(
-        f"no solver could certify an equilibrium at T = {eq.T:g} K, P = {eq.P:g} Pa ({c.summary()}); "
-        "try method='convex', or check that the species set can represent the feed"
-    )
+        f"no solver could certify an equilibrium at T = {eq.T:g} K, P = {eq.P:g} Pa ({c.summary()}); {advice}")

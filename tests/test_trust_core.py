@@ -265,3 +265,18 @@ def test_a_feed_the_species_that_can_appear_cannot_balance_is_refused():
     # Sulfur in the feed, but the set's only sulfur carrier is a solid outside its data at 1500 K.
     with pytest.raises(InputError, match="S cannot be balanced by the species that can appear"):
         gibbsmin.equilibrate({"H2S": 1.0}, 1500.0, 1e5, species=["H2", "S(s)"])
+
+
+def test_a_refused_answer_says_which_solvers_were_tried():
+    from gibbsmin.errors import ConvergenceError
+    from gibbsmin.settle import checked, prepare, solve_fixed
+
+    setup = prepare({"CH4": 1.0, "H2O": 2.0}, T_span=(1000.0, 1000.0))
+    eq = solve_fixed(setup, 1000.0, 20e5, method="newton")[0]
+    for solver, expected in (("convex+newton", "Newton and the convex solver were both tried"),
+                             ("newton", "try method='auto'")):
+        wrong = type(eq)(**{**eq.__dict__, "certificate": type(eq.certificate)(
+            **{**eq.certificate.__dict__, "stationarity": 1.0, "certified": False, "solver": solver})})
+        with pytest.raises(ConvergenceError, match=expected) as raised:
+            checked(wrong)
+        assert ("method='convex'" in str(raised.value)) is False
