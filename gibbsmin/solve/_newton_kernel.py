@@ -176,6 +176,17 @@ def _choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, v
 
 
 @compiled()
+def _times_inverse(B, M, A, out):
+    """out = B^-1 A, with B^-1 held in columns M to 2M of B."""
+    for j in range(A.shape[1]):
+        for k in range(M):
+            value = 0.0
+            for i in range(M):
+                value += B[k, M + i] * A[i, j]
+            out[k, j] = value
+
+
+@compiled()
 def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
     """Element vectors and totals in the components: nu = B^-1 A, b' = B^-1 b (B: the components' columns).
 
@@ -212,18 +223,8 @@ def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
             bound += abs(B[k, M + i] * b[i])
         if abs(b_comp[k]) <= 8.0 * 2.220446049250313e-16 * bound:
             b_comp[k] = 0.0
-    for j in range(G):
-        for k in range(M):
-            value = 0.0
-            for i in range(M):
-                value += B[k, M + i] * A_g[i, j]
-            nu_g[k, j] = value
-    for c in range(C):
-        for k in range(M):
-            value = 0.0
-            for i in range(M):
-                value += B[k, M + i] * A_c[i, c]
-            nu_c[k, c] = value
+    _times_inverse(B, M, A_g, nu_g)
+    _times_inverse(B, M, A_c, nu_c)
     for t in range(M):
         j = basis[t]
         for k in range(M):
