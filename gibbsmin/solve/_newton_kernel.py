@@ -438,11 +438,14 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     ln_N = math.log(total)
     changes = 0
     rechoose = True
+    full_step = True
     for iteration in range(1, max_iterations + 1):
         N = math.exp(ln_N)
         # The components are chosen again when another species has overtaken one of them (or the phases
-        # changed); choosing costs as much as the rest of an iteration.
-        if (rechoose or not _components_still_major(ln_n, n_c, active, basis, seen)) and \
+        # changed), checked after full steps and every 8th iteration: choosing costs as much as the rest
+        # of an iteration, and the damped steps of a cold start reshuffle the ranks at every step.
+        if (rechoose or ((full_step or iteration % 8 == 0)
+                         and not _components_still_major(ln_n, n_c, active, basis, seen))) and \
                 not _choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, seen):
             return iteration, SINGULAR
         same_basis = True
@@ -549,6 +552,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
         if lam <= 0.0:
             lam = 1.0
         rechoose = False
+        full_step = lam == 1.0
         worst_c = 0.0
         for j in range(G):
             ln_n[j] += lam * d_ln_n[j]
