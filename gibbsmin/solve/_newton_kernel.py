@@ -187,6 +187,24 @@ def _times_inverse(B, M, A, out):
 
 
 @compiled()
+def _element_rows(A_g, A_c, b, B, nu_g, nu_c, b_comp):
+    """The balance on the element rows (B^-1 = I): enough when every component is a major species.
+
+    The components' own rows then hold no trace a cancelling balance could
+    set, and skipping the change of rows keeps a warm-started sweep point cheap.
+    """
+    M = b.size
+    for k in range(M):
+        b_comp[k] = b[k]
+        for i in range(M):
+            B[k, M + i] = 1.0 if k == i else 0.0
+        for j in range(A_g.shape[1]):
+            nu_g[k, j] = A_g[k, j]
+        for c in range(A_c.shape[1]):
+            nu_c[k, c] = A_c[k, c]
+
+
+@compiled()
 def _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
     """Element vectors and totals in the components: nu = B^-1 A, b' = B^-1 b (B: the components' columns).
 
@@ -439,6 +457,7 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     changes = 0
     rechoose = True
     full_step = True
+    element_rows = False
     for iteration in range(1, max_iterations + 1):
         N = math.exp(ln_N)
         # The components are chosen again when another species has overtaken one of them (or the phases
@@ -449,11 +468,20 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
                 not _choose_components(A_g, A_c, ln_n, n_c, active, allowed, pinned, basis, Q, seen):
             return iteration, SINGULAR
         same_basis = True
+        all_major = True  # every component above the trace level: the element rows themselves will do
         for k in range(M):
             same_basis = same_basis and basis[k] == previous[k]
-        if not same_basis:
-            if not _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
+            j = basis[k]
+            if j < G:
+                all_major = all_major and ln_n[j] - ln_N > LN_TRACE
+            else:
+                all_major = all_major and n_c[j - G] > 0.0 and math.log(n_c[j - G]) > LN_TRACE
+        if not same_basis or all_major != element_rows:
+            if all_major:
+                _element_rows(A_g, A_c, b, B, nu_g, nu_c, b_comp)
+            elif not _to_components(A_g, A_c, b, basis, B, nu_g, nu_c, b_comp, work):
                 return iteration, SINGULAR
+            element_rows = all_major
             for k in range(M):
                 previous[k] = basis[k]
         sum_n = 0.0
