@@ -280,3 +280,22 @@ def test_a_refused_answer_says_which_solvers_were_tried():
         with pytest.raises(ConvergenceError, match=expected) as raised:
             checked(wrong)
         assert ("method='convex'" in str(raised.value)) is False
+
+
+def test_the_case_that_passed_only_as_the_second_solve_passes_both_times():
+    # Found by a random search: SO2 and CH4 with S(s), which cannot appear at 2060 K (so nothing can
+    # react).  In a fresh process the first method='convex' call was refused as imprecise (element
+    # balance 4.0e-9 from the raw cone answer) and the second certified (3.4e-10), the Clarabel
+    # object having been warm-started.  Now each cone solve is fresh and the Newton polish converges.
+    # Common practice, no source: the feed is the only feasible state.
+    from gibbsmin.solve import convex
+
+    feed = {"SO2": 0.5877352634327311, "CH4": 0.8263292356676102}
+    args = (feed, 2059.8150125674692, 511653.2014715459)
+    convex._compiled.cache_clear()
+    answers = [gibbsmin.equilibrate(*args, species=["SO2", "CH4", "S(s)"], method="convex") for _ in range(2)]
+    for eq in answers:
+        assert eq.certificate.certified and eq.certificate.element_balance < 1e-12
+        for name, amount in feed.items():
+            assert eq.amounts[name] == pytest.approx(amount, rel=1e-12)
+    assert answers[0].amounts == answers[1].amounts
