@@ -325,6 +325,8 @@ def settle_on_phase_set(
     theta = min(max(-f_low / (f_high - f_low), 0.0), 1.0)
     with np.errstate(divide="ignore"):
         ln_n = np.logaddexp(np.log1p(-theta) + low.ln_n_gas[0], np.log(theta) + high.ln_n_gas[0])
+    if not np.any(np.isfinite(ln_n)):
+        return None  # no gas at either end (ice and liquid water alone): this bordered Newton needs one
     n_c_all = (1 - theta) * low.n_condensed[0] + theta * high.n_condensed[0]
     present = low.present[0] | high.present[0]
     pi = (1 - theta) * low.pi[0] + theta * high.pi[0]
@@ -390,6 +392,8 @@ def settle_on_phase_set(
         return None
     if np.any(n_c_all[present] < -1e-12 * s):
         return None
+    if np.exp(ln_n).sum() <= 1e-12 * s:
+        return None  # a gas at the round-off of the balance is no coexisting phase (liquid water alone)
     if not T_low - PHASE_BOUNDARY_SLACK <= T <= T_high + PHASE_BOUNDARY_SLACK:
         return None
     n_c_all = np.where(present, np.maximum(n_c_all, 0.0), 0.0)

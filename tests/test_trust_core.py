@@ -299,3 +299,31 @@ def test_the_case_that_passed_only_as_the_second_solve_passes_both_times():
         for name, amount in feed.items():
             assert eq.amounts[name] == pytest.approx(amount, rel=1e-12)
     assert answers[0].amounts == answers[1].amounts
+
+
+def test_steam_cooled_to_liquid_water_has_no_gas_and_the_outlet_temperature_of_its_enthalpy():
+    # 1 mol of steam at 500 K and 1 bar gives up 50 kJ: all liquid, at the T where the liquid's
+    # enthalpy is the steam's less 50 kJ (NASA data evaluated by Cantera).  The phase-boundary solve
+    # used to return that T with a gas of 1e-16 mol, mostly O2, as a "coexisting" phase.
+    pytest.importorskip("cantera")
+    from cantera_reference import cantera_gas, cantera_pure
+    from scipy.optimize import brentq
+
+    steam, liquid = cantera_gas(["H2O"]), cantera_pure("H2O(l)")
+    steam.TP = 500.0, 1e5
+
+    def miss(T):
+        liquid.TP = T, 1e5
+        return liquid.enthalpy_mole / 1000.0 - (steam.enthalpy_mole / 1000.0 - 50000.0)
+
+    T_ref = brentq(miss, 280.0, 370.0, xtol=1e-10)
+    eq = gibbsmin.equilibrate({"H2O": 1.0}, P=1e5, T_feed=500.0, heat_input=-50000.0)
+    assert eq.certificate.certified and not eq.gas_present
+    assert eq.T == pytest.approx(T_ref, abs=1e-6)
+    assert "phase_boundary" not in eq.extras
+
+
+def test_pure_water_below_its_boiling_point_with_a_cubic_gas_is_all_liquid():
+    eq = gibbsmin.equilibrate({"H2O": 1.0}, 300.0, 1e5, gas="peng-robinson", sensitivities=True)
+    assert eq.certificate.certified and not eq.gas_present
+    assert eq.extras["gas_phase_stability"]["note"] == "no gas phase"
