@@ -76,17 +76,36 @@ class Equilibrium:
         return float(sum(n for s, n in self.amounts.items() if self.phase_of[s] == "gas"))
 
     @property
+    def gas_present(self) -> bool:
+        """False when the condensed phases hold every atom and no gas can form (cold pure water at 1 bar).
+
+        The solver then returns every gas amount as exactly zero rather than a
+        gas at the round-off of the element balance, whose composition would be
+        meaningless; the certificate's condensed-phase margin includes the
+        absent gas's (``Certificate.complementarity``).
+        """
+        return any(v > -np.inf for v in self.ln_gas_amounts.values())
+
+    @property
     def mole_fractions(self) -> dict[str, float]:
-        """Gas-phase mole fractions, wet basis, computed from the log amounts (exact for trace species)."""
-        ln_total = np.log(self.gas_amount)
-        return {s: float(np.exp(v - ln_total)) for s, v in self.ln_gas_amounts.items()}
+        """Gas-phase mole fractions, wet basis, computed from the log amounts (exact for trace species).
+
+        NaN for every species when the gas phase is absent (``gas_present``).
+        """
+        if not self.gas_present:
+            return {s: float("nan") for s in self.ln_gas_amounts}
+        return _fractions(self.ln_gas_amounts)
 
     @property
     def dry_mole_fractions(self) -> dict[str, float]:
-        """Gas-phase mole fractions with water left out."""
-        wet = self.mole_fractions
-        dry_total = 1.0 - wet.get(WATER, 0.0)
-        return {s: y / dry_total for s, y in wet.items() if s != WATER}
+        """Gas-phase mole fractions with water left out (from the log amounts: exact for a trace dry gas in steam).
+
+        NaN where there is no dry gas (no gas, or a gas of water alone).
+        """
+        dry = {s: v for s, v in self.ln_gas_amounts.items() if s != WATER}
+        if not any(v > -np.inf for v in dry.values()):
+            return {s: float("nan") for s in dry}
+        return _fractions(dry)
 
     @property
     def partial_pressures(self) -> dict[str, float]:
@@ -97,9 +116,10 @@ class Equilibrium:
     def amounts_by_phase(self) -> dict[str, dict[str, float]]:
         """Phase name to {species: mol} for every phase present."""
         phases: dict[str, dict[str, float]] = {}
+        gas_present = self.gas_present
         for s, n in self.amounts.items():
             phase = self.phase_of[s]
-            if phase != "gas" and n <= 0.0:
+            if (phase != "gas" and n <= 0.0) or (phase == "gas" and not gas_present):
                 continue
             phases.setdefault(phase, {})[s] = n
         return phases
@@ -124,7 +144,8 @@ class Equilibrium:
             "reference_pressure_Pa": P_REF,
             "species": {
                 s: {"phase": self.phase_of[s], "amount_mol": n,
-                    "mole_fraction_in_phase": y[s] if self.phase_of[s] == "gas" else (1.0 if n > 0 else 0.0)}
+                    "mole_fraction_in_phase": (y[s] if self.gas_present else None) if self.phase_of[s] == "gas"
+                    else (1.0 if n > 0 else 0.0)}
                 for s, n in self.amounts.items()
             },
             "phases_present": list(self.phases_present),
@@ -155,14 +176,16 @@ class Equilibrium:
             f"P = {self.P / 1e5:.5g} bar; fixed {self.specification}; gas model: {self.gas_model}",
             f"{'species':<12} {'phase':<8} {'amount/mol':>14} {'mol% wet':>12} {'mol% dry':>12}",
         ]
-        gas_rows = sorted((s for s in y if y[s] >= cutoff), key=lambda s: -y[s])
+        gas_rows = sorted((s for s in y if y[s] >= cutoff), key=lambda s: -y[s]) if self.gas_present else []
         for s in gas_rows:
             dry_text = f"{100 * dry[s]:12.6g}" if s in dry else f"{'-':>12}"
             lines.append(f"{s:<12} {'gas':<8} {self.amounts[s]:14.6g} {100 * y[s]:12.6g} {dry_text}")
         for s, n in self.condensed.items():
             lines.append(f"{s:<12} {'cond.':<8} {n:14.6g} {'':>12} {'':>12}")
         hidden = len(y) - len(gas_rows)
-        if hidden:
+        if not self.gas_present:
+            lines.append("(no gas phase: the condensed phases hold every atom and a gas cannot form here)")
+        elif hidden:
             lines.append(f"({hidden} gas species below {cutoff:g} mole fraction not shown)")
         if "duty_W" in self.extras:
             lines.append(f"duty {self.extras['duty_W']:.6g} W ({self.extras.get('duty_sign_convention', '')})")
@@ -171,3 +194,11 @@ class Equilibrium:
 
     def __str__(self) -> str:
         return self.table()
+
+
+def _fractions(ln_amounts: Mapping[str, float]) -> dict[str, float]:
+    """Mole fractions from log amounts, the total taken in log form (no underflow, no cancellation)."""
+    values = np.array(list(ln_amounts.values()))
+    top = values.max()
+    ln_total = top + np.log(np.sum(np.exp(values - top)))
+    return {s: float(np.exp(v - ln_total)) for s, v in ln_amounts.items()}

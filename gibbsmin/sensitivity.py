@@ -165,7 +165,8 @@ def _fixed_T_system(setup: Setup, problem: Problem, result: SolverResult, i: int
     state = _state(problem, result.ln_n_gas[i], result.n_condensed[i], result.present[i])
     K = _matrix(state)
     columns = np.column_stack([state.A_g @ state.nu_g, state.A_c])
-    columns = columns / np.linalg.norm(columns, axis=0)
+    norms = np.linalg.norm(columns, axis=0)
+    columns = columns[:, norms > 0.0] / norms[norms > 0.0]  # an absent gas (all liquid water) has no column
     singular_values = np.linalg.svd(columns, compute_uv=False)
     singular = not np.all(np.isfinite(K)) or singular_values[-1] < _DEPENDENT * singular_values[0]
     return state, K, singular
@@ -352,6 +353,8 @@ def settle_on_phase_set(
     theta = min(max(-f_low / (f_high - f_low), 0.0), 1.0)
     with np.errstate(divide="ignore"):
         ln_n = np.logaddexp(np.log1p(-theta) + low.ln_n_gas[0], np.log(theta) + high.ln_n_gas[0])
+    if not np.any(np.isfinite(ln_n)):
+        return None  # no gas at either end (ice and liquid water alone): this bordered Newton needs one
     n_c_all = (1 - theta) * low.n_condensed[0] + theta * high.n_condensed[0]
     present = low.present[0] | high.present[0]
     pi = (1 - theta) * low.pi[0] + theta * high.pi[0]
@@ -396,7 +399,10 @@ def settle_on_phase_set(
         try:
             x = np.linalg.solve(K, rhs)
         except np.linalg.LinAlgError:
-            return None
+            # Exactly singular in floating point: an element direction held only by traces far below the
+            # round-off of the major species (O2 and H2 beside water).  The least-norm step leaves those
+            # traces where the solver put them.
+            x = np.linalg.lstsq(K, rhs, rcond=None)[0]
         d_pi, d_ln_N, d_nu_c, tau = x[:M], x[M], x[M + 1: t], x[t]
         d_ln_n = -r_gas + d_ln_N + state.A_g.T @ d_pi + h_g * tau
         y = state.nu_g / state.nu_g.sum()
@@ -414,6 +420,8 @@ def settle_on_phase_set(
         return None
     if np.any(n_c_all[present] < -1e-12 * s):
         return None
+    if np.exp(ln_n).sum() <= 1e-12 * s:
+        return None  # a gas at the round-off of the balance is no coexisting phase (liquid water alone)
     if not T_low - PHASE_BOUNDARY_SLACK <= T <= T_high + PHASE_BOUNDARY_SLACK:
         return None
     n_c_all = np.where(present, np.maximum(n_c_all, 0.0), 0.0)

@@ -24,6 +24,12 @@ from .system import Problem, System, reduce, select_species, standard_mu0
 from .thermo.database import SpeciesDatabase, default_database
 from .thermo.datasets import choose_database
 
+#: The total feed amounts accepted, [mol].  The answer does not depend on the total, and far beyond
+#: these the element totals, G/RT and the enthalpies leave the range of floating-point numbers
+#: (a total of 1e308 mol overflows its hydrogen count); within them every solve keeps a margin of
+#: more than 1e100 on either side.
+FEED_TOTAL_RANGE = (1e-100, 1e100)
+
 #: Beyond this stationarity residual an uncertified answer is refused rather than returned with a warning.
 _USABLE_STATIONARITY = 1e-4
 
@@ -73,8 +79,15 @@ def check_feed(feed: object, db: SpeciesDatabase) -> dict[str, float]:
         if amount < 0:
             raise InputError(f"feed amount of {name} is negative ({amount}); amounts must be zero or positive")
         amounts[record.name] = amounts.get(record.name, 0.0) + float(amount)
-    if sum(amounts.values()) <= 0.0:
+    total = sum(amounts.values())
+    if total <= 0.0:
         raise InputError("every feed amount is zero; give at least one species a positive amount")
+    low, high = FEED_TOTAL_RANGE
+    if not low <= total <= high:
+        raise InputError(
+            f"the feed totals {total:g} mol, outside the {low:g} to {high:g} mol that can be computed; "
+            "scale the feed, e.g. to fractions that sum to one (the equilibrium composition does not depend "
+            "on the total)")
     return amounts
 
 
@@ -163,7 +176,9 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     n[keep[:G]] = np.exp(result.ln_n_gas[i])
     n[keep[G:]] = result.n_condensed[i]
     mu = problem.mu0[i].copy()
-    mu[:G] += result.ln_n_gas[i] - np.log(n[keep[:G]].sum())
+    gas_total = n[keep[:G]].sum()
+    if gas_total > 0.0:
+        mu[:G] += result.ln_n_gas[i] - np.log(gas_total)
     n_kept = n[keep]
     G_RT = float(np.sum(n_kept[n_kept > 0] * mu[n_kept > 0]))
     potentials = _element_potentials(system, problem, result.pi[i])
@@ -448,7 +463,10 @@ def checked(eq: Equilibrium, stacklevel: int = 3) -> Equilibrium:
     if c.element_balance < 1e-6 and c.stationarity < _USABLE_STATIONARITY and c.complementarity > -1e-4:
         warnings.warn(f"equilibrium answer is imprecise: {c.summary()}", RuntimeWarning, stacklevel=stacklevel)
         return eq
+    # Say what was tried: the cone solver has run whenever its name is in the certificate's solver.
+    advice = ("Newton and the convex solver were both tried; check that the species set can represent the feed"
+              if "convex" in c.solver else
+              "try method='auto' (the convex solver where Newton fails), or check that the species set can "
+              "represent the feed")
     raise ConvergenceError(
-        f"no solver could certify an equilibrium at T = {eq.T:g} K, P = {eq.P:g} Pa ({c.summary()}); "
-        "try method='convex', or check that the species set can represent the feed"
-    )
+        f"no solver could certify an equilibrium at T = {eq.T:g} K, P = {eq.P:g} Pa ({c.summary()}); {advice}")

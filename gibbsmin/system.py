@@ -191,13 +191,20 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
         raise InputError("no gas species can be formed from the feed's elements")
     keep = np.flatnonzero(possible)
     carried = A[present][:, keep]
+    # Condensed species that can appear at no point of the batch (outside their data) do not count
+    # for the rank: rows independent only through them leave a potential the solve cannot fix.
+    usable = np.atleast_2d(allowed)[:, keep].any(axis=0)
+    usable[: int(np.sum(keep < system.n_gas))] = True
     if np.any(~carried.any(axis=1)):
         missing = [system.elements[k] for k in np.flatnonzero(present)[~carried.any(axis=1)]]
         raise InputError(
             f"element(s) {', '.join(missing)} in the feed cannot be carried by any species of the set; "
             "add a species that contains them"
         )
-    rows = _independent_rows(carried)
+    rows = _independent_rows(carried[:, usable])
+    b_present = b[:, present]
+    if not usable.all():
+        _check_balance_possible(system, carried[:, usable], rows, b_present, np.flatnonzero(present))
     selector = np.zeros((len(rows), A.shape[0]))
     selector[np.arange(len(rows)), np.flatnonzero(present)[rows]] = 1.0
     n_gas = int(np.sum(keep < system.n_gas))
@@ -210,6 +217,23 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
         keep=keep,
         basis=selector,
     )
+
+
+def _check_balance_possible(system: System, carried: NDArray[np.float64], rows: NDArray[np.int_],
+                            b: NDArray[np.float64], elements: NDArray[np.int_]) -> None:
+    """Refuse element totals the species that can appear cannot balance (a dropped row must follow the others)."""
+    dropped = np.setdiff1d(np.arange(carried.shape[0]), rows)
+    if dropped.size == 0:
+        return
+    combination = np.linalg.lstsq(carried[rows].T, carried[dropped].T, rcond=None)[0]  # (kept, dropped)
+    expected = b[:, rows] @ combination
+    scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
+    if np.any(np.abs(expected - b[:, dropped]) > 1e-9 * scale):
+        names = ", ".join(system.elements[k] for k in elements[dropped])
+        raise InputError(
+            f"the feed's {names} cannot be balanced by the species that can appear at these temperatures (the "
+            "condensed species that would carry it are outside their data range); add a gas species that "
+            "contains it")
 
 
 def _independent_rows(A: NDArray[np.float64]) -> NDArray[np.int_]:

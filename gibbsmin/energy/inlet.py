@@ -75,8 +75,9 @@ class Inlet:
 
     def gross_enthalpy(self, P: float, db: SpeciesDatabase) -> float:
         """Sum of |n_j h_j| over the inlet, [J]: the scale the energy-balance residual is measured on."""
+        # A zero amount means the species is absent: it adds nothing (and is no mixture of its own).
         return sum(abs(mixture_enthalpy({name: amount}, s.T, P, db=db, allow_extrapolation=True))
-                   for s in self.streams for name, amount in s.amounts.items())
+                   for s in self.streams for name, amount in s.amounts.items() if amount > 0.0)
 
 
 def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase) -> Inlet:

@@ -35,7 +35,8 @@ def gas_stability(phase: GasPhase, eq: Equilibrium) -> dict[str, object]:
     names = [phase.gas_names[j] for j in phase.described]
     n = np.array([eq.amounts.get(name, 0.0) for name in names])
     if phase.is_ideal or not n.sum() > 0.0:
-        return {"tested": False, "stable": None, "distance": 0.0, "would_form": None, "note": "ideal gas"}
+        return {"tested": False, "stable": None, "distance": 0.0, "would_form": None,
+                "note": "ideal gas" if phase.is_ideal else "no gas phase"}
     z = n / n.sum()
     Tc = phase.model.critical_temperatures
     hottest = float(Tc[z > _SCREEN_FRACTION].max())

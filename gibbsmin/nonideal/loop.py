@@ -54,7 +54,7 @@ def _first_guess(setup: Setup, phase: GasPhase, T: float, P: float, start: Solve
 
     (ln phi at the feed's composition saves no pass in loop gases: their composition moves too far.)
     """
-    if start is not None:
+    if start is not None and np.any(np.isfinite(start.ln_n_gas[0])):  # a start with no gas has no phi
         problem = build_problem(setup, np.array([T]), np.array([P]), allow_extrapolation=allow_extrapolation)
         return phase.ln_phi(T, P, _gas_amounts(problem, start, setup.system.n_gas))
     return np.zeros(setup.system.n_gas)
@@ -145,6 +145,12 @@ def solve_nonideal(
             mu0[:, : problem.n_gas] += x[kept_gas]
             problem = replace(problem, mu0=mu0)
             result, certificates = solve(problem, method, start=result)
+        if result.converged[0] and not np.any(np.isfinite(result.ln_n_gas[0])):
+            # The condensed phases hold every atom and no gas forms (with phi of the guess): no gas for
+            # phi to describe, so the answer stands.
+            eq = to_equilibrium(setup, problem, result, certificates, 0, T, P, gas_model=phase.name,
+                                specification=specification)
+            return eq, problem, result
         n = _gas_amounts(problem, result, n_gas)
         if not np.all(np.isfinite(n)):
             raise ConvergenceError(

@@ -7,7 +7,9 @@ For the problem  min G/RT  s.t.  A n = b,  n >= 0  the answer is optimal when
 - every gas species and every present condensed species satisfies
   mu_j/RT = sum_k a_kj pi_k (stationarity);
 - every absent condensed species has mu0_j - sum_k a_kj pi_k >= 0 (it would
-  raise G if it formed: complementarity).
+  raise G if it formed: complementarity); an absent gas (all its amounts
+  zero: the condensed phases hold every atom) would have mole fractions
+  exp(a_j . pi - mu0_j) summing to at most one, its margin being -ln of that sum.
 
 Nothing here trusts the solver: the residuals are recomputed from amounts and
 element potentials.
@@ -21,10 +23,10 @@ from typing import Literal
 import math
 
 import numpy as np
-from numba import njit
 from numpy.typing import NDArray
 
 from ..system import Problem
+from ._compile import compiled
 from .result import SolverResult
 
 
@@ -53,7 +55,8 @@ class Certificate:
     stationarity : float
         max over gas and present condensed species of |mu_j/RT - a_j . pi|.
     complementarity : float
-        min over absent condensed species of (mu0_j - a_j . pi); +inf when none.
+        min over absent condensed species of (mu0_j - a_j . pi), and over an absent
+        gas of -ln sum_j exp(a_j . pi - mu0_j); +inf when none.
         Negative means a phase that should be present is missing.
     min_amount : float
         Smallest condensed amount present, [mol] (must not be negative).
@@ -123,16 +126,17 @@ class CertificateBatch:
         return (self[i] for i in range(len(self)))
 
 
-@njit(cache=True)
+@compiled()
 def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
     """Residuals of every point: out[p] = (element balance, stationarity, complementarity, min amount)."""
     M, S = A.shape
     for p in range(b.shape[0]):
-        ln_N = -np.inf
         total = 0.0
         for j in range(n_gas):
             total += math.exp(ln_n_gas[p, j])
-        ln_N = math.log(total)
+        gas_absent = total == 0.0
+        ln_N = math.log(total) if not gas_absent else 0.0
+        gas_sum = 0.0  # with the gas absent: sum of the mole fractions it would have, <= 1 when it cannot form
         worst_b = 0.0
         scale = 0.0
         for k in range(M):
@@ -150,20 +154,24 @@ def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, ou
             potential = 0.0
             for k in range(M):
                 potential += A[k, j] * pi[p, k]
-            if j < n_gas:
+            if j < n_gas and gas_absent:
+                gas_sum += math.exp(min(potential - mu0[p, j], 700.0))
+            elif j < n_gas:
                 stationarity = max(stationarity, abs(mu0[p, j] + ln_n_gas[p, j] - ln_N - potential))
             elif present[p, j - n_gas]:
                 stationarity = max(stationarity, abs(mu0[p, j] - potential))
                 min_amount = min(min_amount, n_condensed[p, j - n_gas])
             elif allowed[p, j]:
                 complementarity = min(complementarity, mu0[p, j] - potential)
+        if gas_absent:
+            complementarity = min(complementarity, -math.log(gas_sum) if gas_sum > 0.0 else np.inf)
         out[p, 0] = worst_b / scale
         out[p, 1] = stationarity
         out[p, 2] = complementarity
         out[p, 3] = min_amount
 
 
-@njit(cache=True)
+@compiled()
 def _verdicts(out, converged, element_balance, stationarity, complementarity):
     """Whether each point's residuals (rows of ``out``) are within the tolerances."""
     certified = np.empty(out.shape[0], dtype=np.bool_)

@@ -7,7 +7,8 @@ The mixing term is a sum of relative entropies rel_entr(n_j, N), jointly
 convex in (n_j, N), which cvxpy states exactly on the exponential cone; the
 problem is then global for ideal phases, whatever the phase set.  It is
 parametrised (DPP) in mu0 and b, so the compiled problem is cached per species
-set and reused.  Interior-point answers are accurate to about 1e-8 relative,
+set and reused; the interior-point solver itself starts afresh on every
+point, so an answer does not depend on what was solved before.  Interior-point answers are accurate to about 1e-8 relative,
 too loose for ppb species, so every answer is handed to the Newton solver as
 its starting point ("polish").
 """
@@ -61,7 +62,10 @@ def _solve_point(problem: Problem, i: int) -> tuple[NDArray, NDArray, bool]:
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            cvx.solve(solver=cp.CLARABEL)
+            # A fresh Clarabel solver every time: with cvxpy's default warm start the cached solver object
+            # is updated in place and keeps state from the problem it solved before, so the same point gave
+            # a different answer (ln n apart by 6e-4) as the first or the second solve on a species set.
+            cvx.solve(solver=cp.CLARABEL, warm_start=False)
     except cp.error.SolverError:
         return np.zeros(G), np.zeros(problem.n_species - G), False
     ok = cvx.status in (cp.OPTIMAL, cp.OPTIMAL_INACCURATE) and n_g.value is not None

@@ -84,7 +84,8 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
                                                         chains=chains)
         keep = problem.keep
         gas_keep = keep[keep < n_gas]
-        ln_y = result.ln_n_gas - np.log(np.exp(result.ln_n_gas).sum(axis=1, keepdims=True))
+        with np.errstate(divide="ignore", invalid="ignore"):  # NaN where the gas is absent (all liquid water)
+            ln_y = result.ln_n_gas - np.log(np.exp(result.ln_n_gas).sum(axis=1, keepdims=True))
         y[np.ix_(group, gas_keep)] = np.exp(ln_y)
         n_condensed[np.ix_(group, keep[keep >= n_gas] - n_gas)] = result.n_condensed
         certified[group] = certificates.certified
