@@ -96,6 +96,10 @@ def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: 
         jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
     else:
         jacobian = difference_jacobian(amounts_at, T, np.sqrt(np.diag(covariance)))
+        # A species that alone holds an element is fixed by that element's balance: its differences are
+        # round-off of two solves, not a derivative.
+        holders = system.A != 0.0
+        jacobian[np.any(holders[holders.sum(axis=1) == 1], axis=0)] = 0.0
     return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}
 
 
