@@ -306,6 +306,12 @@ def test_no_steam_to_carbon_line_where_no_hydrocarbon_free_to_react_meets_steam(
     assert "S/C" not in facts["feed feed"] and caught == []
 
 
+def test_no_steam_to_carbon_line_where_every_reactor_holds_the_hydrocarbons():
+    # The shift train: its CH4 is held by both shift services, so S/C (15.1 here) would mean nothing.
+    facts, _, _ = _facts(EXAMPLES / "shift_train.toml")
+    assert "S/C" not in facts["feed feed"] and facts["feed feed"].startswith("4603 kmol/h dry gas + 2640 kmol/h H2O")
+
+
 def test_steam_to_carbon_of_separate_gas_and_steam_feeds(tmp_path):
     case = tmp_path / "two_feeds.toml"
     case.write_text('[case]\ntitle = "invented"\n[feed.gas]\nunit = "kmol/h"\nCH4 = 100.0\nCH3OH = 5.0\n'

@@ -75,9 +75,8 @@ def flow_text(feed: Feed, spec: ReportSpec, frozen: Iterable[str]) -> str:
             f"{_flow(steam, spec, water_molar_mass)} {word} ({total:.6g} {spec.flow_unit} in all)")
 
 
-def mixed_steam_to_carbon(case: Case) -> str | None:
+def mixed_steam_to_carbon(case: Case, frozen: Iterable[str]) -> str | None:
     """The S/C of the feeds mixed, where a hydrocarbon feed meets steam only there (None elsewhere)."""
-    frozen = case.species.frozen
     if len(case.feeds) < 2 or any(meets_steam(f.stream, frozen) for f in case.feeds):
         return None
     if not any(_reacting_hydrocarbon(f.stream, frozen) for f in case.feeds):

@@ -343,6 +343,18 @@ def _pair_species(pair: str, y) -> tuple[str, str]:
     return pair, pair
 
 
+def _held_in_every_reactor(result: CaseResult) -> set[str]:
+    """Species that no stage lets react (the case's frozen ones, and those every reactor holds): S/C
+    means nothing for a hydrocarbon that stays as it is (a shift train's CH4)."""
+    held = set(result.case.species.frozen)
+    reactors = [s.scope for s in result.stages if s.stage.reacts]
+    if not reactors:
+        return held | {name for f in result.case.feeds for name in f.stream.species}
+    if all(scope is not None for scope in reactors):
+        held |= set.intersection(*(set(scope.held) for scope in reactors))
+    return held
+
+
 def settle_report(result: CaseResult) -> Report:
     """The report of a settled case: feed, stages, each outlet, approaches, Kp, carbon, certificates, caution."""
     case, spec = result.case, result.case.report
@@ -355,16 +367,17 @@ def settle_report(result: CaseResult) -> Report:
         if stability and stability.get("tested"):
             facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
+    held = _held_in_every_reactor(result)
     for feed in case.feeds:
         stream = feed.stream
-        text = flow_text(feed, spec, case.species.frozen)
+        text = flow_text(feed, spec, held)
         if feed.T_given:
             text += f" at {temperature_text(stream.T, spec.temperature_unit)}"
         text += f", {pressure_text(stream.P, spec.pressure_unit)}"
-        if meets_steam(stream, case.species.frozen):
+        if meets_steam(stream, held):
             text += steam_to_carbon_text(stream)
         facts.append((f"feed {feed.name}", text))
-    mixed = mixed_steam_to_carbon(case)
+    mixed = mixed_steam_to_carbon(case, held)
     if mixed is not None:
         facts.append(("feeds mixed", mixed))
     tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
