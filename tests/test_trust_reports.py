@@ -422,3 +422,20 @@ def test_audit_findings_are_on_the_first_screen_in_a_browser(plant_audit, tmp_pa
     found = re.search(r"findings at (\d+)", done.stdout)
     assert found, done.stderr[-500:]
     assert int(found.group(1)) < 800
+
+
+def test_an_outlet_with_no_gas_phase_shows_no_gas_composition(tmp_path):
+    # Water at 27 degC and 1 bar is all liquid (its vapour pressure is 3.6 kPa, IAPWS-95, from memory):
+    # no gas mol% may be printed, neither 100 % for an empty gas nor 0 % per species.
+    case = tmp_path / "water.toml"
+    case.write_text('[case]\ntitle = "invented: water cooled"\n[feed]\nunit = "kmol/h"\nH2O = 100.0\n'
+                    '[conditions]\nT = "27 degC"\nP = "1 bar"\n')
+    _, report, _ = _facts(case)
+    tables = {t.key: t for t in report.tables}
+    outlet = tables["outlet"]
+    assert [r[0] for r in outlet.rows] == ["H2O(l)", "total gas"]
+    assert outlet.rows[-1][2:] == (0.0, None, None)
+    assert outlet.notes == ("(no gas phase: the condensed phases hold every atom)",)
+    stream = next(t for t in report.tables if t.title.startswith("Stream table"))
+    wet = next(r for r in stream.rows if r[:2] == ("H2O", "mol% wet"))
+    assert wet[2] == pytest.approx(100.0) and wet[3] is None  # feed: all steam; outlet: no gas

@@ -63,7 +63,8 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     if spec.partial_pressures:
         columns.append(Column(f"partial pressure [{partial_unit}]", "number"))
     extra = [None] if spec.partial_pressures else []
-    shown = [s for s in sorted(wet, key=lambda s: -wet[s]) if _shown(s, wet[s], spec)]
+    gas_species = wet if eq.gas_present else {}  # no gas phase: no composition to list or hide
+    shown = [s for s in sorted(gas_species, key=lambda s: -wet[s]) if _shown(s, wet[s], spec)]
     rows: list[tuple[object, ...]] = []
     for s in shown:
         pressure = [from_pascal(wet[s] * eq.P, partial_unit)] if spec.partial_pressures else []
@@ -72,9 +73,10 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     for s, n in eq.condensed.items():
         rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), None, None, *extra))
     gas_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items() if eq.phase_of[s] == "gas")
-    rows.append(("total gas", "gas", gas_flow, 100.0, 100.0 if dry else None, *extra))
-    notes = []
-    hidden = len(wet) - len(shown)
+    share = 100.0 if eq.gas_present else None
+    rows.append(("total gas", "gas", gas_flow, share, share if dry else None, *extra))
+    notes = [] if eq.gas_present else ["(no gas phase: the condensed phases hold every atom)"]
+    hidden = len(gas_species) - len(shown)
     if hidden:
         why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)}"
         notes.append(f"({hidden} gas species {why} not shown)")
@@ -160,7 +162,7 @@ def certificate_table(result: CaseResult) -> Table:
                   Column("iterations", "number"), Column("element balance", "exp"), Column("stationarity", "exp"),
                   Column("condensed-phase margin", "exp"), Column("one gas", "text")), tuple(rows),
                  ("element balance: max |A n - b| / max b; stationarity: max |mu/RT - a.lambda|; margin: "
-                  "smallest g0/RT - a.lambda of an absent condensed species (>= 0 when right)",
+                  "smallest g0/RT - a.lambda of an absent condensed species, or of an absent gas phase (>= 0 when right)",
                   "one gas: the tangent-plane test of a cubic gas (unstable: a liquid-like phase would form, so the "
                   "answer is not the equilibrium and is not certified)"),
                  key="certificate")

@@ -139,7 +139,7 @@ def stream_table(result: CaseResult) -> Table:
         rows.append((s, _FLOW, *(f.get(s, 0.0) for f in flows)))
         styles.append("flow")
     for s in gas_species:
-        rows.append((s, "mol% wet", *(w.get(s, 0.0) for w in wet)))
+        rows.append((s, "mol% wet", *(w.get(s, 0.0) if w else None for w in wet)))  # blank: no gas
         styles.append("percent")
     for s in gas_species:
         if any(s in d for d in dry):
