@@ -6,7 +6,6 @@ from our files), and the NIST-JANAF Thermochemical Tables (Chase 1998, 4th ed.,
 through the `janaf` package, as in test_formation_vs_janaf.py).
 """
 
-import hashlib
 import re
 import tomllib
 from pathlib import Path
@@ -15,6 +14,7 @@ import numpy as np
 import pytest
 
 import gibbsmin
+from checksums import assert_unchanged
 from gibbsmin import formation_properties
 from gibbsmin.formula import parse_formula
 from gibbsmin.thermo import DATA_SETS, data_set, default_database
@@ -63,12 +63,8 @@ def _atct_formula_counts(text):
 
 @pytest.mark.parametrize("filename", sorted(ANCHORED_DIGESTS))
 def test_anchored_file_checksum(filename):
-    data = (ANCHORED_DIR / filename).read_bytes().replace(b"\r\n", b"\n")
-    digest = hashlib.sha256(data).hexdigest()
-    assert digest == ANCHORED_DIGESTS[filename], (
-        f"species/atct-anchored/{filename} changed (sha256 {digest}). Regenerate it with "
-        "`python species/build_anchored.py`, review the diff, then update ANCHORED_DIGESTS deliberately."
-    )
+    assert_unchanged(ANCHORED_DIR / filename, ANCHORED_DIGESTS[filename], "species/build_anchored.py",
+                     "ANCHORED_DIGESTS in tests/test_data_sets.py")
 
 
 @pytest.mark.parametrize("filename", sorted(ANCHORED_COUNTS))

@@ -1,6 +1,5 @@
 """The species database: provenance, look-up, range flags, data-file checks, speed, checksums."""
 
-import hashlib
 import re
 import time
 import tomllib
@@ -10,6 +9,7 @@ import numpy as np
 import pytest
 
 import gibbsmin
+from checksums import assert_unchanged
 from gibbsmin.thermo import default_database, load_database
 
 SPECIES_DIR = Path(__file__).resolve().parent.parent / "species"
@@ -301,13 +301,8 @@ def test_database_loads_quickly(capsys):
 
 @pytest.mark.parametrize("filename", sorted(SHIPPED_DIGESTS))
 def test_shipped_file_checksum(filename):
-    data = (SPECIES_DIR / filename).read_bytes().replace(b"\r\n", b"\n")
-    digest = hashlib.sha256(data).hexdigest()
-    assert digest == SHIPPED_DIGESTS[filename], (
-        f"species/{filename} changed (sha256 {digest}). The data files are generated: "
-        "regenerate them with `python species/build_species.py`, review the diff, and then "
-        "update SHIPPED_DIGESTS in tests/test_database.py deliberately."
-    )
+    assert_unchanged(SPECIES_DIR / filename, SHIPPED_DIGESTS[filename], "species/build_species.py",
+                     "SHIPPED_DIGESTS in tests/test_database.py")
 
 
 @pytest.mark.parametrize("filename", sorted(SHIPPED_COUNTS))
