@@ -439,3 +439,14 @@ def test_an_outlet_with_no_gas_phase_shows_no_gas_composition(tmp_path):
     stream = next(t for t in report.tables if t.title.startswith("Stream table"))
     wet = next(r for r in stream.rows if r[:2] == ("H2O", "mol% wet"))
     assert wet[2] == pytest.approx(100.0) and wet[3] is None  # feed: all steam; outlet: no gas
+
+
+def test_a_feed_typed_without_a_temperature_shows_none(tmp_path):
+    # The case gives the feed no T: the stream table must not show the reader's 25 degC placeholder.
+    case = tmp_path / "no_feed_T.toml"
+    case.write_text('[case]\ntitle = "invented"\n[feed]\nunit = "kmol/h"\nCH4 = 100.0\nH2O = 300.0\n'
+                    '[conditions]\nT = "850 degC"\nP = "20 bar(g)"\n')
+    _, report, _ = _facts(case)
+    stream = next(t for t in report.tables if t.title.startswith("Stream table"))
+    temperature = next(r for r in stream.rows if r[0] == "temperature")
+    assert temperature[2] is None and temperature[3] == pytest.approx(850.0)

@@ -33,6 +33,7 @@ class _Column:
     title: str
     whole: Stream
     gas: Stream | None
+    T_given: bool = True  # a feed typed without a temperature has none to show
 
 
 def _stream(amounts: Mapping[str, float], T: float, P: float, like: Stream) -> Stream:
@@ -60,7 +61,7 @@ def stream_columns(result: CaseResult) -> list[_Column]:
         stream = feed.stream
         gas = {s: n for s, n in stream.feed_mol().items() if stream.database[s].is_gas}
         columns.append(_Column(feed.name, stream, _stream(gas, stream.T, stream.P, stream) if sum(gas.values()) > 0
-                               else None))
+                               else None, feed.T_given))
     previous = None
     for stage in result.stages:
         eq = stage.equilibrium
@@ -113,7 +114,7 @@ def stream_table(result: CaseResult) -> Table:
     flows = [c.whole.component_flows(_FLOW) for c in columns]
     unit = spec.temperature_unit
     rows: list[tuple[object, ...]] = [
-        ("temperature", unit, *(from_kelvin(c.whole.T, unit) for c in columns)),
+        ("temperature", unit, *(from_kelvin(c.whole.T, unit) if c.T_given else None for c in columns)),
         ("pressure", "bar(g)", *(c.whole.pressure_in("bar(g)") for c in columns)),
         ("pressure", "bar abs", *(c.whole.pressure_in("bar") for c in columns)),
     ]
