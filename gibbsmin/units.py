@@ -37,11 +37,15 @@ from __future__ import annotations
 import math
 import numbers
 import re
+import sys
+import threading
 import tokenize
 from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
-import pint
+if TYPE_CHECKING:
+    import pint
 
 from .errors import InputError
 from .thermo import R
@@ -105,20 +109,14 @@ class ReferenceConditions:
         return f"{self.T - 273.15:.6g} degC and {self.P / 1e3:.6g} kPa ({self.source})"
 
 
-#: The application's one unit registry; build quantities for gibbsmin with it.
-ureg = pint.UnitRegistry()
-Quantity = ureg.Quantity
-
 #: Normal conditions of DIN 1343 (1990): 273.15 K and 101325 Pa; the default for Nm3.
 NORMAL_DIN_1343 = ReferenceConditions(273.15, 101325.0, "DIN 1343")
 #: Standard reference conditions of ISO 13443 (1996) for natural gas: 288.15 K, 101325 Pa; used for Sm3.
 STANDARD_ISO_13443 = ReferenceConditions(288.15, 101325.0, "ISO 13443")
 #: 60 degF and 14.696 psia, common practice in the US gas trade; used for scf, MSCF, MMSCF, MMSCFD.
-STANDARD_US_GAS = ReferenceConditions(
-    float(Quantity(60.0, "degF").to("kelvin").magnitude),
-    float(Quantity(14.696, "psi").to("pascal").magnitude),
-    "60 degF and 14.696 psia, US gas practice",
-)
+#: The two floats are pint's own conversions of 60 degF and 14.696 psi, written out so that importing gibbsmin
+#: does not build the registry (tests/test_startup.py checks them against pint).
+STANDARD_US_GAS = ReferenceConditions(288.7055555555556, 101325.35318040226, "60 degF and 14.696 psia, US gas practice")
 
 
 def _ideal_gas_unit(conditions: ReferenceConditions, volume: str) -> str:
@@ -126,7 +124,7 @@ def _ideal_gas_unit(conditions: ReferenceConditions, volume: str) -> str:
     return f"{conditions.P!r} * pascal * {volume} / (molar_gas_constant * {conditions.T!r} * kelvin)"
 
 
-for _definition in (
+_TRADE_UNITS = (
     f"normal_cubic_meter = {_ideal_gas_unit(NORMAL_DIN_1343, 'meter ** 3')} = Nm3",
     f"standard_cubic_meter = {_ideal_gas_unit(STANDARD_ISO_13443, 'meter ** 3')} = Sm3",
     f"standard_cubic_foot = {_ideal_gas_unit(STANDARD_US_GAS, 'foot ** 3')} = scf = SCF",
@@ -137,8 +135,50 @@ for _definition in (
     "MSCFD = thousand_standard_cubic_feet / day = Mscfd",
     "MMSCFD = million_standard_cubic_feet / day = MMscfd",
     "pound_mole = 453.59237 * mole = lbmol = lb_mol",
-):
-    ureg.define(_definition)
+)
+
+# pint and its registry cost about 0.4 s, so the registry is built on the first conversion of a unit, not on
+# import; one lock, because quantities of two registries cannot be mixed.
+_REGISTRY: list[pint.UnitRegistry] = []
+_REGISTRY_LOCK = threading.Lock()
+
+
+def _registry() -> pint.UnitRegistry:
+    """The application's one unit registry (``ureg``), built on first use."""
+    if not _REGISTRY:
+        with _REGISTRY_LOCK:
+            if not _REGISTRY:
+                import pint
+
+                registry = pint.UnitRegistry()
+                for definition in _TRADE_UNITS:
+                    registry.define(definition)
+                _REGISTRY.append(registry)
+    return _REGISTRY[0]
+
+
+def __getattr__(name: str) -> object:
+    # ``units.ureg`` (the application's one unit registry; build quantities for gibbsmin with it) and
+    # ``units.Quantity`` stay public names; they build the registry when first asked for.
+    if name == "ureg":
+        return _registry()
+    if name == "Quantity":
+        return _registry().Quantity
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+def _is_quantity(value: object) -> bool:
+    """Whether ``value`` is a pint quantity (none can exist before pint is imported)."""
+    pint = sys.modules.get("pint")
+    return pint is not None and isinstance(value, pint.Quantity)
+
+
+def _quantity(magnitude: float, unit: str | pint.Unit) -> pint.Quantity:
+    return _registry().Quantity(magnitude, unit)
+
+
+def _dimensionality(unit: str) -> object:
+    return _quantity(1.0, unit).dimensionality
 
 _NORMAL_UNIT = "normal_cubic_meter"
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -195,7 +235,7 @@ _EXAMPLES = {
 
 def _split(value: object, default_unit: str | None, what: str) -> tuple[float, str, str]:
     """Magnitude, unit text and the original text (for messages) of a value given as text, number or Quantity."""
-    if isinstance(value, pint.Quantity):
+    if _is_quantity(value):
         magnitude, unit, shown = value.magnitude, str(value.units), str(value)
         if not isinstance(magnitude, numbers.Real):
             raise InputError(f"{what} {shown!r}: give a single number, not an array")
@@ -230,10 +270,10 @@ def _normalise_unit_text(unit: str) -> str:
 
     def replace(match: re.Match[str]) -> str:
         token = match.group(0).replace("^", "")
-        if token in ureg:
+        if token in _registry():
             return token
         stem = token.rstrip("0123456789")
-        if stem != token and stem in ureg:
+        if stem != token and stem in _registry():
             return f"{stem}**{token[len(stem):]}"
         return match.group(0)
 
@@ -241,8 +281,10 @@ def _normalise_unit_text(unit: str) -> str:
 
 
 def _parse_unit(unit: str, what: str, shown: str) -> pint.Unit:
+    import pint  # loaded with the registry (see _registry)
+
     try:
-        return ureg.parse_units(_normalise_unit_text(unit))
+        return _registry().parse_units(_normalise_unit_text(unit))
     except pint.UndefinedUnitError as exc:
         names = ", ".join(repr(name) for name in exc.unit_names)
         raise InputError(f"cannot read {what} {shown!r}: unknown unit {names} in {unit!r}; {_EXAMPLES[what]}") from None
@@ -306,7 +348,7 @@ def to_kelvin(value: float | str | pint.Quantity, default_unit: str = "K") -> fl
     1123.15
     """
     magnitude, unit, shown = _split(value, default_unit, "temperature")
-    kelvin = float(Quantity(magnitude, _temperature_unit(unit, shown)).to("kelvin").magnitude)
+    kelvin = float(_quantity(magnitude, _temperature_unit(unit, shown)).to("kelvin").magnitude)
     if kelvin <= 0.0:
         raise InputError(
             f"temperature {shown!r} is {kelvin:.6g} K, at or below absolute zero; "
@@ -317,12 +359,12 @@ def to_kelvin(value: float | str | pint.Quantity, default_unit: str = "K") -> fl
 
 def from_kelvin(T: float, unit: str) -> float:
     """A temperature [K] expressed in ``unit`` (``"degC"``, ``"degF"``, ``"K"``, ``"degR"``)."""
-    return float(Quantity(T, "kelvin").to(_temperature_unit(unit, unit)).magnitude)
+    return float(_quantity(T, "kelvin").to(_temperature_unit(unit, unit)).magnitude)
 
 
 def _unit_required(value: object, what: str, fix: str) -> None:
     """Refuse a number, or a text that is only a number, where an engineer typed ``what``: say how to write it."""
-    if isinstance(value, bool) or isinstance(value, pint.Quantity):
+    if isinstance(value, bool) or _is_quantity(value):
         return  # true/false is refused by the converter; a Quantity carries its unit
     if isinstance(value, numbers.Real):
         number = value
@@ -418,7 +460,7 @@ def to_pascal(
     """
     magnitude, unit, shown = _split(value, default_unit, "pressure")
     parsed, gauge = _pressure_unit(unit, shown)
-    pascal = float(Quantity(magnitude, parsed).to("pascal").magnitude)
+    pascal = float(_quantity(magnitude, parsed).to("pascal").magnitude)
     if gauge:
         if pascal < -atmosphere:
             raise InputError(
@@ -437,7 +479,7 @@ def to_pascal(
 def from_pascal(P: float, unit: str, *, atmosphere: float = STANDARD_ATMOSPHERE) -> float:
     """An absolute pressure [Pa] in ``unit``; gauge units (``"bar(g)"``, ``"psig"``) subtract ``atmosphere`` [Pa]."""
     parsed, gauge = _pressure_unit(unit, unit)
-    return float(Quantity(P - atmosphere if gauge else P, "pascal").to(parsed).magnitude)
+    return float(_quantity(P - atmosphere if gauge else P, "pascal").to(parsed).magnitude)
 
 
 def parse_pressure(value: str | pint.Quantity | float, *, atmosphere: float = STANDARD_ATMOSPHERE) -> float:
@@ -462,7 +504,7 @@ def _normal_scale(unit: pint.Unit, normal: ReferenceConditions) -> float:
     """Factor from the registry's DIN 1343 normal cubic metre to the normal conditions asked for."""
     if not isinstance(normal, ReferenceConditions):
         raise InputError(f"normal must be a ReferenceConditions (e.g. units.NORMAL_DIN_1343), not {normal!r}")
-    exponent = dict(Quantity(1.0, unit).unit_items()).get(_NORMAL_UNIT, 0)
+    exponent = dict(_quantity(1.0, unit).unit_items()).get(_NORMAL_UNIT, 0)
     ratio = (normal.P / normal.T) / (NORMAL_DIN_1343.P / NORMAL_DIN_1343.T)
     return ratio**exponent
 
@@ -478,8 +520,6 @@ def _check_molar_mass(molar_mass: float | None, shown: str) -> float:
     return float(molar_mass)
 
 
-_MOLAR_FLOW = Quantity(1.0, "mol/s").dimensionality
-_MASS_FLOW = Quantity(1.0, "g/s").dimensionality
 
 
 def _not_a_flow(shown: str, unit: pint.Unit) -> InputError:
@@ -535,10 +575,10 @@ def to_mol_s(
     """
     magnitude, unit_text, shown = _split(value, unit, "molar flow")
     parsed = _parse_unit(unit_text, "molar flow", shown)
-    if parsed.dimensionality == _MOLAR_FLOW:
-        mol_s = float(Quantity(magnitude, parsed).to("mol/s").magnitude) * _normal_scale(parsed, normal)
-    elif parsed.dimensionality == _MASS_FLOW:
-        mol_s = float(Quantity(magnitude, parsed).to("g/s").magnitude) / _check_molar_mass(molar_mass, shown)
+    if parsed.dimensionality == _dimensionality("mol/s"):
+        mol_s = float(_quantity(magnitude, parsed).to("mol/s").magnitude) * _normal_scale(parsed, normal)
+    elif parsed.dimensionality == _dimensionality("g/s"):
+        mol_s = float(_quantity(magnitude, parsed).to("g/s").magnitude) / _check_molar_mass(molar_mass, shown)
     else:
         raise _not_a_flow(shown, parsed)
     if mol_s < 0.0:
@@ -551,10 +591,10 @@ def from_mol_s(
 ) -> float:
     """A molar flow [mol/s] in ``unit``: molar, normal or standard volume, or mass (with ``molar_mass`` [g/mol])."""
     parsed = _parse_unit(unit, "molar flow", unit)
-    if parsed.dimensionality == _MOLAR_FLOW:
-        return float(Quantity(flow / _normal_scale(parsed, normal), "mol/s").to(parsed).magnitude)
-    if parsed.dimensionality == _MASS_FLOW:
-        return float(Quantity(flow * _check_molar_mass(molar_mass, unit), "g/s").to(parsed).magnitude)
+    if parsed.dimensionality == _dimensionality("mol/s"):
+        return float(_quantity(flow / _normal_scale(parsed, normal), "mol/s").to(parsed).magnitude)
+    if parsed.dimensionality == _dimensionality("g/s"):
+        return float(_quantity(flow * _check_molar_mass(molar_mass, unit), "g/s").to(parsed).magnitude)
     raise _not_a_flow(unit, parsed)
 
 
@@ -587,7 +627,7 @@ def to_fraction(value: float | str, default_unit: str = "fraction") -> float:
     float
         Mole fraction, [-], between 0 and 1.
     """
-    if isinstance(value, pint.Quantity):
+    if _is_quantity(value):
         raise InputError(f"give a composition as text ('12.5 mol%') or a number, not the quantity {value!r}")
     magnitude, unit, shown = _split(value, default_unit, "fraction")
     fraction = magnitude / _parts_per_whole(unit, shown)
