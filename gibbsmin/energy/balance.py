@@ -17,7 +17,7 @@ from ..settle import Setup, checked, solve_fixed
 from ..solve import SolverResult
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
-from .properties import FixedTStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
+from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
 
 
 #: The energy balance is solved to this fraction of the gross enthalpy (see ``enthalpy_scale``).
@@ -83,6 +83,7 @@ def solve_energy_balance(
     residual_enthalpy: ResidualEnthalpy | None = None,
     step: FixedTStep | None = None,
     phase_set_solve: bool = True,
+    phase_set_step: PhaseSetStep | None = None,
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
 
@@ -108,6 +109,10 @@ def solve_energy_balance(
         unknown (``sensitivity.settle_on_phase_set``).  That solve knows only
         the plain standard potentials: a step that shifts them (a reaction
         held at an approach) passes False and is bisected instead.
+    phase_set_step : callable, optional
+        That solve; ``sensitivity.settle_on_phase_set`` on the ideal gas by
+        default.  A non-ideal gas model passes its own, which holds the same
+        ln phi and residual enthalpy as ``step``.
 
     Returns
     -------
@@ -142,7 +147,7 @@ def solve_energy_balance(
         T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
     scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
     search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
-                     phase_set_solve)
+                     phase_set_solve, phase_set_step)
     return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
 
 
@@ -150,9 +155,10 @@ class _Search:
     """The bracketed search for the outlet temperature (one instance per solve)."""
 
     def __init__(self, setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
-                 phase_set_solve=True):
+                 phase_set_solve=True, phase_set_step=None):
         self.setup, self.H_target, self.P = setup, H_target, P
         self.phase_set_solve = phase_set_solve
+        self.phase_set_step = phase_set_step
         self.allow_extrapolation = allow_extrapolation
         self.T_low, self.T_high = T_bounds
         self.scale, self.residual_enthalpy, self.step = scale, residual_enthalpy, step
@@ -276,7 +282,8 @@ class _Search:
         if self.phase_set_tries >= _PHASE_SET_TRIES and not narrow:
             return None
         self.phase_set_tries += 1
-        settled = sensitivity.settle_on_phase_set(
+        solve = self.phase_set_step or sensitivity.settle_on_phase_set
+        settled = solve(
             self.setup, low.problem, low.result, high.result, low.T, high.T, low.f, high.f,
             self.H_target, self.P, self.residual_enthalpy, self.allow_extrapolation)
         if settled is None:
