@@ -28,7 +28,8 @@ where the heat sets only the split between the coexisting phases.
 Quantities are scaled by s = sum(b): amounts nu = n/s, enthalpies h/RT,
 temperature steps tau = dT/T.  The gas is ideal here; for a cubic gas, whose
 ln phi moves with T, P and composition, :func:`difference_sensitivities`
-differentiates whole solves instead.
+differentiates whole solves instead, and ``settle_on_phase_set`` takes the
+model's ln phi afresh at every iterate (its matrix stays the ideal one).
 """
 
 from __future__ import annotations

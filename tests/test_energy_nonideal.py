@@ -88,3 +88,32 @@ def test_condensing_outlet_with_a_cubic_holds_ln_phi_and_closes_the_balance(P, h
     # The same T solved at fixed T with the cubic gives the same split.
     fixed = gibbsmin.equilibrate(WET_HYDROGEN, eq.T, P, gas=GAS)
     assert fixed.amounts["H2O(l)"] == pytest.approx(eq.amounts["H2O(l)"], rel=1e-7)
+
+
+def test_boiling_plateau_with_a_cubic_sits_at_the_models_saturation_temperature():
+    # Steam at 700 K and 30 bar, cooled until part of it condenses: the coexisting phases fix T.  Before the
+    # fix the plateau was the ideal gas's (516.13 K, stationarity with ln phi off by 0.15).
+    import CoolProp.CoolProp as CP
+
+    steam = {"H2O": 1.0}
+    eq, calls = _settled(steam, 700.0, 30e5, -2.0e4)
+    assert True in calls and "phase_boundary" in eq.extras
+    assert 0.2 < eq.amounts["H2O(l)"] < 0.5 and eq.certificate.certified, eq.certificate.summary()
+    assert _nonideal_stationarity(eq) < 1e-8
+    assert abs(_energy_miss(eq, steam, 700.0, -2.0e4)) < 1e-10
+    # Saturation temperature of water at 3 MPa: 507.00 K (CoolProp 8.0, IAPWS-95 as Wagner and Pruss 2002
+    # give it).  Peng-Robinson's vapour fugacity with the NASA liquid puts it at 509.03 K; the ideal gas at
+    # 516.13 K.
+    T_saturation = CP.PropsSI("T", "P", 30e5, "Q", 0, "Water")
+    assert abs(eq.T - T_saturation) < 2.5
+
+
+def test_condensing_outlet_with_held_approach_machinery_and_a_cubic_holds_ln_phi():
+    # equilibrate_with_approach (nothing held) runs the same energy balance; it too took the ideal split
+    # before the fix (494.51 K where the cubic's answer is 488.14 K; stationarity with ln phi off by 0.13).
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        eq = gibbsmin.equilibrate_with_approach(WET_HYDROGEN, None, 30e5, T_feed=600.0, heat_input=-6.0e4, gas=GAS)
+    assert eq.amounts["H2O(l)"] > 0.1 and eq.certificate.certified, eq.certificate.summary()
+    assert _nonideal_stationarity(eq) < 1e-8
+    assert abs(_energy_miss(eq, WET_HYDROGEN, 600.0, -6.0e4)) < 1e-10

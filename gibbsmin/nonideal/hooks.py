@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import warnings
 from collections.abc import Mapping
 from dataclasses import replace
@@ -162,7 +163,7 @@ def energy_hooks(setup: Setup, P: float, phase: GasPhase, *, method: str = "auto
         return solve_nonideal(setup, T, P, phase, method=method, start=start,
                               allow_extrapolation=allow_extrapolation, specification="H and P")
     return {"residual_enthalpy": phase.residual_enthalpy, "step": step,
-            "phase_set_step": lambda *args, **kwargs: phase_set_step(phase, *args, **kwargs)}
+            "phase_set_step": functools.partial(phase_set_step, phase)}
 
 
 def phase_set_step(phase: GasPhase, setup: Setup, *args, **kwargs):
