@@ -344,7 +344,8 @@ def equilibrate_with_approach(
             setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
             coldest_feed=min(inlet.temperatures.values()), method=method, allow_extrapolation=allow_extrapolation,
             residual_enthalpy=residual, step=step, phase_set_solve=not held,
-            phase_set_step=None if phase is None else functools.partial(phase_set_step, phase))
+            phase_set_step=None if phase is None else functools.partial(phase_set_step, phase),
+            enthalpy_kinks=None if phase is None else phase.enthalpy_kinks)
         eq = dataclasses.replace(eq, specification=specification)
     else:
         eq, _, _ = step(T)

@@ -148,3 +148,26 @@ def test_result_conveniences():
     np.testing.assert_allclose(got.phi, np.exp(got.ln_phi))
     assert got.G_res_RT == pytest.approx(AMMONIA_LOOP.mole_fractions @ got.ln_phi, abs=1e-14)
     assert got.model == "srk"
+
+
+def test_residual_enthalpy_jumps_only_where_a_species_alpha_passes_its_minimum():
+    # Peng and Robinson (1976): kappa = 0.37464 + 1.54226 omega - 0.26992 omega^2 and sqrt(alpha) =
+    # 1 + kappa (1 - sqrt(Tr)), which vanishes at Tr = (1 + 1/kappa)^2.  CO (Tc 132.91 K, omega 0.049, the
+    # shipped constants): 1381.82 K.  H2 with the Gunn-Chueh-Prausnitz constants (omega = 0, Tc0 43.6 K,
+    # c1/M = 21.8/2.016 K): Tc0 (1 + 1/0.37464)^2 - c1/M = 576.18 K.
+    model = gas_model_for_species("peng-robinson", ["H2", "CO"])
+    kinks = model.alpha_minimum_temperatures
+    kappa = 0.37464 + 1.54226 * 0.049 - 0.26992 * 0.049**2
+    assert kinks[1] == pytest.approx(132.91 * (1 + 1 / kappa) ** 2, rel=1e-12)
+    assert kinks[0] == pytest.approx(43.6 * (1 + 1 / 0.37464) ** 2 - 21.8 / 2.016, rel=1e-12)
+    y = np.array([0.5, 0.5])
+
+    def step_of_H_res(T, h=1e-6):
+        return (model.properties(T + h, 150e5, y).H_res_RT * (T + h)
+                - model.properties(T - h, 150e5, y).H_res_RT * (T - h))
+
+    # Across each kink H_res/R steps up (by 7.3 K and 5.0 K for this gas at 150 bar); a kelvin away it moves
+    # by its smooth slope over 2 uK only.
+    for T_k in kinks:
+        assert step_of_H_res(T_k) > 1.0
+        assert abs(step_of_H_res(T_k + 1.0)) < 1e-6 and abs(step_of_H_res(T_k - 1.0)) < 1e-6

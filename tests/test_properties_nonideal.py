@@ -13,7 +13,7 @@ import math
 import warnings
 
 import numpy as np
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 import gibbsmin
@@ -66,6 +66,8 @@ def test_cubic_answers_are_certified_with_phi_at_their_own_composition(feed, T, 
 # Feeds above water's critical temperature: colder, a water-rich feed at loop pressure is a liquid, which the
 # one-gas model refuses with a ConvergenceError that says so (NH3 + 2 H2O at 550 K and 135 bar, found here).
 @given(feed=feeds, T_feed=st.floats(min_value=650.0, max_value=850.0), P=st.floats(min_value=20e5, max_value=250e5))
+# Found here: the outlet sits on the kink of CO's Soave alpha at 1381.82 K (see the regression test below).
+@example(feed={"H2": 3.75, "CO": 4.3125, "H2O": 0.5078125}, T_feed=767.0, P=19401849.0)
 def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
     # The outlet's enthalpy, residual enthalpy included, equals the inlet's: recomputed here from the
     # answer's amounts with the model, not read from the solver.
@@ -107,3 +109,32 @@ def test_an_outlet_on_hydrogens_alpha_kink_is_accepted_with_a_warning():
                                   gas="peng-robinson")
     assert eq.certificate.certified
     assert abs(eq.T - 576.18) < 0.01 and eq.extras["energy_balance_miss_K"] < 0.2
+
+
+def test_an_outlet_on_carbon_monoxides_alpha_kink_is_pinned_there():
+    # Found by the property test above (it raised ConvergenceError: "pinned at 1381.8 K, 149 J off"): CO's
+    # Soave alpha passes its minimum at Tc (1 + 1/kappa)^2 = 132.91 K x 10.397 = 1381.82 K, where the cubic's
+    # enthalpy of this CO-rich gas at 194 bar jumps by 602 J.  The target lies inside the jump, so the outlet
+    # is that temperature; 149 J from the side below, 0.15 K at the equilibrium heat capacity (1019 J/K).
+    import pytest
+
+    feed = {"H2": 3.75, "CO": 4.3125, "H2O": 0.5078125}
+    with pytest.warns(RuntimeWarning, match="Soave alpha of CO"):
+        eq = gibbsmin.equilibrate(feed, P=19401849.0, T_feed=767.0, adiabatic=True, species=[*LOOP_SPECIES],
+                                  gas="peng-robinson")
+    assert eq.certificate.certified, eq.certificate.summary()
+    assert abs(eq.T - 1381.819) < 1e-3
+    kink = eq.extras["enthalpy_kink"]
+    assert kink["species"] == "CO" and kink["below_J"] < 0.0 < kink["above_J"]
+    assert 500.0 < kink["jump_J"] < 700.0 and eq.extras["energy_balance_miss_K"] < 0.3
+    assert _stationarity(eq, "peng-robinson") < STATIONARITY
+    # The target enthalpy lies between the model's enthalpies just below and just above the kink, recomputed
+    # here from the answer's amounts.
+    from gibbsmin.energy import mixture_enthalpy
+    from gibbsmin.nonideal import residual_enthalpy_of_gas
+
+    H_in = mixture_enthalpy(feed, 767.0, eq.P) + residual_enthalpy_of_gas(feed, 767.0, eq.P, "peng-robinson")
+    gas_out = {s: n for s, n in eq.amounts.items() if n > 0.0}
+    below, above = (mixture_enthalpy(gas_out, T, eq.P) + residual_enthalpy_of_gas(gas_out, T, eq.P, "peng-robinson")
+                    for T in (eq.T - 1e-6, eq.T + 1e-6))
+    assert below < H_in < above and above - below > 500.0

@@ -157,13 +157,14 @@ def energy_hooks(setup: Setup, P: float, phase: GasPhase, *, method: str = "auto
     """Keyword arguments of ``energy.solve_energy_balance`` that put this gas model into the energy balance.
 
     The residual enthalpy enters the balance, every fixed-T step is the
-    non-ideal solve, and so is the solve with T unknown on a phase boundary.
+    non-ideal solve, and so is the solve with T unknown on a phase boundary;
+    the temperatures where the model's enthalpy jumps are named.
     """
     def step(T: float, start: SolverResult | None):
         return solve_nonideal(setup, T, P, phase, method=method, start=start,
                               allow_extrapolation=allow_extrapolation, specification="H and P")
     return {"residual_enthalpy": phase.residual_enthalpy, "step": step,
-            "phase_set_step": functools.partial(phase_set_step, phase)}
+            "phase_set_step": functools.partial(phase_set_step, phase), "enthalpy_kinks": phase.enthalpy_kinks}
 
 
 def phase_set_step(phase: GasPhase, setup: Setup, *args, **kwargs):
