@@ -29,6 +29,8 @@ _MAX_EVALUATIONS = 120
 _KINK_PROBE_WIDTH = 1e-2
 #: The probes sit this far either side of the kink, [-] of T.
 _KINK_PROBE_OFFSET = 1e-10
+#: The equilibrium heat capacity beside a kink is the slope of H over this span on the nearer side, [-] of T.
+_KINK_SLOPE_SPAN = 1e-4
 #: Phase-set solves tried while the bracket is wide (one more is always tried once it is narrow).
 _PHASE_SET_TRIES = 3
 
@@ -360,15 +362,21 @@ class _Search:
         composition is continuous.  The real gas has no such jump: it is the
         alpha function's, and how far a smooth one would move the outlet is
         about the target's distance from the nearer side over the equilibrium
-        heat capacity (``extras["energy_balance_miss_K"]``).
+        heat capacity there (``extras["energy_balance_miss_K"]``), which is
+        the slope of the model's own H_eq(T) on that side: the residual heat
+        capacity and the shift of the composition with T included.
         """
         species, T_k = kink
         point = self.evaluate(T_k)
         if not point.eq.certificate.certified:
             return self._give_up(low, high)
-        cp = next((p.cp for p in (point, low, high) if np.isfinite(p.cp) and p.cp > 0.0),
-                  heat_capacity(self.setup.system.table, state_amounts(self.setup, point.eq), T_k))
-        nearer = min(abs(low.f), abs(high.f))
+        side = low if abs(low.f) <= abs(high.f) else high
+        span = _KINK_SLOPE_SPAN * T_k * (-1.0 if side is low else 1.0)
+        beyond = self.evaluate(side.T + span)
+        cp = (beyond.f - side.f) / span
+        if not cp > 0.0:
+            cp = heat_capacity(self.setup.system.table, state_amounts(self.setup, point.eq), T_k)
+        nearer = abs(side.f)
         miss_K = nearer / cp
         jump = high.f - low.f
         warnings.warn(
