@@ -117,3 +117,20 @@ def test_condensing_outlet_with_held_approach_machinery_and_a_cubic_holds_ln_phi
     assert eq.amounts["H2O(l)"] > 0.1 and eq.certificate.certified, eq.certificate.summary()
     assert _nonideal_stationarity(eq) < 1e-8
     assert abs(_energy_miss(eq, WET_HYDROGEN, 600.0, -6.0e4)) < 1e-10
+
+
+@pytest.mark.parametrize("heat", [-1.0e4, -1.5e4, -2.5e4])
+def test_boiling_plateau_at_80_bar_is_reached_past_trial_temperatures_where_steam_has_no_vapour_root(heat):
+    # Steam from 700 K at 80 bar, cooled: the search tries temperatures far below the plateau, where the
+    # cubic of the steam-like gas has one real root, liquid-like; its root used to fail there at some
+    # temperatures (457.7 K here, with -1.5e4 J), raising ConvergenceError.  Saturation temperature at 8 MPa:
+    # 568.16 K (CoolProp 8.0, IAPWS-95 after Wagner and Pruss 2002); Peng-Robinson's vapour with the NASA
+    # liquid: 572.92 K.
+    import CoolProp.CoolProp as CP
+
+    steam = {"H2O": 1.0}
+    eq, _ = _settled(steam, 700.0, 80e5, heat)
+    assert "phase_boundary" in eq.extras and eq.certificate.certified, eq.certificate.summary()
+    assert 0.1 < eq.amounts["H2O(l)"] < 0.8
+    assert _nonideal_stationarity(eq) < 1e-8 and abs(_energy_miss(eq, steam, 700.0, heat)) < 1e-10
+    assert abs(eq.T - CP.PropsSI("T", "P", 80e5, "Q", 0, "Water")) < 5.5

@@ -171,3 +171,23 @@ def test_residual_enthalpy_jumps_only_where_a_species_alpha_passes_its_minimum()
     for T_k in kinks:
         assert step_of_H_res(T_k) > 1.0
         assert abs(step_of_H_res(T_k + 1.0)) < 1e-6 and abs(step_of_H_res(T_k - 1.0)) < 1e-6
+
+
+@pytest.mark.parametrize("family, T", [("peng-robinson", 488.5), ("srk", 499.6)])
+def test_the_one_liquid_like_root_is_found_where_no_vapour_root_exists(family: str, T: float):
+    # Reference: numpy.roots of the same cubic.  Pure water at 80 bar far below its boiling point (568 K at
+    # 80 bar, steam tables, from memory): the cubic has one real root, liquid-like, left of the inflection
+    # point, where Newton from 1 + B wandered and at these temperatures raised ConvergenceError.
+    model = gas_model_for_species(family, ["H2O"])
+    one = model.properties(T, 80e5, np.ones(1))
+    batch = model.properties(np.array([T, 700.0]), 80e5, np.ones((2, 1)))
+    assert one.Z < 0.1 and batch.Z[0] == pytest.approx(one.Z, rel=1e-12) and batch.Z[1] > 0.8
+    fam = {"peng-robinson": PENG_ROBINSON, "srk": SOAVE_REDLICH_KWONG}[family]
+    Tc, Pc, omega = 647.14, 22048320.0, 0.344  # the shipped constants of H2O
+    alpha = (1 + fam.kappa(omega) * (1 - np.sqrt(T / Tc))) ** 2
+    A = fam.omega_a * alpha * (T / Tc) ** -2 * 80e5 / Pc
+    B = fam.omega_b * (T / Tc) ** -1 * 80e5 / Pc
+    u, w = fam.delta1 + fam.delta2, fam.delta1 * fam.delta2
+    roots = np.roots([1.0, -(1 + B - u * B), A + w * B**2 - u * B - u * B**2, -(A * B + w * B**2 + w * B**3)])
+    real = roots[np.abs(roots.imag) < 1e-12].real
+    assert len(real) == 1 and one.Z == pytest.approx(real[0], rel=1e-10)
