@@ -11,37 +11,22 @@ Feeds and duties are invented.
 
 from __future__ import annotations
 
-import math
 import warnings
 
-import numpy as np
 import pytest
 
 import gibbsmin
 from gibbsmin import sensitivity
 from gibbsmin.energy import mixture_enthalpy
-from gibbsmin.eos import gas_model_for_species
 from gibbsmin.nonideal import residual_enthalpy_of_gas
+from test_properties_nonideal import _stationarity
 
-DB = gibbsmin.default_database()
-P_REF = 1.0e5  # Pa
 GAS = "peng-robinson"
 
 
 def _nonideal_stationarity(eq: gibbsmin.Equilibrium) -> float:
-    """max |mu_j/RT - a_j . lambda| over the present species, lambda fitted by least squares."""
-    present = [s for s, n in eq.amounts.items() if n > 0.0]
-    gas = [s for s in present if eq.phase_of[s] == "gas"]
-    described = [s for s in gas if DB[s].critical is not None]
-    y = np.array([eq.mole_fractions[s] for s in described])
-    ln_phi = dict(zip(described, gas_model_for_species(GAS, described).ln_phi(eq.T, eq.P, y / y.sum())))
-    elements = sorted({el for s in present for el in DB[s].elements})
-    A = np.array([[DB[s].elements.get(el, 0.0) for el in elements] for s in present])
-    g0 = DB.nasa7(present).g_RT(np.array([eq.T]))[0]
-    mu = np.array([g0[i] + (math.log(eq.P / P_REF) + math.log(eq.mole_fractions[s]) + ln_phi.get(s, 0.0)
-                            if s in gas else 0.0) for i, s in enumerate(present)])
-    lam = np.linalg.lstsq(A, mu, rcond=None)[0]
-    return float(np.max(np.abs(A @ lam - mu)))
+    """max |mu_j/RT - a_j . lambda| over the present species (condensates included), lambda by least squares."""
+    return _stationarity(eq, GAS)
 
 
 def _energy_miss(eq: gibbsmin.Equilibrium, feed: dict[str, float], T_feed: float, heat: float) -> float:

@@ -32,15 +32,17 @@ feeds = st.fixed_dictionaries({name: amounts for name in FEED_SPECIES}).map(
 
 
 def _stationarity(eq: gibbsmin.Equilibrium, gas: str) -> float:
-    names = [s for s in eq.amounts if eq.phase_of[s] == "gas" and math.isfinite(eq.ln_gas_amounts[s])]
-    described = [s for s in names if DB[s].critical is not None]
+    gas_names = [s for s in eq.amounts if eq.phase_of[s] == "gas" and math.isfinite(eq.ln_gas_amounts[s])]
+    # Present condensed species too (pure phases: mu = g0), for the energy-balance tests' condensates.
+    names = gas_names + [s for s, n in eq.amounts.items() if eq.phase_of[s] != "gas" and n > 0.0]
+    described = [s for s in gas_names if DB[s].critical is not None]
     y = np.array([eq.mole_fractions[s] for s in described])
     ln_phi = dict(zip(described, gas_model_for_species(gas, described).ln_phi(eq.T, eq.P, y / y.sum())))
     elements = sorted({el for s in names for el in DB[s].elements})
     A = np.array([[DB[s].elements.get(el, 0.0) for el in elements] for s in names])
     g0 = DB.nasa7(names).g_RT(np.array([eq.T]))[0]
-    mu = np.array([g0[i] + math.log(eq.P / P_REF) + math.log(eq.mole_fractions[s]) + ln_phi.get(s, 0.0)
-                   for i, s in enumerate(names)])
+    mu = np.array([g0[i] + (math.log(eq.P / P_REF) + math.log(eq.mole_fractions[s]) + ln_phi.get(s, 0.0)
+                            if s in gas_names else 0.0) for i, s in enumerate(names)])
     # Every gas species present, traces included: the solver keeps ln n exact however small n is.
     lam = np.linalg.lstsq(A, mu, rcond=None)[0]
     return float(np.max(np.abs(A @ lam - mu)))
