@@ -36,6 +36,7 @@ not element potentials, to judge it.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 import numbers
 from collections.abc import Mapping, Sequence
@@ -335,14 +336,16 @@ def equilibrate_with_approach(
 
     residual = None if phase is None else phase.residual_enthalpy
     # Imported here: the cubic's helpers build on solve_fixed.
-    from .nonideal import inlet_enthalpies, stability_checked, with_stability_verdict
+    from .nonideal import inlet_enthalpies, phase_set_step, stability_checked, with_stability_verdict
 
     H_in, gross_in = inlet_enthalpies(phase, inlet, P, db, allow_extrapolation)
     if energy_balance:
         eq, _, _ = energy.solve_energy_balance(
             setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
             coldest_feed=min(inlet.temperatures.values()), method=method, allow_extrapolation=allow_extrapolation,
-            residual_enthalpy=residual, step=step, phase_set_solve=not held)
+            residual_enthalpy=residual, step=step, phase_set_solve=not held,
+            phase_set_step=None if phase is None else functools.partial(phase_set_step, phase),
+            enthalpy_kinks=None if phase is None else phase.enthalpy_kinks)
         eq = dataclasses.replace(eq, specification=specification)
     else:
         eq, _, _ = step(T)

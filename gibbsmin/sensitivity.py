@@ -28,7 +28,8 @@ where the heat sets only the split between the coexisting phases.
 Quantities are scaled by s = sum(b): amounts nu = n/s, enthalpies h/RT,
 temperature steps tau = dT/T.  The gas is ideal here; for a cubic gas, whose
 ln phi moves with T, P and composition, :func:`difference_sensitivities`
-differentiates whole solves instead.
+differentiates whole solves instead, and ``settle_on_phase_set`` takes the
+model's ln phi afresh at every iterate (its matrix stays the ideal one).
 """
 
 from __future__ import annotations
@@ -329,6 +330,8 @@ def settle_on_phase_set(
     residual_enthalpy: Callable[[float, float, NDArray[np.float64]], float] | None = None,
     allow_extrapolation: bool = False,
     max_iterations: int = 50,
+    ln_phi: Callable[[float, float, NDArray[np.float64]], NDArray[np.float64]] | None = None,
+    gas_model: str = "ideal",
 ) -> tuple[Equilibrium, Problem, SolverResult] | None:
     """Equilibrium at fixed H and P with the union of two phase sets present and T unknown.
 
@@ -347,6 +350,18 @@ def settle_on_phase_set(
         enthalpies miss the target by f_low < 0 < f_high [J].
     H_target : float
         [J].
+    residual_enthalpy : callable, optional
+        The gas model's residual enthalpy (T [K], P [Pa], gas amounts [mol]
+        in the System's gas order) -> [J]; ideal gas when omitted.
+    ln_phi : callable, optional
+        The gas model's ln phi (same arguments) -> one value per System gas
+        species; ideal gas when omitted.  It is evaluated afresh at every
+        iterate's T and composition and held fixed within that Newton step
+        (the frozen-phi outer loop of a fixed-T solve, one step per pass), so
+        the converged state meets the non-ideal conditions, and the answer's
+        certificate is taken with phi at its own composition.
+    gas_model : str
+        Name of the gas model, for the answer.
     """
     system = setup.system
     G = problem.n_gas
@@ -363,10 +378,20 @@ def settle_on_phase_set(
     M = A.shape[0]
     s = float(problem.b[0].sum())
     beta = problem.b[0] / s
+    kept_gas = problem.keep[:G]
+
+    def gas_amounts(ln_n_kept):
+        """Gas amounts in the System's gas order, [mol]."""
+        n_gas_system = np.zeros(system.n_gas)
+        n_gas_system[kept_gas] = np.exp(ln_n_kept)
+        return n_gas_system
+
     for iteration in range(1, max_iterations + 1):
         state = _state(problem, ln_n, n_c_all, present)
         C = state.A_c.shape[1]
         mu0 = standard_mu0(system, np.array([T]), np.array([P]))[0, problem.keep]
+        if ln_phi is not None:
+            mu0[:G] += ln_phi(T, P, gas_amounts(ln_n))[kept_gas]
         h, cp = _kept_properties(setup, problem, T)
         h_g, h_c = h[:G], h[G:][state.present]
         ln_nu = ln_n - np.log(s)
@@ -376,9 +401,7 @@ def settle_on_phase_set(
         n_kept = np.concatenate([np.exp(ln_n), n_c_all])
         H = float(n_kept @ (h * (R * T)))
         if residual_enthalpy is not None:
-            n_gas_system = np.zeros(system.n_gas)
-            n_gas_system[problem.keep[:G]] = np.exp(ln_n)
-            H += float(residual_enthalpy(T, P, n_gas_system))
+            H += float(residual_enthalpy(T, P, gas_amounts(ln_n)))
         r_energy = (H - H_target) / (R * T * s)
         if max(np.abs(r_gas).max(initial=0), np.abs(r_cond).max(initial=0), np.abs(r_elem).max(initial=0),
                abs(r_energy)) < 1e-12:
@@ -425,8 +448,11 @@ def settle_on_phase_set(
     if not T_low - PHASE_BOUNDARY_SLACK <= T <= T_high + PHASE_BOUNDARY_SLACK:
         return None
     n_c_all = np.where(present, np.maximum(n_c_all, 0.0), 0.0)
+    # The loop stopped at a state whose residuals were taken with ln phi at that very state.
+    held = None if ln_phi is None else ln_phi(T, P, gas_amounts(ln_n))
     try:
-        at_T = build_problem(setup, np.array([T]), np.array([P]), allow_extrapolation=allow_extrapolation)
+        at_T = build_problem(setup, np.array([T]), np.array([P]), ln_phi=held,
+                             allow_extrapolation=allow_extrapolation)
     except ValueError:
         return None
     # The present phases are allowed, even a few mK outside a fit that meets its neighbour there.
@@ -437,4 +463,5 @@ def settle_on_phase_set(
                           pi=pi[None, :], converged=np.array([True]), iterations=np.array([iteration]),
                           method=("newton+energy balance",))
     certificates = certify(at_T, result)
-    return to_equilibrium(setup, at_T, result, certificates, 0, float(T), P, specification="H and P"), at_T, result
+    return to_equilibrium(setup, at_T, result, certificates, 0, float(T), P, gas_model=gas_model,
+                          specification="H and P"), at_T, result

@@ -148,3 +148,46 @@ def test_result_conveniences():
     np.testing.assert_allclose(got.phi, np.exp(got.ln_phi))
     assert got.G_res_RT == pytest.approx(AMMONIA_LOOP.mole_fractions @ got.ln_phi, abs=1e-14)
     assert got.model == "srk"
+
+
+def test_residual_enthalpy_jumps_only_where_a_species_alpha_passes_its_minimum():
+    # Peng and Robinson (1976): kappa = 0.37464 + 1.54226 omega - 0.26992 omega^2 and sqrt(alpha) =
+    # 1 + kappa (1 - sqrt(Tr)), which vanishes at Tr = (1 + 1/kappa)^2.  CO (Tc 132.91 K, omega 0.049, the
+    # shipped constants): 1381.82 K.  H2 with the Gunn-Chueh-Prausnitz constants (omega = 0, Tc0 43.6 K,
+    # c1/M = 21.8/2.016 K): Tc0 (1 + 1/0.37464)^2 - c1/M = 576.18 K.
+    model = gas_model_for_species("peng-robinson", ["H2", "CO"])
+    kinks = model.alpha_minimum_temperatures
+    kappa = 0.37464 + 1.54226 * 0.049 - 0.26992 * 0.049**2
+    assert kinks[1] == pytest.approx(132.91 * (1 + 1 / kappa) ** 2, rel=1e-12)
+    assert kinks[0] == pytest.approx(43.6 * (1 + 1 / 0.37464) ** 2 - 21.8 / 2.016, rel=1e-12)
+    y = np.array([0.5, 0.5])
+
+    def step_of_H_res(T, h=1e-6):
+        return (model.properties(T + h, 150e5, y).H_res_RT * (T + h)
+                - model.properties(T - h, 150e5, y).H_res_RT * (T - h))
+
+    # Across each kink H_res/R steps up (by 7.3 K and 5.0 K for this gas at 150 bar); a kelvin away it moves
+    # by its smooth slope over 2 uK only.
+    for T_k in kinks:
+        assert step_of_H_res(T_k) > 1.0
+        assert abs(step_of_H_res(T_k + 1.0)) < 1e-6 and abs(step_of_H_res(T_k - 1.0)) < 1e-6
+
+
+@pytest.mark.parametrize("family, T", [("peng-robinson", 488.5), ("srk", 499.6)])
+def test_the_one_liquid_like_root_is_found_where_no_vapour_root_exists(family: str, T: float):
+    # Reference: numpy.roots of the same cubic.  Pure water at 80 bar far below its boiling point (568 K at
+    # 80 bar, steam tables, from memory): the cubic has one real root, liquid-like, left of the inflection
+    # point, where Newton from 1 + B wandered and at these temperatures raised ConvergenceError.
+    model = gas_model_for_species(family, ["H2O"])
+    one = model.properties(T, 80e5, np.ones(1))
+    batch = model.properties(np.array([T, 700.0]), 80e5, np.ones((2, 1)))
+    assert one.Z < 0.1 and batch.Z[0] == pytest.approx(one.Z, rel=1e-12) and batch.Z[1] > 0.8
+    fam = {"peng-robinson": PENG_ROBINSON, "srk": SOAVE_REDLICH_KWONG}[family]
+    Tc, Pc, omega = 647.14, 22048320.0, 0.344  # the shipped constants of H2O
+    alpha = (1 + fam.kappa(omega) * (1 - np.sqrt(T / Tc))) ** 2
+    A = fam.omega_a * alpha * (T / Tc) ** -2 * 80e5 / Pc
+    B = fam.omega_b * (T / Tc) ** -1 * 80e5 / Pc
+    u, w = fam.delta1 + fam.delta2, fam.delta1 * fam.delta2
+    roots = np.roots([1.0, -(1 + B - u * B), A + w * B**2 - u * B - u * B**2, -(A * B + w * B**2 + w * B**3)])
+    real = roots[np.abs(roots.imag) < 1e-12].real
+    assert len(real) == 1 and one.Z == pytest.approx(real[0], rel=1e-10)

@@ -13,7 +13,7 @@ import math
 import warnings
 
 import numpy as np
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, assume, example, given, settings
 from hypothesis import strategies as st
 
 import gibbsmin
@@ -32,15 +32,17 @@ feeds = st.fixed_dictionaries({name: amounts for name in FEED_SPECIES}).map(
 
 
 def _stationarity(eq: gibbsmin.Equilibrium, gas: str) -> float:
-    names = [s for s in eq.amounts if eq.phase_of[s] == "gas" and math.isfinite(eq.ln_gas_amounts[s])]
-    described = [s for s in names if DB[s].critical is not None]
+    gas_names = [s for s in eq.amounts if eq.phase_of[s] == "gas" and math.isfinite(eq.ln_gas_amounts[s])]
+    # Present condensed species too (pure phases: mu = g0), for the energy-balance tests' condensates.
+    names = gas_names + [s for s, n in eq.amounts.items() if eq.phase_of[s] != "gas" and n > 0.0]
+    described = [s for s in gas_names if DB[s].critical is not None]
     y = np.array([eq.mole_fractions[s] for s in described])
     ln_phi = dict(zip(described, gas_model_for_species(gas, described).ln_phi(eq.T, eq.P, y / y.sum())))
     elements = sorted({el for s in names for el in DB[s].elements})
     A = np.array([[DB[s].elements.get(el, 0.0) for el in elements] for s in names])
     g0 = DB.nasa7(names).g_RT(np.array([eq.T]))[0]
-    mu = np.array([g0[i] + math.log(eq.P / P_REF) + math.log(eq.mole_fractions[s]) + ln_phi.get(s, 0.0)
-                   for i, s in enumerate(names)])
+    mu = np.array([g0[i] + (math.log(eq.P / P_REF) + math.log(eq.mole_fractions[s]) + ln_phi.get(s, 0.0)
+                            if s in gas_names else 0.0) for i, s in enumerate(names)])
     # Every gas species present, traces included: the solver keeps ln n exact however small n is.
     lam = np.linalg.lstsq(A, mu, rcond=None)[0]
     return float(np.max(np.abs(A @ lam - mu)))
@@ -66,6 +68,13 @@ def test_cubic_answers_are_certified_with_phi_at_their_own_composition(feed, T, 
 # Feeds above water's critical temperature: colder, a water-rich feed at loop pressure is a liquid, which the
 # one-gas model refuses with a ConvergenceError that says so (NH3 + 2 H2O at 550 K and 135 bar, found here).
 @given(feed=feeds, T_feed=st.floats(min_value=650.0, max_value=850.0), P=st.floats(min_value=20e5, max_value=250e5))
+# Found here: the outlet sits on the kink of CO's Soave alpha at 1381.82 K (see the regression test below).
+@example(feed={"H2": 3.75, "CO": 4.3125, "H2O": 0.5078125}, T_feed=767.0, P=19401849.0)
+# Found here: outlets on hydrogen's kink (576.18 K) 0.36 K and 0.32 K from the nearer side of jumps of 423 J and
+# 610 J; with the heat capacity of the ideal-gas sensitivities (261 J/K where H_eq's own slope is 362 J/K) the
+# miss came out as 0.50000 K.
+@example(feed={"N2": 0.015625, "NH3": 2.0}, T_feed=767.0, P=20669376.0)
+@example(feed={"NH3": 2.0625, "CO": 0.01, "H2O": 1.3125}, T_feed=730.0, P=15690592.0)
 def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
     # The outlet's enthalpy, residual enthalpy included, equals the inlet's: recomputed here from the
     # answer's amounts with the model, not read from the solver.
@@ -76,6 +85,9 @@ def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
         warnings.simplefilter("ignore", RuntimeWarning)
         eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=[*LOOP_SPECIES],
                                   gas="peng-robinson")
+    # Cracking ammonia cools the gas: a water-rich feed can leave below its dew point, where the one-gas answer
+    # is rightly not certified (NH3 + 2 H2O from 650 K at 89 bar, found here; see the test below).
+    assume(eq.certificate.phase_stability != "unstable")
     assert eq.certificate.certified, eq.certificate.summary()
     gas_out = {s: n for s, n in eq.amounts.items() if eq.phase_of[s] == "gas" and n > 0.0}
     H_in = mixture_enthalpy(feed, T_feed, P) + residual_enthalpy_of_gas(feed, T_feed, P, "peng-robinson")
@@ -85,6 +97,28 @@ def test_adiabatic_cubic_answers_close_their_energy_balance(feed, T_feed, P):
         assert eq.extras["energy_balance_miss_K"] <= 0.5
     else:
         assert abs(H_out - H_in) <= 1e-8 * scale
+
+
+def test_an_adiabatic_outlet_below_its_dew_point_is_not_certified_and_still_closes_its_balance():
+    # Found by the property test above: NH3 + 2 H2O from 650 K at 89 bar cracks to 538.8 K, where the
+    # water-rich gas is past its dew point.  At 100 bar it leaves at 544.2 K with 61 mol% water, about 61 bar
+    # of it against a vapour pressure near 55 bar at that temperature (steam tables, from memory): the
+    # tangent-plane test finds a water-rich liquid (90 mol% H2O), so the one-gas answer is not certified.
+    import pytest
+
+    from gibbsmin.energy import mixture_enthalpy
+    from gibbsmin.nonideal import residual_enthalpy_of_gas
+
+    feed = {"NH3": 1.0, "H2O": 2.0}
+    with pytest.warns(RuntimeWarning, match="NOT stable as one gas"):
+        eq = gibbsmin.equilibrate(feed, P=100e5, T_feed=650.0, adiabatic=True, species=[*LOOP_SPECIES],
+                                  gas="peng-robinson")
+    assert not eq.certificate.certified and eq.certificate.phase_stability == "unstable"
+    assert eq.extras["gas_phase_stability"]["would_form"]["H2O"] > 0.8 and 540.0 < eq.T < 550.0
+    gas_out = {s: n for s, n in eq.amounts.items() if n > 0.0}
+    H_in = mixture_enthalpy(feed, 650.0, eq.P) + residual_enthalpy_of_gas(feed, 650.0, eq.P, "peng-robinson")
+    H_out = mixture_enthalpy(gas_out, eq.T, eq.P) + residual_enthalpy_of_gas(gas_out, eq.T, eq.P, "peng-robinson")
+    assert abs(H_out - H_in) <= 1e-8 * (abs(H_in) + abs(H_out))
 
 
 def test_a_liquid_like_feed_is_refused_with_a_reason():
@@ -107,3 +141,32 @@ def test_an_outlet_on_hydrogens_alpha_kink_is_accepted_with_a_warning():
                                   gas="peng-robinson")
     assert eq.certificate.certified
     assert abs(eq.T - 576.18) < 0.01 and eq.extras["energy_balance_miss_K"] < 0.2
+
+
+def test_an_outlet_on_carbon_monoxides_alpha_kink_is_pinned_there():
+    # Found by the property test above (it raised ConvergenceError: "pinned at 1381.8 K, 149 J off"): CO's
+    # Soave alpha passes its minimum at Tc (1 + 1/kappa)^2 = 132.91 K x 10.397 = 1381.82 K, where the cubic's
+    # enthalpy of this CO-rich gas at 194 bar jumps by 602 J.  The target lies inside the jump, so the outlet
+    # is that temperature; 149 J from the side below, 0.15 K at the equilibrium heat capacity (1019 J/K).
+    import pytest
+
+    feed = {"H2": 3.75, "CO": 4.3125, "H2O": 0.5078125}
+    with pytest.warns(RuntimeWarning, match="Soave alpha of CO"):
+        eq = gibbsmin.equilibrate(feed, P=19401849.0, T_feed=767.0, adiabatic=True, species=[*LOOP_SPECIES],
+                                  gas="peng-robinson")
+    assert eq.certificate.certified, eq.certificate.summary()
+    assert abs(eq.T - 1381.819) < 1e-3
+    kink = eq.extras["enthalpy_kink"]
+    assert kink["species"] == "CO" and kink["below_J"] < 0.0 < kink["above_J"]
+    assert 500.0 < kink["jump_J"] < 700.0 and eq.extras["energy_balance_miss_K"] < 0.3
+    assert _stationarity(eq, "peng-robinson") < STATIONARITY
+    # The target enthalpy lies between the model's enthalpies just below and just above the kink, recomputed
+    # here from the answer's amounts.
+    from gibbsmin.energy import mixture_enthalpy
+    from gibbsmin.nonideal import residual_enthalpy_of_gas
+
+    H_in = mixture_enthalpy(feed, 767.0, eq.P) + residual_enthalpy_of_gas(feed, 767.0, eq.P, "peng-robinson")
+    gas_out = {s: n for s, n in eq.amounts.items() if n > 0.0}
+    below, above = (mixture_enthalpy(gas_out, T, eq.P) + residual_enthalpy_of_gas(gas_out, T, eq.P, "peng-robinson")
+                    for T in (eq.T - 1e-6, eq.T + 1e-6))
+    assert below < H_in < above and above - below > 500.0

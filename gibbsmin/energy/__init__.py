@@ -44,8 +44,10 @@ Everything here takes the gas's residual enthalpy as a hook, zero by default:
 residual_enthalpy=, step=)`` (``step`` being the fixed-T solve with the
 equation of state's fugacity coefficients), ``energy_extras(...,
 residual_enthalpy=)`` and ``Inlet.enthalpy(..., stream_residual=)``.  The
-sensitivities and the phase-boundary Newton hold the fugacity coefficients
-fixed, which slows but does not misdirect them.
+phase-boundary Newton takes the model's ln phi too (``phase_set_step=``):
+evaluated afresh at every iterate and held within its step, so its answer
+meets the non-ideal conditions; the Newton steps on T use the ideal heat
+capacity, which slows but does not misdirect them.
 """
 
 from .balance import enthalpy_scale as enthalpy_scale

@@ -17,7 +17,7 @@ from ..settle import Setup, checked, solve_fixed
 from ..solve import SolverResult
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
-from .properties import FixedTStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
+from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
 
 
 #: The energy balance is solved to this fraction of the gross enthalpy (see ``enthalpy_scale``).
@@ -25,8 +25,12 @@ _TOLERANCE = 1e-11
 #: An answer is still accepted at this closure when the bracket cannot shrink any further.
 _ACCEPTABLE = 1e-9
 _MAX_EVALUATIONS = 120
-#: Where the model's enthalpy jumps, an answer is accepted (with a warning) if the miss is this small, [K].
-_ACCEPTABLE_MISS_K = 0.5
+#: A kink of the gas model's enthalpy inside the bracket is probed once the bracket is this narrow, [-] of T.
+_KINK_PROBE_WIDTH = 1e-2
+#: The probes sit this far either side of the kink, [-] of T.
+_KINK_PROBE_OFFSET = 1e-10
+#: The equilibrium heat capacity beside a kink is the slope of H over this span on the nearer side, [-] of T.
+_KINK_SLOPE_SPAN = 1e-4
 #: Phase-set solves tried while the bracket is wide (one more is always tried once it is narrow).
 _PHASE_SET_TRIES = 3
 
@@ -83,6 +87,8 @@ def solve_energy_balance(
     residual_enthalpy: ResidualEnthalpy | None = None,
     step: FixedTStep | None = None,
     phase_set_solve: bool = True,
+    phase_set_step: PhaseSetStep | None = None,
+    enthalpy_kinks: Mapping[str, float] | None = None,
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
 
@@ -108,6 +114,15 @@ def solve_energy_balance(
         unknown (``sensitivity.settle_on_phase_set``).  That solve knows only
         the plain standard potentials: a step that shifts them (a reaction
         held at an approach) passes False and is bisected instead.
+    phase_set_step : callable, optional
+        That solve; ``sensitivity.settle_on_phase_set`` on the ideal gas by
+        default.  A non-ideal gas model passes its own, which holds the same
+        ln phi and residual enthalpy as ``step``.
+    enthalpy_kinks : mapping, optional
+        Species to the temperature [K] where the gas model's enthalpy of a gas
+        holding it jumps (``GasPhase.enthalpy_kinks``).  An outlet whose
+        energy balance falls inside such a jump is pinned there, with a
+        warning and ``extras["enthalpy_kink"]``.
 
     Returns
     -------
@@ -142,7 +157,7 @@ def solve_energy_balance(
         T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
     scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
     search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
-                     phase_set_solve)
+                     phase_set_solve, phase_set_step, enthalpy_kinks)
     return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
 
 
@@ -150,9 +165,11 @@ class _Search:
     """The bracketed search for the outlet temperature (one instance per solve)."""
 
     def __init__(self, setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
-                 phase_set_solve=True):
+                 phase_set_solve=True, phase_set_step=None, enthalpy_kinks=None):
         self.setup, self.H_target, self.P = setup, H_target, P
+        self.enthalpy_kinks = dict(enthalpy_kinks or {})
         self.phase_set_solve = phase_set_solve
+        self.phase_set_step = phase_set_step
         self.allow_extrapolation = allow_extrapolation
         self.T_low, self.T_high = T_bounds
         self.scale, self.residual_enthalpy, self.step = scale, residual_enthalpy, step
@@ -229,6 +246,13 @@ class _Search:
             answer = self._try_phase_boundary(low, high)
             if answer is not None:
                 return answer
+            kink = self._kink_inside(low, high)
+            if kink is not None:
+                probe = self._kink_probe(kink, low, high)
+                if probe is None:
+                    return self._on_kink(kink, low, high)
+                T, previous = probe, None
+                continue
             width = high.T - low.T
             if width <= 1e-13 * high.T:
                 return self._give_up(low, high)
@@ -276,7 +300,8 @@ class _Search:
         if self.phase_set_tries >= _PHASE_SET_TRIES and not narrow:
             return None
         self.phase_set_tries += 1
-        settled = sensitivity.settle_on_phase_set(
+        solve = self.phase_set_step or sensitivity.settle_on_phase_set
+        settled = solve(
             self.setup, low.problem, low.result, high.result, low.T, high.T, low.f, high.f,
             self.H_target, self.P, self.residual_enthalpy, self.allow_extrapolation)
         if settled is None:
@@ -304,6 +329,67 @@ class _Search:
             }
         return self.finish(point, extras)
 
+    def _kink_inside(self, low: _Point, high: _Point) -> tuple[str, float] | None:
+        """The species and temperature of a kink of the gas model's enthalpy in a narrow bracket, if any.
+
+        Where a species' Soave alpha passes its minimum the model's enthalpy
+        jumps upward with T (``CubicModel.alpha_minimum_temperatures``); an
+        energy balance that falls inside the jump has no root but the kink.
+        """
+        if high.T - low.T > _KINK_PROBE_WIDTH * high.T:
+            return None
+        gas = low.eq.amounts
+        inside = [(T_k, name) for name, T_k in self.enthalpy_kinks.items()
+                  if low.T <= T_k <= high.T and gas.get(name, 0.0) > 0.0]
+        return (min(inside)[1], min(inside)[0]) if inside else None
+
+    def _kink_probe(self, kink: tuple[str, float], low: _Point, high: _Point) -> float | None:
+        """The next temperature just beside the kink that the bracket has not reached, or None."""
+        T_k = kink[1]
+        offset = _KINK_PROBE_OFFSET * T_k
+        if low.T < T_k - offset:
+            return T_k - offset
+        if high.T > T_k + offset:
+            return T_k + offset
+        return None
+
+    def _on_kink(self, kink: tuple[str, float], low: _Point, high: _Point):
+        """The outlet pinned at a kink of the gas model's enthalpy that the target falls inside.
+
+        At constant composition the model's G(T) bends there (the mixing rule's
+        |m| of that species), so H and S jump upward as at a latent heat, and
+        every enthalpy inside the jump belongs to that one temperature; the
+        composition is continuous.  The real gas has no such jump: it is the
+        alpha function's, and how far a smooth one would move the outlet is
+        about the target's distance from the nearer side over the equilibrium
+        heat capacity there (``extras["energy_balance_miss_K"]``), which is
+        the slope of the model's own H_eq(T) on that side: the residual heat
+        capacity and the shift of the composition with T included.
+        """
+        species, T_k = kink
+        point = self.evaluate(T_k)
+        if not point.eq.certificate.certified:
+            return self._give_up(low, high)
+        side = low if abs(low.f) <= abs(high.f) else high
+        span = _KINK_SLOPE_SPAN * T_k * (-1.0 if side is low else 1.0)
+        beyond = self.evaluate(side.T + span)
+        cp = (beyond.f - side.f) / span
+        if not cp > 0.0:
+            cp = heat_capacity(self.setup.system.table, state_amounts(self.setup, point.eq), T_k)
+        nearer = abs(side.f)
+        miss_K = nearer / cp
+        jump = high.f - low.f
+        warnings.warn(
+            f"the enthalpy of the gas model jumps by {jump:.3g} J at {T_k:.9g} K, where the Soave alpha of "
+            f"{species} passes its minimum (a kink of the cubic's alpha function, which the real gas does not "
+            f"have): the outlet is pinned there, {nearer:.3g} J ({miss_K:.2g} K on the outlet) from the nearer "
+            "side of the jump", RuntimeWarning, stacklevel=5)
+        return self.finish(point, {"energy_balance_miss_K": miss_K, "enthalpy_kink": {
+            "T_K": T_k, "species": species, "jump_J": jump, "below_J": low.f, "above_J": high.f,
+            "note": f"the cubic's enthalpy jumps where the Soave alpha of {species} passes its minimum; every "
+                    "enthalpy inside the jump belongs to this temperature (below_J and above_J: the enthalpy "
+                    "just below and above it less the target)"}})
+
     def _give_up(self, low: _Point, high: _Point):
         best = min((low, high), key=lambda p: abs(p.f))
         if self.converged(best, _ACCEPTABLE):
@@ -313,18 +399,6 @@ class _Search:
                 f"the equilibrium enthalpy jumps by {high.f - low.f:.6g} J at T = {high.T:.9g} K, where the phases "
                 "change, and no coexistence of the two phase sets balances the energy; "
                 "try method='convex', or leave one of the condensed species out")
-        # The enthalpy itself jumps here, by little: a cubic's residual enthalpy has a kink where a
-        # species' Soave alpha passes its minimum (hydrogen near 576 K with the quantum correction), as in
-        # every implementation that takes sqrt(a_i a_j).  Worth a warning, not a refusal, when the miss
-        # is a small fraction of a kelvin on the outlet.
-        cp = heat_capacity(self.setup.system.table, state_amounts(self.setup, best.eq), best.T)
-        miss_K = abs(best.f) / cp if cp > 0 else math.inf
-        if miss_K <= _ACCEPTABLE_MISS_K:
-            warnings.warn(
-                f"the enthalpy of the gas model jumps by {abs(high.f - low.f):.3g} J at {high.T:.9g} K (a kink of "
-                f"the cubic's alpha function): the energy balance closes to {abs(best.f):.3g} J, {miss_K:.2g} K "
-                "on the outlet", RuntimeWarning, stacklevel=5)
-            return self.finish(best, {"energy_balance_miss_K": miss_K})
         raise ConvergenceError(
             f"the outlet temperature is pinned to {high.T:.9g} K but the energy balance is still off by "
             f"{abs(best.f):.3g} J: the equilibrium enthalpy jumps by {abs(high.f - low.f):.3g} J there. With a "

@@ -23,6 +23,10 @@ ResidualEnthalpy = Callable[[float, float, NDArray[np.float64]], float]
 #: A fixed-T step: (T [K], warm start) -> (Equilibrium, Problem, SolverResult), as ``settle.solve_fixed``.
 FixedTStep = Callable[[float, "SolverResult | None"], tuple[Equilibrium, Problem, SolverResult]]
 
+#: The solve with T unknown on the union of two phase sets, with the arguments of
+#: ``sensitivity.settle_on_phase_set`` and its returns (None where that phase set is not the answer).
+PhaseSetStep = Callable[..., "tuple[Equilibrium, Problem, SolverResult] | None"]
+
 
 
 def enthalpy(table: Nasa7Table, n_gas: int, n: NDArray[np.float64], T: float, P: float,

@@ -263,6 +263,26 @@ class CubicModel:
         return sp.Pc / P * np.exp(5.373 * (1.0 + sp.omega) * (1.0 - sp.Tc / T))
 
     @property
+    def alpha_minimum_temperatures(self) -> NDArray[np.float64]:
+        """Temperature at which each species' alpha = m^2 passes its minimum (m = 0), [K]; inf where it never does.
+
+        m = 1 + kappa (1 - sqrt(T / Tc)) vanishes at T = Tc (1 + 1/kappa)^2
+        (Tr = 10.4 for CO: 1381.8 K); for a quantum gas, whose Tc(T) =
+        Tc0 / (1 + (c1/M) / T), at Tc0 (1 + 1/kappa)^2 - c1/M (576.1 K for
+        H2).  The mixing rule takes sqrt(a_i) = sqrt(ac_i) |m|, so the cross
+        terms have a kink there: at constant composition G_res(T) bends and
+        the residual enthalpy and entropy of a gas holding that species jump
+        upward with T, as at a latent heat.
+        """
+        sp = self._species
+        with np.errstate(divide="ignore"):
+            ratio = np.where(sp.kappa > 0.0, (1.0 + 1.0 / sp.kappa) ** 2, np.inf)
+        T = sp.Tc * ratio
+        if self._quantum is not None:
+            T = T - self._quantum.c1_M
+        return T
+
+    @property
     def critical_temperatures(self) -> NDArray[np.float64]:
         """Tc of each species, [K] (quantum gases: their classical limit)."""
         return self._species.Tc.copy()

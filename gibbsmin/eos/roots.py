@@ -29,7 +29,9 @@ def vapour_root(c2: Real, c1: Real, c0: Real, B: Real) -> Real:
     Z < v / (v - b), i.e. Z < 1 + B, for every physical root; 1 + B also lies
     right of the inflection point -c2/3 of both cubics, where the cubic is
     convex and positive.  Newton from there decreases monotonically onto the
-    largest root, never overshooting into another branch.
+    largest root, never overshooting into another branch, if that root lies
+    right of the inflection point; if Newton passes the inflection point, the
+    one real root lies left of it and is taken from the companion matrix.
 
     Parameters
     ----------
@@ -45,15 +47,34 @@ def vapour_root(c2: Real, c1: Real, c0: Real, B: Real) -> Real:
     """
     if isinstance(B, float):
         return _scalar_root(c2, c1, c0, B)
+    c2, c1, c0, B = np.broadcast_arrays(*(np.asarray(c, dtype=float) for c in (c2, c1, c0, B)))
     Z = 1.0 + B
+    left = np.zeros(Z.shape, dtype=bool)   # passed the inflection point: the one real root is liquid-like
     for _ in range(_MAX_ITERATIONS):
         f = ((Z + c2) * Z + c1) * Z + c0
         slope = (3.0 * Z + 2.0 * c2) * Z + c1
-        step = f / slope
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = np.where(left, 0.0, f / slope)
         Z = Z - step
+        left |= (slope <= 0.0) | (3.0 * Z < -c2)
         if np.max(np.abs(step)) <= _STEP_TOLERANCE:
+            for i in zip(*np.nonzero(left)):
+                Z[i] = _only_root(float(c2[i]), float(c1[i]), float(c0[i]), float(B[i]), 0.0)
             return Z
     raise ConvergenceError(_not_converged(float(np.max(np.abs(step)))))
+
+
+def _only_root(c2: float, c1: float, c0: float, B: float, step: float) -> float:
+    """The largest real root where Newton from 1 + B passed the cubic's inflection point.
+
+    Then no root lies right of it: the one real root is liquid-like (a gas
+    far below its dew point, such as steam at 80 bar and 457 K), and it is
+    the companion matrix's.
+    """
+    roots = real_roots(c2, c1, c0, B)
+    if not roots:
+        raise ConvergenceError(_not_converged(step))
+    return roots[0]
 
 
 def _scalar_root(c2: float, c1: float, c0: float, B: float) -> float:
@@ -67,6 +88,8 @@ def _scalar_root(c2: float, c1: float, c0: float, B: float) -> float:
         Z -= step
         if abs(step) <= _STEP_TOLERANCE:
             return Z
+        if slope <= 0.0 or 3.0 * Z < -c2:
+            return _only_root(c2, c1, c0, B, abs(step))
     raise ConvergenceError(_not_converged(abs(step)))
 
 

@@ -42,6 +42,7 @@ from .hooks import gas_stability as gas_stability
 from .hooks import inlet_enthalpies as inlet_enthalpies
 from .hooks import inlet_residual_enthalpy as inlet_residual_enthalpy
 from .hooks import nonideal_sensitivities as nonideal_sensitivities
+from .hooks import phase_set_step as phase_set_step
 from .hooks import stability_checked as stability_checked
 from .hooks import with_stability_verdict as with_stability_verdict
 from .loop import IDEAL_SPECIES_WARNING as IDEAL_SPECIES_WARNING

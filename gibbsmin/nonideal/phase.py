@@ -55,6 +55,15 @@ class GasPhase:
     def is_ideal(self) -> bool:
         return self.name == "ideal"
 
+    @property
+    def enthalpy_kinks(self) -> dict[str, float]:
+        """Species to the temperature [K] where the model's enthalpy of a gas holding it jumps
+        (``CubicModel.alpha_minimum_temperatures``); empty for the ideal gas."""
+        temperatures = getattr(self.model, "alpha_minimum_temperatures", None)
+        if self.is_ideal or temperatures is None:
+            return {}
+        return {self.gas_names[j]: float(T) for j, T in zip(self.described, temperatures) if np.isfinite(T)}
+
     def _described_fractions(self, n_gas: NDArray[np.float64]) -> tuple[NDArray[np.float64], float]:
         """Mole fractions among the described species and their total amount [mol]."""
         part = np.asarray(n_gas, dtype=float)[self.described]
