@@ -50,6 +50,10 @@ class Equilibrium:
         Species name to the standard uncertainty of its amount [mol] from the
         data set's formation-enthalpy uncertainties (``equilibrate(...,
         uncertainty=True)``; ``gibbsmin.uncertainty``); None when not asked for.
+    T_uncertainty : float or None
+        Standard uncertainty of the temperature [K] where the energy balance
+        set it (``adiabatic=True, uncertainty=True``); None at a fixed T or
+        when not asked for.
     """
 
     T: float
@@ -65,6 +69,7 @@ class Equilibrium:
     omitted: Mapping[str, str] = field(default_factory=dict)
     extras: Mapping[str, object] = field(default_factory=dict)
     uncertainty: Mapping[str, float] | None = None
+    T_uncertainty: float | None = None
 
     @property
     def species(self) -> tuple[str, ...]:
@@ -143,6 +148,8 @@ class Equilibrium:
             "omitted_species": dict(self.omitted),
             **({} if self.uncertainty is None else
                {"amount_uncertainty_mol": {s: (None if np.isnan(v) else v) for s, v in self.uncertainty.items()}}),
+            **({} if self.T_uncertainty is None else
+               {"T_uncertainty_K": None if np.isnan(self.T_uncertainty) else self.T_uncertainty}),
             **{k: v for k, v in self.extras.items()},
         }
 

@@ -283,7 +283,9 @@ def equilibrate(
         Fill ``Equilibrium.uncertainty``: the standard uncertainty [mol] of
         every amount, propagated linearly from the data set's uncertainties of
         the enthalpies of formation (``gibbsmin.uncertainty``; needs a data set
-        that states them, ``data="atct-anchored"``).  At a fixed T only.
+        that states them, ``data="atct-anchored"``).  Where the energy balance
+        sets T (ideal gas), also ``Equilibrium.T_uncertainty`` [K], with the
+        amounts' uncertainties along the energy balance.
 
     Returns
     -------
@@ -321,9 +323,9 @@ def equilibrate(
         raise InputError("T fixes the outlet temperature, so the energy balance cannot also fix it: leave T out "
                          "for an adiabatic reactor (or one with heat_input), or drop adiabatic/heat_input to get "
                          "the duty at T (pass T_feed)")
-    if uncertainty and energy_balance:
-        raise InputError("uncertainty=True is propagated at a fixed outlet temperature; give T (the energy "
-                         "balance's own uncertainty is not computed yet)")
+    if uncertainty and energy_balance and gas != "ideal":
+        raise InputError(f"uncertainty=True with the energy balance is propagated for the ideal gas only; with "
+                         f"gas={gas!r} give the outlet temperature T, or drop uncertainty")
     if energy_balance:
         if not inlet.has_temperatures:
             raise InputError("the energy balance needs the feed temperature: pass T_feed in K (one number, or one "
@@ -366,7 +368,12 @@ def equilibrate(
     elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
-    if uncertainty:
+    if uncertainty and energy_balance:
+        from .uncertainty import energy_balance_uncertainty
+
+        amounts_u, T_u = energy_balance_uncertainty(setup, problem, result, eq.T, P, inlet.total, db.data_set)
+        eq = replace(eq, uncertainty=amounts_u, T_uncertainty=T_u)
+    elif uncertainty:
         eq = replace(eq, uncertainty=_amount_uncertainty(setup, problem, result, eq, phase, method,
                                                          allow_extrapolation, db.data_set))
     # The stability verdict enters the certificate after the precision check, which judges the residuals alone.

@@ -15,7 +15,7 @@ uncertainties are sqrt(diag(J Sigma J^T)) [mol].
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 
 import numpy as np
 from numpy.typing import NDArray
@@ -114,3 +114,42 @@ def approach_uncertainty(approach) -> float:
     nu = np.array(rx.coefficients, dtype=float)
     u_dG = float(propagated(nu[None, :], input_covariance(rx.records))[0])  # J/mol
     return approach.T_eq * u_dG / abs(rx.enthalpy(approach.T_eq, allow_extrapolation=True))
+
+
+def energy_balance_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: float, P: float,
+                               feed: Mapping[str, float], data_set: str = ""
+                               ) -> tuple[dict[str, float], float]:
+    """Standard uncertainties of the amounts [mol] and of the outlet temperature [K] where the energy balance set T.
+
+    The outlet satisfies F(T, dH) = H_out(T, n(T, dH), dH) - H_in(dH) - Q = 0.
+    A shift dH_j moves every h_j by dH_j, so at fixed T
+
+        dF/dH_j = n_out,j - n_in,j + sum_i h_i(T) dn_i/dH_j,
+
+    and dF/dT is the equilibrium heat capacity.  Implicit differentiation
+    gives dT/dH_j = -(dF/dH_j) / Cp_eq and the amounts' total derivatives
+    dn/dH_j = (dn/dH_j)_T + (dn/dT) dT/dH_j.  The gas is ideal (the implicit
+    derivatives of :mod:`gibbsmin.sensitivity`); NaN everywhere where the
+    present phases fix T (a phase plateau: Cp_eq is infinite there).
+
+    ``feed`` is the inlet's amounts by species name [mol]; the heat input and
+    the feed temperatures do not enter (dH shifts h at every T alike).
+    """
+    from .sensitivity import equilibrium_sensitivities, formation_enthalpy_sensitivities
+
+    system = setup.system
+    covariance = input_covariance(system.records, data_set)
+    at_T = formation_enthalpy_sensitivities(setup, problem, result, T)
+    along = equilibrium_sensitivities(setup, problem, result, T, P, feed_species=())
+    if not np.isfinite(along.heat_capacity_equilibrium):
+        return {name: float("nan") for name in system.names}, float("nan")
+    n_out = np.zeros(len(system.names))
+    n_out[problem.keep] = result.amounts[0]
+    n_in = np.array([feed.get(name, 0.0) for name in system.names])
+    h = R * T * system.table.h_RT(T)
+    h = np.where(n_out > 0.0, h, 0.0)  # absent species: their dn is zero, and their h may lie outside the data
+    dF = n_out - n_in + h @ at_T
+    dT = -dF / along.heat_capacity_equilibrium
+    jacobian = at_T + np.outer(along.dn_dT, dT)
+    u_T = float(propagated(dT[None, :], covariance)[0])
+    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}, u_T
