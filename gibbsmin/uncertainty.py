@@ -62,16 +62,17 @@ def propagated(jacobian: NDArray[np.float64], covariance: NDArray[np.float64]) -
 
 
 def difference_jacobian(amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]], T: float,
-                        u: NDArray[np.float64]) -> NDArray[np.float64]:
+                        u: NDArray[np.float64], outputs: int | None = None) -> NDArray[np.float64]:
     """d n / d(delta-f H) by central differences of whole solves, [mol per J/mol].
 
     ``amounts_at(offsets)`` solves with ``offsets`` added to g0/RT of the
-    system's species and returns every amount in the system's order.  The step
-    of species j is its own uncertainty u_j, so each column is the secant over
-    plus and minus one standard uncertainty; species with u_j = 0 move nothing.
+    system's species and returns every amount in the system's order (or any
+    ``outputs`` figures).  The step of species j is its own uncertainty u_j,
+    so each column is the secant over plus and minus one standard
+    uncertainty; species with u_j = 0 move nothing.
     """
     S = u.size
-    jacobian = np.zeros((S, S))
+    jacobian = np.zeros((S if outputs is None else outputs, S))
     for j in np.flatnonzero(u > 0.0):
         offsets = np.zeros(S)
         offsets[j] = u[j] / (R * T)
@@ -153,3 +154,28 @@ def energy_balance_uncertainty(setup: Setup, problem: Problem, result: SolverRes
     jacobian = at_T + np.outer(along.dn_dT, dT)
     u_T = float(propagated(dT[None, :], covariance)[0])
     return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}, u_T
+
+
+def carbon_limit_uncertainty(ln_activity_at: Callable[[float, NDArray[np.float64]], float], steam_to_carbon: float,
+                             T: float, records: Sequence[SpeciesRecord], graphite: SpeciesRecord,
+                             data_set: str = "") -> float:
+    """Standard uncertainty [-] of a carbon limit in S/C, the root x of ln a_C(x, dH) = 0.
+
+    ``ln_activity_at(x, offsets)`` is ln a_C of the gas-only equilibrium at
+    S/C x with ``offsets`` on g0/RT of ``records`` (the gas species, in the
+    setup's order); graphite's own g0 enters ln a_C as -g0_C(s)/RT.  By the
+    implicit function theorem dx/dH_j = -(d ln a_C/dH_j) / (d ln a_C/dx): the
+    numerator by central differences over plus and minus one standard
+    uncertainty (as :func:`difference_jacobian`), the slope by a central
+    difference in x.  Whole solves, so a cubic gas's phi moves with them.
+    """
+    covariance = input_covariance([*records, graphite], data_set)
+    u = np.sqrt(np.diag(covariance))
+
+    def at_root(offsets):
+        return np.array([ln_activity_at(steam_to_carbon, offsets)])
+
+    d_ln_a = np.append(difference_jacobian(at_root, T, u[:-1], outputs=1)[0], -1.0 / (R * T))
+    h = 1e-4 * steam_to_carbon
+    slope = (ln_activity_at(steam_to_carbon + h, None) - ln_activity_at(steam_to_carbon - h, None)) / (2.0 * h)
+    return float(propagated((-d_ln_a / slope)[None, :], covariance)[0])
