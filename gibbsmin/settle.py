@@ -368,28 +368,32 @@ def equilibrate(
     elif sensitivities:
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
-    if uncertainty and energy_balance:
-        from .uncertainty import energy_balance_uncertainty
-
-        amounts_u, T_u = energy_balance_uncertainty(setup, problem, result, eq.T, P, inlet.total, db.data_set)
-        eq = replace(eq, uncertainty=amounts_u, T_uncertainty=T_u)
-    elif uncertainty:
-        eq = replace(eq, uncertainty=_amount_uncertainty(setup, problem, result, eq, phase, method,
-                                                         allow_extrapolation, db.data_set))
+    if uncertainty:
+        eq = with_uncertainties(eq, _uncertainties(setup, problem, result, eq, phase, method, allow_extrapolation,
+                                                   db.data_set, inlet.total if energy_balance else None))
     # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
     return nonideal.with_stability_verdict(checked(energy.with_extras(eq, extras)))
 
 
-def _amount_uncertainty(setup, problem, result, eq, phase, method, allow_extrapolation, data_set):
+def with_uncertainties(eq: Equilibrium, u) -> Equilibrium:
+    """The answer with an ``uncertainty.Uncertainties`` in its typed fields."""
+    return replace(eq, uncertainty=u.amounts, mole_fraction_uncertainty=u.mole_fractions,
+                   dry_mole_fraction_uncertainty=u.dry_mole_fractions, T_uncertainty=u.T)
+
+
+def _uncertainties(setup, problem, result, eq, phase, method, allow_extrapolation, data_set, balanced_feed):
+    """The answer's uncertainties: along the energy balance where ``balanced_feed`` (the inlet) is given."""
     from . import nonideal, uncertainty
 
+    if balanced_feed is not None:
+        return uncertainty.energy_balance_uncertainty(setup, problem, result, eq.T, eq.P, balanced_feed, data_set)
     amounts_at = None
     if phase is not None:  # phi moves with the composition: differences of whole solves
         def amounts_at(offsets):
             moved = nonideal.solve_nonideal(setup, eq.T, eq.P, phase, method=method, offsets=offsets, start=result,
                                             allow_extrapolation=allow_extrapolation)[0]
             return np.array([moved.amounts[s] for s in setup.system.names])
-    return uncertainty.amount_uncertainty(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
+    return uncertainty.point_uncertainties(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
 
 
 def check_method(method: str) -> None:

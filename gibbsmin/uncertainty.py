@@ -16,6 +16,7 @@ uncertainties are sqrt(diag(J Sigma J^T)) [mol].
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
@@ -80,10 +81,65 @@ def difference_jacobian(amounts_at: Callable[[NDArray[np.float64]], NDArray[np.f
     return jacobian
 
 
-def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: float, data_set: str = "",
-                       amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
-                       ) -> dict[str, float]:
-    """Standard uncertainty [mol] of every amount of a solved fixed-T,P point, by species name.
+@dataclass(frozen=True)
+class Uncertainties:
+    """Standard uncertainties of one answer from the formation data.
+
+    Attributes
+    ----------
+    amounts : dict
+        Every species' amount, [mol].
+    mole_fractions, dry_mole_fractions : dict
+        Every gas species' mole fraction, wet and dry (water left out), [-]:
+        propagated with the correlation of each amount and the total.
+    T : float or None
+        The temperature, [K], where the energy balance set it.
+    """
+
+    amounts: Mapping[str, float]
+    mole_fractions: Mapping[str, float]
+    dry_mole_fractions: Mapping[str, float]
+    T: float | None = None
+
+
+def fraction_jacobian(jacobian: NDArray[np.float64], n: NDArray[np.float64],
+                      rows: NDArray[np.int_]) -> NDArray[np.float64]:
+    """d y / d(delta-f H) of the mole fractions y_i = n_i / N over the species ``rows``: (dn_i - y_i dN) / N."""
+    N = n[rows].sum()
+    part = jacobian[rows]
+    return (part - np.outer(n[rows] / N, part.sum(axis=0))) / N
+
+
+def described(system, jacobian: NDArray[np.float64], covariance: NDArray[np.float64], n: NDArray[np.float64],
+              T_row: NDArray[np.float64] | None = None) -> Uncertainties:
+    """The uncertainties of amounts n [mol] (system order) that move by ``jacobian`` [mol per J/mol]."""
+    from .equilibrium import WATER
+
+    gas = np.arange(system.n_gas)
+    dry = np.array([j for j in gas if system.names[j] != WATER], dtype=int)
+
+    def by_name(rows, values):
+        return {system.names[j]: float(v) for j, v in zip(rows, values)}
+
+    return Uncertainties(
+        amounts=by_name(range(len(system.names)), propagated(jacobian, covariance)),
+        mole_fractions=by_name(gas, propagated(fraction_jacobian(jacobian, n, gas), covariance)),
+        dry_mole_fractions=by_name(dry, propagated(fraction_jacobian(jacobian, n, dry), covariance)),
+        T=None if T_row is None else float(propagated(T_row[None, :], covariance)[0]),
+    )
+
+
+def _system_amounts(system, problem: Problem, result: SolverResult) -> NDArray[np.float64]:
+    """The amounts of a one-point result in the system's order, [mol]."""
+    n = np.zeros(len(system.names))
+    n[problem.keep] = result.amounts[0]
+    return n
+
+
+def point_uncertainties(setup: Setup, problem: Problem, result: SolverResult, T: float, data_set: str = "",
+                        amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
+                        ) -> Uncertainties:
+    """Standard uncertainties of a solved fixed-T,P point.
 
     ``amounts_at`` (see :func:`difference_jacobian`) replaces the implicit
     derivatives, for a gas model whose potentials depend on the composition.
@@ -97,7 +153,7 @@ def amount_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: 
         jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
     else:
         jacobian = difference_jacobian(amounts_at, T, np.sqrt(np.diag(covariance)))
-    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}
+    return described(system, jacobian, covariance, _system_amounts(system, problem, result))
 
 
 def approach_uncertainty(approach) -> float:
@@ -118,8 +174,7 @@ def approach_uncertainty(approach) -> float:
 
 
 def energy_balance_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: float, P: float,
-                               feed: Mapping[str, float], data_set: str = ""
-                               ) -> tuple[dict[str, float], float]:
+                               feed: Mapping[str, float], data_set: str = "") -> Uncertainties:
     """Standard uncertainties of the amounts [mol] and of the outlet temperature [K] where the energy balance set T.
 
     The outlet satisfies F(T, dH) = H_out(T, n(T, dH), dH) - H_in(dH) - Q = 0.
@@ -140,20 +195,18 @@ def energy_balance_uncertainty(setup: Setup, problem: Problem, result: SolverRes
 
     system = setup.system
     covariance = input_covariance(system.records, data_set)
-    at_T = formation_enthalpy_sensitivities(setup, problem, result, T)
+    n_out = _system_amounts(system, problem, result)
+    S = len(system.names)
     along = equilibrium_sensitivities(setup, problem, result, T, P, feed_species=())
     if not np.isfinite(along.heat_capacity_equilibrium):
-        return {name: float("nan") for name in system.names}, float("nan")
-    n_out = np.zeros(len(system.names))
-    n_out[problem.keep] = result.amounts[0]
+        return described(system, np.full((S, S), np.nan), covariance, n_out, np.full(S, np.nan))
+    at_T = formation_enthalpy_sensitivities(setup, problem, result, T)
     n_in = np.array([feed.get(name, 0.0) for name in system.names])
     h = R * T * system.table.h_RT(T)
     h = np.where(n_out > 0.0, h, 0.0)  # absent species: their dn is zero, and their h may lie outside the data
     dF = n_out - n_in + h @ at_T
     dT = -dF / along.heat_capacity_equilibrium
-    jacobian = at_T + np.outer(along.dn_dT, dT)
-    u_T = float(propagated(dT[None, :], covariance)[0])
-    return {name: float(v) for name, v in zip(system.names, propagated(jacobian, covariance))}, u_T
+    return described(system, at_T + np.outer(along.dn_dT, dT), covariance, n_out, dT)
 
 
 def carbon_limit_uncertainty(ln_activity_at: Callable[[float, NDArray[np.float64]], float], steam_to_carbon: float,
@@ -179,3 +232,29 @@ def carbon_limit_uncertainty(ln_activity_at: Callable[[float, NDArray[np.float64
     h = 1e-4 * steam_to_carbon
     slope = (ln_activity_at(steam_to_carbon + h, None) - ln_activity_at(steam_to_carbon - h, None)) / (2.0 * h)
     return float(propagated((-d_ln_a / slope)[None, :], covariance)[0])
+
+
+def batch_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: NDArray[np.float64],
+                      data_set: str = "") -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """Standard uncertainties of every gas mole fraction [-] and condensed amount [mol] of a solved batch.
+
+    Shapes (B, gas species) and (B, condensed species) in the system's order;
+    point by point the implicit derivatives of
+    :func:`~gibbsmin.sensitivity.formation_enthalpy_sensitivities`.  NaN where
+    the present phases fix T.
+    """
+    from .sensitivity import formation_enthalpy_sensitivities
+
+    system = setup.system
+    covariance = input_covariance(system.records, data_set)
+    G = system.n_gas
+    gas = np.arange(G)
+    u_y = np.full((T.size, G), np.nan)
+    u_condensed = np.full((T.size, len(system.names) - G), np.nan)
+    for i in range(T.size):
+        point, answer = problem.take([i]), result.take([i])
+        jacobian = formation_enthalpy_sensitivities(setup, point, answer, float(T[i]))
+        n = _system_amounts(system, point, answer)
+        u_y[i] = propagated(fraction_jacobian(jacobian, n, gas), covariance)
+        u_condensed[i] = propagated(jacobian[G:], covariance)
+    return u_y, u_condensed

@@ -85,6 +85,15 @@ def test_adiabatic_uncertainty_matches_monte_carlo(case):
     for name in compared:
         assert eq.uncertainty[name] == pytest.approx(n_draws[name].std(ddof=1), rel=0.10), name
     assert eq.to_dict()["T_uncertainty_K"] == eq.T_uncertainty
+    # Mole fractions, wet and dry, from the drawn amounts (each amount correlates with the totals).
+    wet = sum(n_draws.values())
+    dry = wet - n_draws.get("H2O", 0.0)
+    for name in compared:
+        y = n_draws[name] / wet
+        assert eq.mole_fraction_uncertainty[name] == pytest.approx(y.std(ddof=1), rel=0.10), name
+        if name != "H2O":
+            y_dry = n_draws[name] / dry
+            assert eq.dry_mole_fraction_uncertainty[name] == pytest.approx(y_dry.std(ddof=1), rel=0.10), name
 
 
 def test_outlet_temperature_uncertainty_by_hand_for_ammonia():
