@@ -289,6 +289,7 @@ def _read_stage(section: Section, index: int, count: int) -> Stage:
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
         approach=approach, gas=gas, kij=kij, kij_pairs=kij_pairs, method=section.get("method", choice("auto", "newton", "convex"), "auto"),
         data=section.get("data", choice(*DATA_SETS), None),
+        uncertainty=section.get("uncertainty", read_bool, False),
     )
     section.finish(_STAGE_KEYS)
     return stage

@@ -97,6 +97,9 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     """
     given = db
     db = db or default_database()
+    for stage in case.stages:
+        if stage.uncertainty:
+            check_uncertainty(case, stage, choose_database(stage.data, given))
     inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
                   {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
     results = []
@@ -122,6 +125,24 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     return CaseResult(case, tuple(results), curve)
 
 
+def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
+    """Refuse, before anything is solved, a stage that asks for uncertainty its data or model cannot give."""
+    lacking = [r.name for r in db if r.hf298_uncertainty is None]
+    if lacking:
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        f"data set {db.data_set!r} states no uncertainty of the enthalpies of formation; add data = "
+                        f"\"atct-anchored\" to the stage's table (or [conditions]), or remove uncertainty")
+    if stage.approach:
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        "is not propagated through held approaches yet; remove the stage's approach table, or "
+                        "remove uncertainty (the report's approach table still gives each approach's data "
+                        "uncertainty at a stage without held approaches)")
+    if stage.adiabatic and stage.gas != "ideal":
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        f"with the energy balance, uncertainty is propagated for the ideal gas only, not "
+                        f"{stage.gas!r}; give the stage an outlet T, or remove uncertainty")
+
+
 def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
     species = case.species
     energy = {}
@@ -140,7 +161,7 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
                                          allow_extrapolation=species.allow_extrapolation, **energy)
     return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
                        inert=species.frozen, method=stage.method, db=db,
-                       allow_extrapolation=species.allow_extrapolation, **energy)
+                       allow_extrapolation=species.allow_extrapolation, uncertainty=stage.uncertainty, **energy)
 
 
 def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatabase, gas: str = "ideal",

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from ..streams import Stream
 
@@ -69,6 +69,10 @@ class Stage:
         Solver.
     data : str or None
         The thermochemical data set by name; None for the engine's default.
+    uncertainty : bool
+        Propagate the data set's formation-enthalpy uncertainties to the
+        stage's answer (amounts, mol%, outlet T where the energy balance sets
+        it) and to the report's approach temperatures and carbon limit.
     """
 
     name: str
@@ -84,6 +88,7 @@ class Stage:
     kij_pairs: Mapping[tuple[str, str], float] = field(default_factory=dict)
     method: str = "auto"
     data: str | None = None
+    uncertainty: bool = False
 
     @property
     def interactions(self):
@@ -173,6 +178,10 @@ class Case:
     def feed_temperatures_known(self) -> bool:
         return all(feed.T_given for feed in self.feeds)
 
+    def with_uncertainty(self) -> Case:
+        """The same case with uncertainty asked for in every stage (``settle --uncertainty``)."""
+        return replace(self, stages=tuple(replace(stage, uncertainty=True) for stage in self.stages))
+
 
 #: Every key of a case file, by table, with its meaning (the reference printed by `gibbsmin settle --keys`).
 CASE_KEYS: dict[str, dict[str, str]] = {
@@ -213,6 +222,9 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "method": "solver: 'auto' (default), 'newton', 'convex'",
         "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
                 "re-anchored to the Active Thermochemical Tables at 298.15 K)",
+        "uncertainty": "true: the report shows the standard uncertainty from the data set's formation enthalpies "
+                       "beside each flow, mol%, outlet temperature, approach and carbon limit (needs a data set "
+                       "that states them, 'atct-anchored'; `settle --uncertainty` asks for it in every stage)",
         "name": "a name for the stage in the report",
     },
     "stage": {"(keys of [conditions])": "[[stage]] tables, one per stage in order, each taking the last outlet"},

@@ -91,7 +91,7 @@ def approach_table(result: AuditResult) -> Table | None:
     return Table("Approach temperatures at reactor outlets",
                  (Column("reactor", "text"), Column("reaction", "text"), Column("equation", "text"),
                   Column("T equilibrium [degC]", "fixed1"), Column("approach [K]", "fixed1"),
-                  Column("data uncertainty [K]", "figure"),
+                  Column("data uncertainty [K]", "uncertainty"),
                   Column("went", "text"), Column("stated [K]", "fixed1"), Column("verdict", "verdict")),
                  tuple(rows), ("approach as written: positive = short of equilibrium; a reaction that went forward "
                                "with a negative approach (or backward with a positive one) is beyond equilibrium",

@@ -144,8 +144,7 @@ class SweepSpec:
                              "uncertainty=True)")
         if any(r.hf298_uncertainty is None for r in data_set(self.data)):
             raise InputError(f"data set {self.data!r} states no uncertainty of the enthalpies of formation; pass "
-                             "data='atct-anchored' ([conditions] data = \"atct-anchored\" in a case file) to have "
-                             "the sweep's uncertainty columns")
+                             "data='atct-anchored' to have the sweep's uncertainty columns")
 
     @property
     def shape(self) -> tuple[int, ...]:
