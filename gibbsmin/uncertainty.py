@@ -137,12 +137,16 @@ def _system_amounts(system, problem: Problem, result: SolverResult) -> NDArray[n
 
 
 def point_uncertainties(setup: Setup, problem: Problem, result: SolverResult, T: float, data_set: str = "",
-                        amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
-                        ) -> Uncertainties:
+                        amounts_at: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None,
+                        offset_map: NDArray[np.float64] | None = None) -> Uncertainties:
     """Standard uncertainties of a solved fixed-T,P point.
 
     ``amounts_at`` (see :func:`difference_jacobian`) replaces the implicit
     derivatives, for a gas model whose potentials depend on the composition.
+    ``offset_map`` [per J/mol], shape (species, species), says how offsets on
+    g0/RT that depend on the formation data (a reaction held at an approach:
+    ``restricted.held_offset_map``) move with them, beside the shift dH/RT of
+    g0/RT itself; with ``amounts_at`` the caller's solves carry it.
     NaN everywhere where the present phases fix T (the derivatives do not exist).
     """
     from .sensitivity import formation_enthalpy_sensitivities  # sensitivity builds on settle, as this module
@@ -151,6 +155,9 @@ def point_uncertainties(setup: Setup, problem: Problem, result: SolverResult, T:
     covariance = input_covariance(system.records, data_set)
     if amounts_at is None:
         jacobian = formation_enthalpy_sensitivities(setup, problem, result, T)
+        if offset_map is not None:
+            # The derivatives are per dH with g0/RT moved by dH/RT; an offset moves g0/RT by itself.
+            jacobian = jacobian + (jacobian * (R * T)) @ offset_map
     else:
         jacobian = difference_jacobian(amounts_at, T, np.sqrt(np.diag(covariance)))
     return described(system, jacobian, covariance, _system_amounts(system, problem, result))

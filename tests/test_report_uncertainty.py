@@ -131,10 +131,19 @@ def test_the_settle_flag_asks_for_uncertainty_in_every_stage(tmp_path, capsys):
     assert 'data = "atct-anchored"' in capsys.readouterr().err
 
 
-def test_uncertainty_with_held_approaches_is_refused_clearly():
+def test_a_stage_with_a_held_approach_has_its_uncertainty():
     text = _case_text("reformer.toml", ANCHORED) + '\n[conditions.approach]\n"steam methane reforming" = "10 K"\n'
-    with pytest.raises(CaseError, match="uncertainty: is not propagated through held approaches"):
-        settle_case(parse_case(text, "reformer.toml"))
+    result = settle_case(parse_case(text, "reformer.toml"))
+    eq = result.outlet
+    assert "approach" in eq.specification and 0 < eq.uncertainty["H2"] < 0.01 * eq.amounts["H2"]
+    assert "u(mol% wet)" in render_text(settle_report(result))
+
+
+def test_uncertainty_with_held_approaches_and_the_energy_balance_is_refused_clearly():
+    text = (EXAMPLES / "ammonia_bed.toml").read_text().replace(
+        "[conditions]\n", "[conditions]\n" + ANCHORED + 'approach = { "ammonia synthesis" = "10 K" }\n', 1)
+    with pytest.raises(CaseError, match="uncertainty: is not propagated through held approaches with the energy"):
+        settle_case(parse_case(text, "ammonia_bed.toml"))
 
 
 def test_a_sweep_from_a_case_with_uncertainty_has_the_columns(tmp_path, capsys):

@@ -132,11 +132,10 @@ def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
         raise CaseError(case.source, stage.line, "uncertainty",
                         f"data set {db.data_set!r} states no uncertainty of the enthalpies of formation; add data = "
                         f"\"atct-anchored\" to the stage's table (or [conditions]), or remove uncertainty")
-    if stage.approach:
+    if stage.approach and stage.adiabatic:
         raise CaseError(case.source, stage.line, "uncertainty",
-                        "is not propagated through held approaches yet; remove the stage's approach table, or "
-                        "remove uncertainty (the report's approach table still gives each approach's data "
-                        "uncertainty at a stage without held approaches)")
+                        "is not propagated through held approaches with the energy balance yet; give the stage an "
+                        "outlet T, or remove uncertainty")
     if stage.adiabatic and stage.gas != "ideal":
         raise CaseError(case.source, stage.line, "uncertainty",
                         f"with the energy balance, uncertainty is propagated for the ideal gas only, not "
@@ -158,7 +157,8 @@ def _settle_stage(case: Case, stage: Stage, inlet: Inlet, db: SpeciesDatabase) -
         return equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach),
                                          frozen=list(species.frozen) or None, species=species.only,
                                          exclude=species.exclude, method=stage.method, db=db,
-                                         allow_extrapolation=species.allow_extrapolation, **energy)
+                                         allow_extrapolation=species.allow_extrapolation,
+                                         uncertainty=stage.uncertainty, **energy)
     return equilibrate(feed, stage.T, stage.P, species=species.only, exclude=species.exclude,
                        inert=species.frozen, method=stage.method, db=db,
                        allow_extrapolation=species.allow_extrapolation, uncertainty=stage.uncertainty, **energy)
