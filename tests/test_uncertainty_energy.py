@@ -128,3 +128,13 @@ def test_no_temperature_uncertainty_at_a_fixed_temperature():
     eq = equilibrate({"H2": 3.0, "N2": 1.0}, T=723.15, P=30e5, species=["H2", "N2", "NH3"], data="atct-anchored",
                      uncertainty=True)
     assert eq.T_uncertainty is None and "T_uncertainty_K" not in eq.to_dict()
+
+
+def test_on_a_phase_plateau_the_uncertainties_are_not_given():
+    # Steam at 1 bar with part of its latent heat removed lands on the boiling plateau, where the phases fix T
+    # (Cp_eq is infinite): the linear propagation has no derivative there and says so with NaN, not a number.
+    eq = equilibrate({"H2O": 1.0}, P=1e5, T_feed=400.0, adiabatic=True, heat_input=-22000.0, data="atct-anchored",
+                     uncertainty=True)
+    assert "phase_boundary" in eq.extras and 0.1 < eq.condensed["H2O(l)"] < 0.9
+    assert np.isnan(eq.T_uncertainty) and np.isnan(eq.uncertainty["H2O"])
+    assert eq.to_dict()["T_uncertainty_K"] is None
