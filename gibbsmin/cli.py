@@ -95,6 +95,8 @@ CASE_FILE_KEYS: dict[str, tuple[str, str]] = {
     "kij": ("conditions", "kij"),
     "adiabatic": ("conditions", "adiabatic"),
     "heat_input": ("conditions", "heat_input"),
+    "data": ("conditions", "data"),
+    "uncertainty": ("conditions", "uncertainty"),
 }
 _PYTHON_OPTION = re.compile(r"(?:\b(pass|use) )?\b(" + "|".join(CASE_FILE_KEYS) + r")="
                             r"(True|False|'[^']*'|\[[^\]]*\]|[-+0-9.eE]+)")
@@ -165,6 +167,8 @@ def _settle(args: argparse.Namespace) -> int:
     if args.case is None:
         raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")
     case = read_case(args.case)
+    if args.uncertainty:
+        case = case.with_uncertainty()
     with _progress(len(case.stages), "settling") as bar:
         result = settle_case(case, progress=_ticker(bar))
     report = settle_report(result)
@@ -287,6 +291,9 @@ def _add_fail_on(parser: argparse.ArgumentParser, what: str) -> None:
 def _settle_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("case", nargs="?", help="the case file (TOML)")
     p.add_argument("--keys", action="store_true", help="list every key a case file may hold, and exit")
+    p.add_argument("--uncertainty", action="store_true",
+                   help="show the standard uncertainty from the data set's formation enthalpies beside each figure "
+                        "(as [conditions] uncertainty = true in every stage; needs data = 'atct-anchored')")
     _add_fail_on(p, "a verdict of the report (an uncertified answer, a carbon check)")
     _add_outputs(p)
 

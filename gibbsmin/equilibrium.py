@@ -50,6 +50,14 @@ class Equilibrium:
         Species name to the standard uncertainty of its amount [mol] from the
         data set's formation-enthalpy uncertainties (``equilibrate(...,
         uncertainty=True)``; ``gibbsmin.uncertainty``); None when not asked for.
+    mole_fraction_uncertainty, dry_mole_fraction_uncertainty : dict or None
+        Gas species to the standard uncertainty of its mole fraction, wet and
+        dry [-], with the same origin (each amount's correlation with the
+        total included); None when not asked for.
+    T_uncertainty : float or None
+        Standard uncertainty of the temperature [K] where the energy balance
+        set it (``adiabatic=True, uncertainty=True``); None at a fixed T or
+        when not asked for.
     """
 
     T: float
@@ -65,6 +73,9 @@ class Equilibrium:
     omitted: Mapping[str, str] = field(default_factory=dict)
     extras: Mapping[str, object] = field(default_factory=dict)
     uncertainty: Mapping[str, float] | None = None
+    mole_fraction_uncertainty: Mapping[str, float] | None = None
+    dry_mole_fraction_uncertainty: Mapping[str, float] | None = None
+    T_uncertainty: float | None = None
 
     @property
     def species(self) -> tuple[str, ...]:
@@ -162,8 +173,13 @@ class Equilibrium:
                 "phase_stability": self.certificate.phase_stability,
             },
             "omitted_species": dict(self.omitted),
-            **({} if self.uncertainty is None else
-               {"amount_uncertainty_mol": {s: (None if np.isnan(v) else v) for s, v in self.uncertainty.items()}}),
+            **{key: {s: (None if np.isnan(v) else v) for s, v in values.items()}
+               for key, values in (("amount_uncertainty_mol", self.uncertainty),
+                                   ("mole_fraction_uncertainty", self.mole_fraction_uncertainty),
+                                   ("dry_mole_fraction_uncertainty", self.dry_mole_fraction_uncertainty))
+               if values is not None},
+            **({} if self.T_uncertainty is None else
+               {"T_uncertainty_K": None if np.isnan(self.T_uncertainty) else self.T_uncertainty}),
             **{k: v for k, v in self.extras.items()},
         }
 

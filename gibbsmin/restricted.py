@@ -52,6 +52,7 @@ from .streams import Stream
 from .system import System
 from .thermo.database import SpeciesDatabase
 from .thermo.datasets import choose_database
+from .thermo.nasa7 import R
 from .units import to_kelvin, to_pascal
 
 __all__ = ["equilibrate_with_approach", "reaction_offsets", "settling_temperature"]
@@ -75,7 +76,8 @@ def reaction_offsets(system: System, reactions: Sequence[Reaction], ln_K_shift: 
         A set of independent reactions among the system's species; reactions
         left out of it are unconstrained, so pass a complete set.
     ln_K_shift : list of float
-        ln K_r(T) - ln K_r(T_r) for each reaction (zero for a reaction held at equilibrium), [-].
+        ln K_r(T) - ln K_r(T_r) for each reaction (zero for a reaction held at equilibrium), [-]; or an
+        array of shape (reactions, k), giving k columns of offsets.
 
     Returns
     -------
@@ -87,6 +89,48 @@ def reaction_offsets(system: System, reactions: Sequence[Reaction], ln_K_shift: 
     N = np.array([r.vector(system.names) for r in reactions])
     offsets, *_ = np.linalg.lstsq(N, np.asarray(ln_K_shift, dtype=float), rcond=None)
     return offsets
+
+
+def held_offset_map(system: System, reactions: Sequence[Reaction], settling: Mapping[str, float],
+                    T: float) -> NDArray[np.float64]:
+    """How the offsets of held reactions move with the enthalpies of formation, [per J/mol], shape (S, S).
+
+    A held reaction r keeps K_r(T_r): shifts dH of the formation enthalpies
+    move ln K_r(T) by -nu_r.dH/(RT) and ln K_r(T_r) by -nu_r.dH/(R T_r), so
+    its ln K shift moves by nu_r.dH (1/(R T_r) - 1/(R T)); column j is the
+    least-norm offset change per unit dH_j.  ``settling`` gives T_r [K] by
+    reaction name; the other reactions of the set keep a zero shift.
+    """
+    D = np.zeros((len(reactions), len(system.names)))
+    for k, r in enumerate(reactions):
+        if r.name in settling:
+            D[k] = r.vector(system.names) * (1.0 / (R * settling[r.name]) - 1.0 / (R * T))
+    return reaction_offsets(system, reactions, D)
+
+
+def _with_held_uncertainties(eq, setup, problem, result, complete, held, offsets_at, data_set, phase, method,
+                             allow_extrapolation):
+    """The answer with its uncertainties, the held reactions' K(T_r) moving with the data (implicit derivatives
+    for the ideal gas; differences of whole solves, warm-started, where a cubic's phi moves with them)."""
+    from .settle import with_uncertainties
+    from .uncertainty import point_uncertainties
+
+    T = eq.T
+    offset_map = held_offset_map(setup.system, complete, {rx.name: settling_temperature(rx, T, dT)
+                                                          for rx, dT in held}, T)
+    amounts_at = None
+    if phase is not None:
+        base = offsets_at(T)
+
+        def amounts_at(offsets):
+            from .nonideal import solve_nonideal
+
+            moved = solve_nonideal(setup, T, eq.P, phase, method=method, start=result,
+                                   offsets=base + offsets + offset_map @ (offsets * R * T),
+                                   allow_extrapolation=allow_extrapolation)[0]
+            return np.array([moved.amounts[s] for s in setup.system.names])
+    return with_uncertainties(eq, point_uncertainties(setup, problem, result, T, data_set, amounts_at=amounts_at,
+                                                      offset_map=offset_map))
 
 
 def _finite(value: object, what: str) -> float:
@@ -211,6 +255,7 @@ def equilibrate_with_approach(
     db: SpeciesDatabase | None = None,
     allow_extrapolation: bool = False,
     data: str | None = None,
+    uncertainty: bool = False,
 ) -> Equilibrium:
     """Equilibrium with reactions held at a temperature approach and species frozen, at fixed T or adiabatic.
 
@@ -253,6 +298,10 @@ def equilibrate_with_approach(
     allow_extrapolation : bool
     data : str, optional
         The thermochemical data set by name, as for :func:`gibbsmin.equilibrate`.
+    uncertainty : bool
+        Fill the answer's uncertainty fields as :func:`gibbsmin.equilibrate`
+        does, with each held reaction's K(T_r) moving with the formation data
+        (``held_offset_map``); at a fixed T, not with ``ln_phi``.
 
     Returns
     -------
@@ -283,6 +332,10 @@ def equilibrate_with_approach(
     if energy_balance and ln_phi is not None:
         raise InputError("ln_phi is held fixed at one state, which an energy balance moves away from; use "
                          "gas='peng-robinson' (iterated) or leave ln_phi out")
+    if uncertainty and (energy_balance or ln_phi is not None):
+        raise InputError("uncertainty=True with held approaches is propagated at a fixed outlet temperature and "
+                         "with the gas model iterated: give T, and gas='peng-robinson' instead of ln_phi if "
+                         "the gas is not ideal")
     inlet = energy.read_inlet(feed, T_feed, db)
     if energy_balance and not inlet.has_temperatures:
         raise InputError("the energy balance needs the feed temperature: pass T_feed in K")
@@ -348,7 +401,10 @@ def equilibrate_with_approach(
             enthalpy_kinks=None if phase is None else phase.enthalpy_kinks)
         eq = dataclasses.replace(eq, specification=specification)
     else:
-        eq, _, _ = step(T)
+        eq, problem, result = step(T)
+        if uncertainty:
+            eq = _with_held_uncertainties(eq, setup, problem, result, complete, held, offsets_at, db.data_set,
+                                          phase, method, allow_extrapolation)
     extras_energy = energy.energy_extras(setup, eq, P, inlet, H_in, heat, residual_enthalpy=residual,
                                          inlet_gross=gross_in)
     if phase is not None:

@@ -298,7 +298,9 @@ def equilibrate(
         Fill ``Equilibrium.uncertainty``: the standard uncertainty [mol] of
         every amount, propagated linearly from the data set's uncertainties of
         the enthalpies of formation (``gibbsmin.uncertainty``; needs a data set
-        that states them, ``data="atct-anchored"``).  At a fixed T only.
+        that states them, ``data="atct-anchored"``).  Where the energy balance
+        sets T (ideal gas), also ``Equilibrium.T_uncertainty`` [K], with the
+        amounts' uncertainties along the energy balance.
 
     Returns
     -------
@@ -336,9 +338,9 @@ def equilibrate(
         raise InputError("T fixes the outlet temperature, so the energy balance cannot also fix it: leave T out "
                          "for an adiabatic reactor (or one with heat_input), or drop adiabatic/heat_input to get "
                          "the duty at T (pass T_feed)")
-    if uncertainty and energy_balance:
-        raise InputError("uncertainty=True is propagated at a fixed outlet temperature; give T (the energy "
-                         "balance's own uncertainty is not computed yet)")
+    if uncertainty and energy_balance and gas != "ideal":
+        raise InputError(f"uncertainty=True with the energy balance is propagated for the ideal gas only; with "
+                         f"gas={gas!r} give the outlet temperature T, or drop uncertainty")
     if energy_balance:
         if not inlet.has_temperatures:
             raise InputError("the energy balance needs the feed temperature: pass T_feed in K (one number, or one "
@@ -382,22 +384,31 @@ def equilibrate(
         extras["sensitivities"] = sensitivity.equilibrium_sensitivities(setup, problem, result, eq.T, P,
                                                                         db=db).to_dict()
     if uncertainty:
-        eq = replace(eq, uncertainty=_amount_uncertainty(setup, problem, result, eq, phase, method,
-                                                         allow_extrapolation, db.data_set))
+        eq = with_uncertainties(eq, _uncertainties(setup, problem, result, eq, phase, method, allow_extrapolation,
+                                                   db.data_set, inlet.total if energy_balance else None))
     # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
     return nonideal.with_stability_verdict(checked(energy.with_extras(eq, extras)))
 
 
-def _amount_uncertainty(setup, problem, result, eq, phase, method, allow_extrapolation, data_set):
+def with_uncertainties(eq: Equilibrium, u) -> Equilibrium:
+    """The answer with an ``uncertainty.Uncertainties`` in its typed fields."""
+    return replace(eq, uncertainty=u.amounts, mole_fraction_uncertainty=u.mole_fractions,
+                   dry_mole_fraction_uncertainty=u.dry_mole_fractions, T_uncertainty=u.T)
+
+
+def _uncertainties(setup, problem, result, eq, phase, method, allow_extrapolation, data_set, balanced_feed):
+    """The answer's uncertainties: along the energy balance where ``balanced_feed`` (the inlet) is given."""
     from . import nonideal, uncertainty
 
+    if balanced_feed is not None:
+        return uncertainty.energy_balance_uncertainty(setup, problem, result, eq.T, eq.P, balanced_feed, data_set)
     amounts_at = None
     if phase is not None:  # phi moves with the composition: differences of whole solves
         def amounts_at(offsets):
             moved = nonideal.solve_nonideal(setup, eq.T, eq.P, phase, method=method, offsets=offsets, start=result,
                                             allow_extrapolation=allow_extrapolation)[0]
             return np.array([moved.amounts[s] for s in setup.system.names])
-    return uncertainty.amount_uncertainty(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
+    return uncertainty.point_uncertainties(setup, problem, result, eq.T, data_set, amounts_at=amounts_at)
 
 
 def check_method(method: str) -> None:

@@ -117,12 +117,6 @@ def test_uncertainty_needs_a_data_set_that_states_it():
         equilibrate({"H2": 3.0, "N2": 1.0}, T=723.15, P=30e5, species=["H2", "N2", "NH3"], uncertainty=True)
 
 
-def test_uncertainty_with_an_energy_balance_is_refused_clearly():
-    with pytest.raises(gibbsmin.InputError, match="uncertainty=True is propagated at a fixed outlet temperature"):
-        equilibrate({"H2": 3.0, "N2": 1.0}, P=30e5, T_feed=700.0, adiabatic=True, data="atct-anchored",
-                    uncertainty=True)
-
-
 def test_no_uncertainty_unless_asked():
     eq = equilibrate({"H2": 3.0, "N2": 1.0}, T=723.15, P=30e5, data="atct-anchored")
     assert eq.uncertainty is None and "amount_uncertainty_mol" not in eq.to_dict()

@@ -24,7 +24,7 @@ import numpy as np
 from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
 from ..errors import GibbsminError, UnknownSpeciesError
-from ..thermo import SpeciesDatabase, default_database
+from ..thermo import SpeciesDatabase, choose_database
 from .plant import Limit, Plant, UnitSpec
 from .table import TableStream
 
@@ -79,6 +79,9 @@ class ReactionFinding:
     direction: int
     stated_K: float | None
     verdict: str
+    uncertainty_K: float | None = None
+    """Standard uncertainty of T_eq (so of the approach) from the data set's formation-enthalpy uncertainties,
+    [K]; None where the data set states none."""
 
 
 @dataclass(frozen=True)
@@ -95,9 +98,12 @@ class UnitAudit:
 
 @dataclass(frozen=True)
 class AuditResult:
+    """Every check of a plant; ``data_set`` names the thermochemical data they were made with."""
+
     plant: Plant
     stream_checks: tuple[Check, ...]
     units: tuple[UnitAudit, ...]
+    data_set: str = ""
 
     @property
     def checks(self) -> tuple[Check, ...]:
@@ -307,12 +313,20 @@ def _approach_checks(where: str, spec: UnitSpec, plant: Plant, inlets: Sequence[
         progress = direction * found.approach_K
         beyond = max(0.0, -progress)
         verdict = beyond_limit.verdict(beyond)
+        u = data_uncertainty(found)
         words = (f"T_eq {found.T_eq - 273.15:.1f} degC at outlet {outlet.T - 273.15:.1f} degC: approach "
                  f"{found.approach_K:+.1f} K as written ({rx.equation}); the reaction went "
                  f"{'forward' if direction > 0 else 'backward'} from the inlet")
         if beyond > 0:
-            words += f", {beyond:.1f} K beyond equilibrium: impossible as stated" if verdict == "fail" else \
-                f", {beyond:.1f} K beyond equilibrium"
+            words += f", {beyond:.1f} K beyond equilibrium"
+            if u is not None:
+                words += f", data uncertainty {uncertainty_text(u)}"
+                if beyond <= 2.0 * u:
+                    words += " (within twice the data uncertainty)"
+            if verdict == "fail":
+                words += ": impossible as stated"
+        elif u is not None:
+            words += f"; data uncertainty {uncertainty_text(u)}"
         stated = spec.approach.get(rx.name, spec.approach.get(rx.equation))
         if stated is None:
             stated = next((v for k, v in spec.approach.items() if _same_reaction(k, rx, db)), None)
@@ -322,8 +336,23 @@ def _approach_checks(where: str, spec: UnitSpec, plant: Plant, inlets: Sequence[
             words += f"; stated approach {stated:+.1f} K, found {found.approach_K:+.1f} K"
             verdict = max(verdict, stated_verdict, key=SEVERITY.__getitem__)
         checks.append(Check(where, name, found.approach_K, "K", verdict, words))
-        findings.append(ReactionFinding(rx.name, rx.equation, found.T_eq, found.approach_K, direction, stated, verdict))
+        findings.append(ReactionFinding(rx.name, rx.equation, found.T_eq, found.approach_K, direction, stated, verdict,
+                                        u))
     return checks, findings
+
+
+def data_uncertainty(approach) -> float | None:
+    """The approach's standard uncertainty from the formation data, [K]; None where the data state none."""
+    from ..uncertainty import approach_uncertainty
+
+    if any(r.hf298_uncertainty is None for r in approach.reaction.records):
+        return None
+    return approach_uncertainty(approach)
+
+
+def uncertainty_text(u: float) -> str:
+    """A standard uncertainty in kelvin to two significant digits: "0.4 K", "0.17 K", "1.2 K"."""
+    return f"{float(f'{u:.2g}'):g} K"
 
 
 def _same_reaction(text: str, rx, db: SpeciesDatabase) -> bool:
@@ -411,10 +440,10 @@ def audit_plant(plant: Plant, db: SpeciesDatabase | None = None,
     progress : callable, optional
         Called with each unit's label as its checks start.
     """
-    db = db or default_database()
+    db = choose_database(plant.data, db)
     units = []
     for spec in plant.units:
         if progress is not None:
             progress(spec.label)
         units.append(audit_unit(plant, spec, db))
-    return AuditResult(plant, tuple(stream_checks(plant)), tuple(units))
+    return AuditResult(plant, tuple(stream_checks(plant)), tuple(units), db.data_set)

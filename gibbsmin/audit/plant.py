@@ -5,6 +5,7 @@
     [plant]
     title = "Invented ammonia plant front end, vendor balance rev. B"
     stream_table = "streams.csv"          # optional: the table the command line uses by default
+    data = "atct-anchored"                 # optional: the thermochemical data set of every check
 
     [thresholds]                           # optional; defaults in THRESHOLDS
     element_closure = { warn = "0.1 %", fail = "0.5 %" }
@@ -41,7 +42,7 @@ from ..case.values import (
     read_text,
 )
 from ..errors import InputError, UnknownSpeciesError
-from ..thermo import SpeciesDatabase, default_database
+from ..thermo import DATA_SETS, SpeciesDatabase, choose_database
 from ..units import NORMAL_DIN_1343
 from .table import ROW_LABELS, StreamTable, read_stream_table
 
@@ -143,18 +144,23 @@ class UnitSpec:
 
 @dataclass(frozen=True)
 class Plant:
+    """A unit description with its stream table; ``data`` names the thermochemical data set (None: the default)."""
+
     title: str
     units: tuple[UnitSpec, ...]
     table: StreamTable
     limits: Mapping[str, Limit]
     source: str
+    data: str | None = None
 
 
 #: Keys of a unit description, for `gibbsmin audit --keys`.
 AUDIT_KEYS: dict[str, dict[str, str]] = {
     "plant": {"title": "a title for the report", "stream_table": "the stream table (CSV or XLSX), relative to "
               "this file; the command line's table argument overrides it",
-              "normal_conditions": "what Nm3 means in the table: 'DIN 1343' (default), 'ISO 13443', 'US gas'"},
+              "normal_conditions": "what Nm3 means in the table: 'DIN 1343' (default), 'ISO 13443', 'US gas'",
+              "data": "thermochemical data set of every check: 'nasa-1993' or 'atct-anchored' (its stated "
+                      "uncertainties give each approach temperature's data uncertainty)"},
     "thresholds": {name: f"{{ warn = ..., fail = ... }} in {limit.unit}: {meaning} (default warn {limit.warn:g}, "
                    f"fail {'never' if limit.fail is None else f'{limit.fail:g}'})"
                    for name, (limit, meaning) in THRESHOLDS.items()},
@@ -231,16 +237,21 @@ def _threshold_value(value: object, unit: str) -> float:
 def read_plant(path: str | os.PathLike[str], table: str | os.PathLike[str] | None = None,
                db: SpeciesDatabase | None = None) -> Plant:
     """Read a unit description and its stream table (``table``, or the description's ``stream_table``)."""
-    db = db or default_database()
+    given = db
     source = TomlSource.from_file(path)
     root = source.root()
     head = root.section("plant")
-    title, normal, table_key = Path(source.name).stem, NORMAL_DIN_1343, None
+    title, normal, table_key, data = Path(source.name).stem, NORMAL_DIN_1343, None, None
     if head is not None:
         title = head.get("title", read_text, title)
         normal = head.get("normal_conditions", read_normal_conditions, normal)
         table_key = head.get("stream_table", read_text, None)
+        data = head.get("data", choice(*DATA_SETS), None)
         head.finish(tuple(AUDIT_KEYS["plant"]))
+    try:
+        db = choose_database(data, given)
+    except InputError as exc:
+        raise root.error("plant", str(exc)) from None
     if table is None:
         if table_key is None:
             raise root.error("plant", "names no stream_table; give the table on the command line or as "
@@ -263,7 +274,7 @@ def read_plant(path: str | os.PathLike[str], table: str | os.PathLike[str] | Non
     if not units:
         raise units_table.error(None, "describes no units; add [unit.<id>] tables")
     root.finish(("plant", "thresholds", "unit"))
-    return Plant(title, tuple(units), stream_table, limits, source.name)
+    return Plant(title, tuple(units), stream_table, limits, source.name, data)
 
 
 def _read_unit(section: Section, unit_id: str, table: StreamTable, db: SpeciesDatabase) -> UnitSpec:

@@ -35,15 +35,17 @@ class GasOnlyEquilibria:
 
             self.phase = gas_phase(self.setup.system, gas, kij=kij)
 
-    def ln_activity(self, T: float, added=None) -> float:
-        """ln a_C [-] of the gas-only equilibrium at T [K], with ``added`` element totals on the feed's [mol]."""
+    def ln_activity(self, T: float, added=None, offsets=None) -> float:
+        """ln a_C [-] of the gas-only equilibrium at T [K], with ``added`` element totals on the feed's [mol]
+        and ``offsets`` added to g0/RT of the setup's species (a shifted formation enthalpy)."""
         setup = self.setup if added is None else dataclasses.replace(self.setup, b=self.setup.b + added)
         if self.phase is None:
-            eq, _, result = solve_fixed(setup, T, self.P, method=self.method, start=self.start)
+            eq, _, result = solve_fixed(setup, T, self.P, method=self.method, start=self.start, offsets=offsets)
         else:
             from ..nonideal import solve_nonideal
 
-            eq, _, result = solve_nonideal(setup, T, self.P, self.phase, method=self.method, start=self.start)
+            eq, _, result = solve_nonideal(setup, T, self.P, self.phase, method=self.method, start=self.start,
+                                           offsets=offsets)
         eq = checked(eq, stacklevel=5)
         self.start = result
         self.evaluations += 1

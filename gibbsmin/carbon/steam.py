@@ -11,9 +11,10 @@ import scipy.optimize
 from ..errors import InputError
 from ..settle import check_feed, check_method
 from ..streams import CARBON_BASES, Stream
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import choose_database
 from ..units import to_kelvin, to_pascal
-from .activity import STEAM
+from .activity import GRAPHITE, STEAM
 from .scan import GasOnlyEquilibria
 
 
@@ -35,6 +36,10 @@ class CarbonLimit:
         "found", or why no limit is given.
     evaluations : int
         Equilibria computed to find it.
+    uncertainty : float or None
+        Standard uncertainty of the limit [-] from the data set's
+        formation-enthalpy uncertainties (``carbon_limit(..., uncertainty=True)``);
+        NaN where no limit was found, None when not asked for.
     """
 
     T: float
@@ -43,6 +48,7 @@ class CarbonLimit:
     carbon_basis: str
     status: str
     evaluations: int
+    uncertainty: float | None = None
 
 
 
@@ -74,10 +80,17 @@ class _SteamScan:
         """The S/C of the feed as it is, with no steam added, [-]."""
         return self.water / self.carbon
 
-    def ln_activity(self, steam_to_carbon: float) -> float:
-        """ln a_C of the gas-only equilibrium at this S/C, [-]."""
+    def ln_activity(self, steam_to_carbon: float, offsets=None) -> float:
+        """ln a_C of the gas-only equilibrium at this S/C, [-] (``offsets`` on g0/RT of the gas species)."""
         added = steam_to_carbon * self.carbon - self.water
-        return self.equilibria.ln_activity(self.T, added * self.b_steam)
+        return self.equilibria.ln_activity(self.T, added * self.b_steam, offsets)
+
+    def uncertainty(self, steam_to_carbon: float, db: SpeciesDatabase) -> float:
+        """Standard uncertainty [-] of the limit found at ``steam_to_carbon``."""
+        from ..uncertainty import carbon_limit_uncertainty
+
+        return carbon_limit_uncertainty(self.ln_activity, steam_to_carbon, self.T,
+                                        self.equilibria.setup.system.records, db[GRAPHITE], db.data_set)
 
 
 def carbon_limit(
@@ -94,6 +107,8 @@ def carbon_limit(
     gas: str = "ideal",
     kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     db: SpeciesDatabase | None = None,
+    data: str | None = None,
+    uncertainty: bool = False,
 ) -> CarbonLimit:
     """The minimum steam-to-carbon ratio at which graphite stops being stable at equilibrium.
 
@@ -119,6 +134,13 @@ def carbon_limit(
     gas, kij : optional
         The gas model of the equilibria, as for :func:`gibbsmin.equilibrate`.
     db : SpeciesDatabase, optional
+    data : str, optional
+        The thermochemical data set by name, as for :func:`gibbsmin.equilibrate`.
+    uncertainty : bool
+        Fill ``CarbonLimit.uncertainty``, the limit's standard uncertainty
+        from the data set's formation-enthalpy uncertainties (needs a set
+        that states them, ``data="atct-anchored"``): 2 (species + 1) more
+        gas-only solves.
 
     Returns
     -------
@@ -133,7 +155,7 @@ def carbon_limit(
     >>> 0.5 < limit.steam_to_carbon < 2.0
     True
     """
-    db = db or default_database()
+    db = choose_database(data, db)
     T, P = to_kelvin(T), to_pascal(P)
     check_method(method)
     if carbon_basis not in CARBON_BASES:
@@ -141,16 +163,24 @@ def carbon_limit(
     low, high = _checked_bracket(bracket)
     scan = _SteamScan(feed.feed_mol() if isinstance(feed, Stream) else feed, T, P, carbon_basis,
                       species, exclude, method, db, gas=gas, kij=kij)
+    if uncertainty:
+        from ..uncertainty import formation_uncertainties
+
+        # A data set without uncertainties is refused before the search, not after it.
+        formation_uncertainties([*scan.equilibria.setup.system.records, db[GRAPHITE]], db.data_set)
+    not_found = math.nan if uncertainty else None
     low = max(low, scan.lowest_ratio)
     if scan.ln_activity(low) <= 0.0:
-        return CarbonLimit(T, P, math.nan, carbon_basis, f"carbon-free down to S/C = {low:g}", scan.evaluations)
+        return CarbonLimit(T, P, math.nan, carbon_basis, f"carbon-free down to S/C = {low:g}", scan.evaluations,
+                           not_found)
     while scan.ln_activity(high) > 0.0:
         if high >= 64.0:
             return CarbonLimit(T, P, math.nan, carbon_basis, f"graphite stable up to S/C = {high:g}",
-                               scan.evaluations)
+                               scan.evaluations, not_found)
         low, high = high, 2.0 * high
-    root = scipy.optimize.brentq(scan.ln_activity, low, high, xtol=xtol)
-    return CarbonLimit(T, P, float(root), carbon_basis, "found", scan.evaluations)
+    root = float(scipy.optimize.brentq(scan.ln_activity, low, high, xtol=xtol))
+    u = scan.uncertainty(root, db) if uncertainty else None
+    return CarbonLimit(T, P, root, carbon_basis, "found", scan.evaluations, u)
 
 
 def _checked_bracket(bracket: object) -> tuple[float, float]:

@@ -295,6 +295,7 @@ def _read_stage(section: Section, index: int, count: int, db: SpeciesDatabase) -
         T=T, P=P, line=section.source.line(section.path), T_in=T_in, adiabatic=adiabatic, heat_input=heat,
         approach=approach, **gas_model, method=_read_method(section), service=service, reactions=reactions,
         frozen=section.get("frozen", _names_in(db), ()), data=section.get("data", choice(*DATA_SETS), None),
+        uncertainty=section.get("uncertainty", read_bool, False),
     )
     section.finish(_STAGE_KEYS)
     return stage
@@ -343,6 +344,7 @@ def _read_exchanger(section: Section, index: int, count: int, kind: str) -> Stag
         T=section.get("T", read_temperature, None), P=section.get("P", read_pressure, hint="e.g. P = '30 bar(g)'"),
         line=section.source.line(section.path), **gas_model, method=_read_method(section), type=kind, duty=duty,
         data=section.get("data", choice(*DATA_SETS), None),
+        uncertainty=section.get("uncertainty", read_bool, False),
     )
     section.finish(_STAGE_KEYS)
     return stage

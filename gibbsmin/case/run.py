@@ -110,6 +110,9 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     """
     given = db
     db = db or default_database()
+    for stage in case.stages:
+        if stage.uncertainty:
+            check_uncertainty(case, stage, choose_database(stage.data, given))
     inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
                   {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
     results = []
@@ -137,6 +140,23 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     return CaseResult(case, tuple(results), curve)
 
 
+def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
+    """Refuse, before anything is solved, a stage that asks for uncertainty its data or model cannot give."""
+    lacking = [r.name for r in db if r.hf298_uncertainty is None]
+    if lacking:
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        f"data set {db.data_set!r} states no uncertainty of the enthalpies of formation; add data = "
+                        f"\"atct-anchored\" to the stage's table (or [conditions]), or remove uncertainty")
+    if stage.approach and (stage.adiabatic or stage.duty is not None):
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        "is not propagated through held approaches with the energy balance yet; give the stage an "
+                        "outlet T, or remove uncertainty")
+    if (stage.adiabatic or stage.duty is not None) and stage.gas != "ideal":
+        raise CaseError(case.source, stage.line, "uncertainty",
+                        f"with the energy balance, uncertainty is propagated for the ideal gas only, not "
+                        f"{stage.gas!r}; give the stage an outlet T, or remove uncertainty")
+
+
 def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
     if not stage.reacts:
         _check_heat_direction(stage, inlet)
@@ -150,7 +170,7 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db:
         energy["kij"] = stage.interactions
     feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
     common = {"species": scope.species, "exclude": scope.exclude, "method": stage.method, "db": db,
-              "allow_extrapolation": case.species.allow_extrapolation, **energy}
+              "allow_extrapolation": case.species.allow_extrapolation, "uncertainty": stage.uncertainty, **energy}
     if stage.approach:
         from ..restricted import equilibrate_with_approach
 

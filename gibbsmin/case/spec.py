@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from ..streams import Stream
 
@@ -80,6 +80,10 @@ class Stage:
         Heat added to a heater, cooler or knock-out instead of its outlet T, [W] (negative: removed).
     data : str or None
         The thermochemical data set by name; None for the engine's default.
+    uncertainty : bool
+        Propagate the data set's formation-enthalpy uncertainties to the
+        stage's answer (amounts, mol%, outlet T where the energy balance sets
+        it) and to the report's approach temperatures and carbon limit.
     """
 
     name: str
@@ -100,6 +104,7 @@ class Stage:
     frozen: tuple[str, ...] = ()
     duty: float | None = None
     data: str | None = None
+    uncertainty: bool = False
 
     @property
     def reacts(self) -> bool:
@@ -194,6 +199,10 @@ class Case:
     def feed_temperatures_known(self) -> bool:
         return all(feed.T_given for feed in self.feeds)
 
+    def with_uncertainty(self) -> Case:
+        """The same case with uncertainty asked for in every stage (``settle --uncertainty``)."""
+        return replace(self, stages=tuple(replace(stage, uncertainty=True) for stage in self.stages))
+
 
 #: Every key of a case file, by table, with its meaning (the reference printed by `gibbsmin settle --keys`).
 CASE_KEYS: dict[str, dict[str, str]] = {
@@ -237,6 +246,9 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "method": "solver: 'auto' (default), 'newton', 'convex'",
         "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
                 "re-anchored to the Active Thermochemical Tables at 298.15 K)",
+        "uncertainty": "true: the report shows the standard uncertainty from the data set's formation enthalpies "
+                       "beside each flow, mol%, outlet temperature, approach and carbon limit (needs a data set "
+                       "that states them, 'atct-anchored'; `settle --uncertainty` asks for it in every stage)",
         "name": "a name for the stage in the report",
         "type": "what the stage is: 'reactor' (default; settles to equilibrium as its reactions allow), "
                 "'heater' or 'cooler' (composition unchanged; T or duty), 'knock-out' (cooled to T: only water "

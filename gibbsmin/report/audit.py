@@ -84,17 +84,36 @@ def approach_table(result: AuditResult) -> Table | None:
     rows = []
     for unit in result.units:
         for f in unit.reactions:
-            rows.append((unit.spec.label, f.name, f.equation, f.T_eq - 273.15, f.approach_K,
+            rows.append((unit.spec.label, f.name, f.equation, f.T_eq - 273.15, f.approach_K, f.uncertainty_K,
                          "forward" if f.direction > 0 else "backward", f.stated_K, f.verdict))
     if not rows:
         return None
     return Table("Approach temperatures at reactor outlets",
                  (Column("reactor", "text"), Column("reaction", "text"), Column("equation", "text"),
                   Column("T equilibrium [degC]", "fixed1"), Column("approach [K]", "fixed1"),
+                  Column("data uncertainty [K]", "uncertainty"),
                   Column("went", "text"), Column("stated [K]", "fixed1"), Column("verdict", "verdict")),
                  tuple(rows), ("approach as written: positive = short of equilibrium; a reaction that went forward "
-                               "with a negative approach (or backward with a positive one) is beyond equilibrium",),
+                               "with a negative approach (or backward with a positive one) is beyond equilibrium",
+                               _uncertainty_note(result)),
                  key="approach")
+
+
+def _uncertainty_note(result: AuditResult) -> str:
+    """What the approach's data uncertainty is, or how to have it where the data set states none."""
+    name = _data_set_name(result)
+    if any(f.uncertainty_K is not None for u in result.units for f in u.reactions):
+        return (f"data uncertainty: standard uncertainty of T_eq (and so of the approach) from the formation "
+                f"enthalpies' stated uncertainties in data set {name!r}, propagated linearly; the stated gas is "
+                "taken as measured exactly")
+    return (f"data uncertainty: not given, data set {name!r} states no uncertainties; set [plant] data = "
+            "'atct-anchored' in the unit description to have it")
+
+
+def _data_set_name(result: AuditResult) -> str:
+    from ..thermo import data_set
+
+    return result.data_set or data_set(result.plant.data).data_set
 
 
 def units_table(result: AuditResult) -> Table:
@@ -145,6 +164,7 @@ def audit_report(result: AuditResult, details: bool = True) -> Report:
     plant = result.plant
     facts = (("unit description", plant.source), ("stream table", plant.table.source),
              ("streams", str(len(plant.table.streams))), ("units", str(len(plant.units))),
+             ("thermochemical data", _data_set_name(result)),
              ("result", f"{result.count('fail')} fail, {result.count('warn')} warn, {result.count('pass')} pass, "
                         f"{result.count('n/a')} not checked"))
     tables = [findings_table(result), verdict_table(result), units_table(result)]
@@ -168,7 +188,8 @@ def audit_document(result: AuditResult) -> dict[str, object]:
     """The audit as a JSON-ready document: every check, and per unit its element flows and approaches (SI units)."""
     def finding(f):
         return {"reaction": f.name, "equation": f.equation, "T_eq_K": f.T_eq, "approach_K": f.approach_K,
-                "direction": f.direction, "stated_approach_K": f.stated_K, "verdict": f.verdict}
+                "approach_uncertainty_K": f.uncertainty_K, "direction": f.direction, "stated_approach_K": f.stated_K,
+                "verdict": f.verdict}
 
     units = []
     for unit in result.units:
@@ -184,6 +205,7 @@ def audit_document(result: AuditResult) -> dict[str, object]:
     return json_ready({
         "gibbsmin_version": __version__,
         "plant": result.plant.title,
+        "data_set": _data_set_name(result),
         "worst": result.worst,
         "counts": {v: result.count(v) for v in ("pass", "warn", "fail", "n/a")},
         "stream_checks": [{"stream": c.where, "check": c.name, "value": c.value, "unit": c.unit,

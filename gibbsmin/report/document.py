@@ -24,6 +24,7 @@ class Column:
     style : str
         ``"text"``, ``"percent"`` (mol%), ``"flow"``, ``"number"`` (six significant digits),
         ``"fixed2"`` (two decimals; ``"fixed1"``, ``"fixed3"`` alike), ``"exp"`` (scientific), ``"figure"`` (four significant digits, noise as 0),
+        ``"uncertainty"`` (a standard uncertainty: two significant digits),
         ``"verdict"`` (pass, warn, fail, n/a) or ``"longtext"`` (text the terminal wraps).
     """
 

@@ -26,6 +26,9 @@ def format_cell(value: object, style: str) -> str:
     if style in _FIXED:
         decimals = _FIXED[style]
         return f"{round(x, decimals) + 0.0:.{decimals}f}"  # + 0.0: a rounded -0.001 reads 0.00, not -0.00
+    if style == "uncertainty":
+        # A standard uncertainty: two significant digits say all it knows.
+        return _unsigned_zero(f"{x:.2g}")
     if style == "exp":
         return _unsigned_zero(f"{x:.3e}")
     if style == "figure":

@@ -58,8 +58,10 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     eq = result.equilibrium
     wet, dry = eq.mole_fractions, eq.dry_mole_fractions
     partial_unit = _absolute(spec.pressure_unit)
+    u = _UncertaintyCells(eq, spec.flow_unit)
     columns = [Column("species", "text"), Column("phase", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
-               Column("mol% wet", "percent"), Column("mol% dry", "percent")]
+               *u.column("flow", spec.flow_unit), Column("mol% wet", "percent"), *u.column("mol% wet"),
+               Column("mol% dry", "percent"), *u.column("mol% dry")]
     if spec.partial_pressures:
         columns.append(Column(f"partial pressure [{partial_unit}]", "number"))
     extra = [None] if spec.partial_pressures else []
@@ -68,14 +70,18 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     rows: list[tuple[object, ...]] = []
     for s in shown:
         pressure = [from_pascal(wet[s] * eq.P, partial_unit)] if spec.partial_pressures else []
-        rows.append((s, "gas", flow_in(s, eq.amounts[s], spec.flow_unit), 100 * wet[s],
-                     100 * dry[s] if s in dry else None, *pressure))
+        rows.append((s, "gas", flow_in(s, eq.amounts[s], spec.flow_unit), *u.flow(s), 100 * wet[s], *u.wet(s),
+                     100 * dry[s] if s in dry else None, *u.dry(s), *pressure))
     for s, n in eq.condensed.items():
-        rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), None, None, *extra))
+        rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), *u.flow(s), None, *u.blank, None, *u.blank,
+                     *extra))
     gas_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items() if eq.phase_of[s] == "gas")
     share = 100.0 if eq.gas_present else None
-    rows.append(("total gas", "gas", gas_flow, share, share if dry else None, *extra))
-    notes = [] if eq.gas_present else ["(no gas phase: the condensed phases hold every atom)"]
+    rows.append(("total gas", "gas", gas_flow, *u.blank, share, *u.blank, share if dry else None, *u.blank,
+                 *extra))
+    notes = [UNCERTAINTY_NOTE] if u.asked else []
+    if not eq.gas_present:
+        notes.append("(no gas phase: the condensed phases hold every atom)")
     hidden = len(gas_species) - len(shown)
     if hidden:
         why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)}"
@@ -85,6 +91,42 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     return Table(title, tuple(columns), tuple(rows), tuple(notes), key=result.stage.name)
 
 
+#: What a "u(...)" column holds, said once under every table that has one.
+UNCERTAINTY_NOTE = ("u(...): standard uncertainty from the data set's stated uncertainties of the enthalpies of "
+                    "formation, propagated linearly (model and measurement errors not included)")
+
+
+class _UncertaintyCells:
+    """The "u(...)" cells beside a stage's flows and mol%: none unless the stage asked for uncertainty."""
+
+    def __init__(self, eq: Equilibrium, flow_unit: str):
+        self.eq, self.flow_unit = eq, flow_unit
+        self.asked = eq.uncertainty is not None
+        self.blank = [None] if self.asked else []
+
+    def column(self, quantity: str, unit: str = "") -> list[Column]:
+        """The column of u(quantity) [unit], where asked."""
+        return [Column(f"u({quantity})" + (f" [{unit}]" if unit else ""), "uncertainty")] if self.asked else []
+
+    def _cell(self, values, species: str, scale: float = 1.0) -> list[object]:
+        if not self.asked:
+            return []
+        value = None if values is None else values.get(species)
+        return [None if value is None or not math.isfinite(value) else scale * value]
+
+    def flow(self, species: str) -> list[object]:
+        if not self.asked:
+            return []
+        value = self.eq.uncertainty.get(species)
+        return [None if value is None or not math.isfinite(value) else flow_in(species, value, self.flow_unit)]
+
+    def wet(self, species: str) -> list[object]:
+        return self._cell(self.eq.mole_fraction_uncertainty, species, 100.0)
+
+    def dry(self, species: str) -> list[object]:
+        return self._cell(self.eq.dry_mole_fraction_uncertainty, species, 100.0)
+
+
 def _shown(species: str, y: float, spec: ReportSpec) -> bool:
     return species in spec.show if spec.show is not None else y >= spec.cutoff
 
@@ -92,13 +134,15 @@ def _shown(species: str, y: float, spec: ReportSpec) -> bool:
 def stages_table(result: CaseResult) -> Table:
     """One row per stage: inlet and outlet temperature, pressure, what was fixed, duty, certificate."""
     spec = result.case.report
+    balanced = any(stage.equilibrium.T_uncertainty is not None for stage in result.stages)
     rows = []
     for stage in result.stages:
         eq = stage.equilibrium
         T_in = set(stage.inlet.temperatures.values())
         inlet_T = from_kelvin(T_in.pop(), spec.temperature_unit) if len(T_in) == 1 and None not in T_in else None
         duty = stage.duty_W
-        rows.append((stage.stage.name, inlet_T, from_kelvin(eq.T, spec.temperature_unit),
+        u_T = [eq.T_uncertainty] if balanced else []
+        rows.append((stage.stage.name, inlet_T, from_kelvin(eq.T, spec.temperature_unit), *u_T,
                      from_pascal(eq.P, spec.pressure_unit), eq.specification,
                      None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
     notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
@@ -107,9 +151,13 @@ def stages_table(result: CaseResult) -> Table:
         notes = ["duty: not computed (the energy balance is not available in this version)"]
     elif not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
+    if balanced:
+        notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
+                     "set's stated uncertainties of the enthalpies of formation (blank where T was given)")
     unit = spec.temperature_unit
+    u_T_column = [Column("u(T out) [K]", "uncertainty")] if balanced else []
     return Table("Stages", (Column("stage", "text"), Column(f"T in [{unit}]", "fixed2"),
-                            Column(f"T out [{unit}]", "fixed2"), Column(f"P [{spec.pressure_unit}]", "number"),
+                            Column(f"T out [{unit}]", "fixed2"), *u_T_column, Column(f"P [{spec.pressure_unit}]", "number"),
                             Column("fixed", "text"), Column("duty [MW]", "number"), Column("certified", "verdict")),
                  tuple(rows), tuple(notes), key="stages")
 
@@ -173,24 +221,37 @@ def approach_table(result: CaseResult) -> Table | None:
     from ..reactions import approach_temperatures
 
     spec = result.case.report
+    asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
     for stage in result.stages:
         wanted = list(dict.fromkeys([*stage.stage.approach, *spec.approach]))
         if not wanted:
             continue
         eq = stage.equilibrium
-        for name, a in approach_temperatures(eq, reactions=wanted).items():
+        for name, a in approach_temperatures(eq, reactions=wanted, db=_stage_database(stage, None)).items():
             T_eq = None if math.isnan(a.T_eq) else from_kelvin(a.T_eq, spec.temperature_unit)
-            rows.append((stage.stage.name, name, a.reaction.equation, T_eq, a.approach_K, a.note or None))
+            u = [_approach_uncertainty(a) if stage.stage.uncertainty else None] if asked else []
+            rows.append((stage.stage.name, name, a.reaction.equation, T_eq, a.approach_K, *u, a.note or None))
     if not rows:
         return None
     unit = spec.temperature_unit
+    notes = ["approach: positive = short of equilibrium in the direction written (T - T_eq for an endothermic "
+             "reaction, T_eq - T for an exothermic one)"]
+    if asked:
+        notes.append("u(approach): standard uncertainty of T_eq (so of the approach) from the data set's stated "
+                     "uncertainties of the enthalpies of formation, the outlet's gas held as it is")
     return Table("Approach to equilibrium at each outlet",
                  (Column("stage", "text"), Column("reaction", "text"), Column("equation", "text"),
                   Column(f"T equilibrium [{unit}]", "fixed2"), Column("approach [K]", "fixed2"),
-                  Column("note", "text")), tuple(rows),
-                 ("approach: positive = short of equilibrium in the direction written (T - T_eq for an endothermic "
-                  "reaction, T_eq - T for an exothermic one)",), key="approach")
+                  *([Column("u(approach) [K]", "uncertainty")] if asked else []),
+                  Column("note", "text")), tuple(rows), tuple(notes), key="approach")
+
+
+def _approach_uncertainty(approach) -> float | None:
+    from ..uncertainty import approach_uncertainty
+
+    value = approach_uncertainty(approach)
+    return value if math.isfinite(value) else None
 
 
 def kp_table(result: CaseResult) -> Table | None:
@@ -230,6 +291,7 @@ def carbon_table(result: CaseResult) -> Table | None:
 
     if not result.case.report.carbon:
         return None
+    asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
     failures = []
     for stage in result.stages:
@@ -239,22 +301,28 @@ def carbon_table(result: CaseResult) -> Table | None:
         feed_ratio, limit, failure = _steam_to_carbon_limit(result, stage)
         if failure:
             failures.append(f"{stage.stage.name}: min S/C not found ({failure})")
-        rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio, limit,
-                     verdict, activity.verdict))
+        found = limit is not None and limit.status == "found"
+        u = [limit.uncertainty if found else None] if asked else []
+        rows.append((stage.stage.name, *(activity.by_reaction[r] for r in CARBON_REACTIONS), feed_ratio,
+                     limit.steam_to_carbon if found else None, *u, verdict, activity.verdict))
     basis = result.case.feeds[0].stream.carbon_basis
+    notes = ["a_C > 1: graphite is thermodynamically possible (whether it forms depends on kinetics and catalyst)",
+             f"min S/C: the lowest steam-to-carbon ratio ({basis} carbon) at which the stage's inlet, with its "
+             "steam changed, has no graphite at equilibrium at the outlet's T and P; blank where the inlet "
+             "has no such carbon or no limit lies between S/C 0.05 and 64"]
+    if asked:
+        notes.append("u(min S/C): its standard uncertainty from the data set's stated uncertainties of the "
+                     "enthalpies of formation")
     return Table("Carbon activity against graphite at each outlet",
                  (Column("stage", "text"), *(Column(f"a_C by {r}", "number") for r in CARBON_REACTIONS),
                   Column("S/C of inlet", "number"), Column("min S/C", "number"),
+                  *([Column("u(min S/C)", "uncertainty")] if asked else []),
                   Column("carbon-free", "verdict"), Column("verdict", "text")), tuple(rows),
-                 ("a_C > 1: graphite is thermodynamically possible (whether it forms depends on kinetics "
-                  "and catalyst)",
-                  f"min S/C: the lowest steam-to-carbon ratio ({basis} carbon) at which the stage's inlet, with its "
-                  "steam changed, has no graphite at equilibrium at the outlet's T and P; blank where the inlet "
-                  "has no such carbon or no limit lies between S/C 0.05 and 64", *failures), key="carbon")
+                 (*notes, *failures), key="carbon")
 
 
-def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, float | None, str | None]:
-    """The S/C of a stage's inlet, the carbon limit at its outlet's T and P (None where undefined), and why
+def _steam_to_carbon_limit(result: CaseResult, stage):
+    """The S/C of a stage's inlet, the ``CarbonLimit`` at its outlet's T and P (None where undefined), and why
     a limit that should have been found was not (None when it was, or when there is none to find)."""
     from ..carbon import carbon_limit
     from ..errors import GibbsminError
@@ -273,10 +341,19 @@ def _steam_to_carbon_limit(result: CaseResult, stage) -> tuple[float | None, flo
     try:
         limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
                              exclude=result.case.species.exclude, gas=eq.gas_model,
-                             kij=stage.stage.interactions, db=db)
+                             kij=stage.stage.interactions, db=_stage_database(stage, db),
+                             uncertainty=stage.stage.uncertainty)
     except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
         return ratio, None, " ".join(str(exc).split())
-    return ratio, (limit.steam_to_carbon if limit.status == "found" else None), None
+    return ratio, limit, None
+
+
+def _stage_database(stage, fallback):
+    """The database of the data set a stage's answer was computed with."""
+    from ..thermo import data_set
+
+    name = stage.equilibrium.extras.get("data_set")
+    return data_set(str(name)) if name else fallback
 
 
 def curve_plot(result: CaseResult) -> Plot | None:
@@ -428,6 +505,8 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
         **eq.to_dict(),
         "inlet_temperatures_K": dict(stage.inlet.temperatures),
         "flows": {s: flow_in(s, n, flow_unit) for s, n in eq.amounts.items()},
+        **({} if eq.uncertainty is None else
+           {"flow_uncertainty": {s: flow_in(s, u, flow_unit) for s, u in eq.uncertainty.items()}}),
         "dry_mole_fractions": eq.dry_mole_fractions,
     }
 

@@ -26,7 +26,7 @@ from .numbers import clean_number
 
 _FORMULA_START = ("=", "+", "-", "@")
 _NUMBER_FORMATS = {"percent": "0.0000", "flow": "0.00", "fixed2": "0.00", "fixed1": "0.0", "fixed3": "0.000",
-                   "exp": "0.000E+00", "number": "General"}
+                   "exp": "0.000E+00", "number": "General", "uncertainty": "0.0E+00"}
 _FILLS = {"pass": "D8F0DF", "warn": "FBEFC5", "fail": "F6D0CB"}
 
 

@@ -72,6 +72,8 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     solver = np.empty(B, dtype="<U16")
     run = spec.shape[-1]
     phase = _gas_phase(spec.to_json())
+    if spec.uncertainty:
+        u_y, u_condensed = np.full((B, n_gas), np.nan), np.full((B, len(system.names) - n_gas), np.nan)
     for group in _element_groups(b):
         problem = build_problem(setup, T[group], P[group], b=b[group])
         chains = max(1, group.size // run)
@@ -94,11 +96,18 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
         summary["element_balance"][group] = certificates.element_balance
         summary["stationarity"][group] = certificates.stationarity
         summary["condensed_margin"][group] = certificates.complementarity
+        if spec.uncertainty:
+            from ..uncertainty import batch_uncertainty
+
+            u_y[group], u_condensed[group] = batch_uncertainty(setup, problem, result, T[group], spec.data)
     columns: dict[str, object] = {"point": np.arange(first, last)}
     columns.update(shown)
     columns.update({"T_K": T, "P_Pa": P})
     columns.update({f"y_{name}": y[:, j] for j, name in enumerate(system.gas_names)})
     columns.update({f"n_{name}": n_condensed[:, j] for j, name in enumerate(system.condensed_names)})
+    if spec.uncertainty:
+        columns.update({f"u_y_{name}": u_y[:, j] for j, name in enumerate(system.gas_names)})
+        columns.update({f"u_n_{name}": u_condensed[:, j] for j, name in enumerate(system.condensed_names)})
     columns.update({"certified": certified, "solver": pd.Categorical(solver), "iterations": iterations})
     columns.update(summary)
     return pd.DataFrame(columns)

@@ -44,10 +44,14 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--scheduler", metavar="ADDRESS", help="run the chunks on this Dask scheduler")
     p.add_argument("--chunk-size", type=int, default=5000, help="points per chunk (default 5000)")
     p.add_argument("--yes", action="store_true", help=f"run a sweep of more than {LARGE_SWEEP:,} points")
+    p.add_argument("--uncertainty", action="store_true",
+                   help="add u_y_<species> and u_n_<species> columns: the standard uncertainty of each mole fraction "
+                        "and condensed amount from the data set's formation enthalpies (as [conditions] "
+                        "uncertainty = true; needs data = 'atct-anchored', ideal gas)")
 
 
-def spec_from_case(case, axes) -> SweepSpec:
-    """The sweep of a case's first stage along ``axes``."""
+def spec_from_case(case, axes, uncertainty: bool = False) -> SweepSpec:
+    """The sweep of a case's first stage along ``axes`` (with uncertainty columns if asked here or in the stage)."""
     stage = case.stages[0]
     # A sweep settles a full equilibrium; a stage type, service, reactions or frozen would be silently dropped.
     restricted = not stage.reacts or stage.service or stage.reactions is not None or stage.frozen
@@ -59,6 +63,7 @@ def spec_from_case(case, axes) -> SweepSpec:
                      species=case.species.only, exclude=case.species.exclude, inert=case.species.frozen,
                      method=stage.method, gas=stage.gas, kij=stage.kij,
                      kij_pairs=tuple((a, b, v) for (a, b), v in stage.kij_pairs.items()),
+                     uncertainty=uncertainty or stage.uncertainty,
                      **({} if stage.data is None else {"data": stage.data}))
 
 
@@ -77,7 +82,7 @@ def run(args: argparse.Namespace) -> int:
     case = read_case(args.case)
     names = [text.partition("=")[0].strip() for text in args.vary]
     check_axis_names(names, list(case.mixed_feed()))
-    spec = spec_from_case(case, [axis_from_text(text) for text in args.vary])
+    spec = spec_from_case(case, [axis_from_text(text) for text in args.vary], uncertainty=args.uncertainty)
     result = run_sweep(spec, args.out, chunk_size=args.chunk_size, workers=args.workers,
                        scheduler=args.scheduler, progress=sys.stderr.isatty())
     table = result if args.out is None else result.frame()

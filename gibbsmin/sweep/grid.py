@@ -88,6 +88,11 @@ class SweepSpec:
         The engineer's own k_ij over that table.
     data : str
         The thermochemical data set by name (``gibbsmin.thermo.DATA_SETS``).
+    uncertainty : bool
+        Add columns ``u_y_<species>`` (gas) and ``u_n_<species>`` (condensed):
+        the standard uncertainty of each mole fraction and condensed amount
+        from the data set's formation-enthalpy uncertainties (ideal gas; a
+        data set that states them, "atct-anchored").
     """
 
     feed: Mapping[str, float]
@@ -103,6 +108,7 @@ class SweepSpec:
     kij: str = "shipped"
     kij_pairs: tuple[tuple[str, str, float], ...] = ()
     data: str = DEFAULT_DATA
+    uncertainty: bool = False
     _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -122,9 +128,23 @@ class SweepSpec:
 
         object.__setattr__(self, "gas", canonical_model_name(self.gas))
         check_data_name(self.data)
+        if self.uncertainty:
+            self._check_uncertainty()
         if self.kij not in ("shipped", "none"):
             raise InputError(f"a sweep's kij is 'shipped' or 'none', not {self.kij!r}")
         object.__setattr__(self, "_shape", tuple(len(a.values) for a in self.axes))
+
+    def _check_uncertainty(self) -> None:
+        """Uncertainty columns need the ideal gas and a data set that states uncertainties: refused up front."""
+        from ..thermo.datasets import data_set
+
+        if self.gas != "ideal":
+            raise InputError(f"a sweep's uncertainty columns are propagated for the ideal gas only, not {self.gas!r}: "
+                             "drop the uncertainty, or compute the points you need with equilibrate(..., "
+                             "uncertainty=True)")
+        if any(r.hf298_uncertainty is None for r in data_set(self.data)):
+            raise InputError(f"data set {self.data!r} states no uncertainty of the enthalpies of formation; pass "
+                             "data='atct-anchored' to have the sweep's uncertainty columns")
 
     @property
     def shape(self) -> tuple[int, ...]:
@@ -193,6 +213,8 @@ class SweepSpec:
                 data["kij_pairs"] = [list(p) for p in self.kij_pairs]
         if self.data != DEFAULT_DATA:  # likewise: the default set keeps the old fingerprints
             data["data"] = self.data
+        if self.uncertainty:  # and a sweep without uncertainty columns
+            data["uncertainty"] = True
         return json.dumps(data, sort_keys=True)
 
     @classmethod
@@ -206,7 +228,7 @@ class SweepSpec:
             carbon_basis=data["carbon_basis"], method=data["method"],
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
             kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
-            data=data.get("data", DEFAULT_DATA),
+            data=data.get("data", DEFAULT_DATA), uncertainty=data.get("uncertainty", False),
         )
 
     def fingerprint(self) -> str:
