@@ -24,7 +24,7 @@ Which set fits better (measured, largest |ln K_ours - ln K_Graaf| on 473-573 K,
 two-constant form; full form in brackets): methanol nasa-1993 +0.248 (+0.211),
 atct-anchored +0.194 (+0.157); reverse shift nasa-1993 -0.052 (-0.024),
 atct-anchored -0.046 (-0.018).  The anchored data fit both
-reactions better; ATcT's CH3OH (-200.71 kJ/mol against NASA's -200.94) closes
+reactions better; ATcT's CH3OH (-200.70 kJ/mol against NASA's -200.94) closes
 a fifth of the methanol gap, which stays 0.19 in ln K (0.8 kJ/mol in delta-r G):
 more than ATcT's stated uncertainty (0.09 kJ/mol standard on CH3OH), so the rest
 lies in Graaf's 1980s thermochemical data or in our recollection of the fit,
