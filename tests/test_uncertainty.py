@@ -23,9 +23,9 @@ from gibbsmin.uncertainty import formation_uncertainties, propagated
 DRAWS = 2000
 
 
-def _monte_carlo(feed, T, P, species, gas="ideal", seed=1):
+def _monte_carlo(feed, T, P, species, gas="ideal", seed=1, inert=()):
     db = data_set("atct-anchored")
-    setup = prepare(feed, species=species, T_span=(T, T), db=db)
+    setup = prepare(feed, species=species, inert=inert, T_span=(T, T), db=db)
     system = setup.system
     u = formation_uncertainties(system.records)
     rng = np.random.default_rng(seed)
