@@ -11,7 +11,7 @@ from .. import __version__
 from ..case import CaseResult, ReportSpec, StageResult
 from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
-from ..thermo import default_database
+from ..thermo import database_holding, default_database
 from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
@@ -37,7 +37,7 @@ def pressure_text(P: float, unit: str) -> str:
 
 def flow_in(species: str, mol_s: float, unit: str) -> float:
     """A species flow [mol/s] in ``unit`` (molar, normal-volume or mass)."""
-    return from_mol_s(mol_s, unit, molar_mass=default_database()[species].molar_mass)
+    return from_mol_s(mol_s, unit, molar_mass=database_holding([species], default_database())[species].molar_mass)
 
 
 def cutoff_text(cutoff: float) -> str:

@@ -13,3 +13,4 @@ from .datasets import DATA_SETS as DATA_SETS
 from .datasets import DEFAULT_DATA as DEFAULT_DATA
 from .datasets import choose_database as choose_database
 from .datasets import data_set as data_set
+from .datasets import database_holding as database_holding

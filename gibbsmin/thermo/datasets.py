@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import functools
 import os
+from collections.abc import Iterable
 from dataclasses import dataclass
 
 from ..errors import InputError
@@ -66,3 +67,22 @@ def choose_database(data: str | None, db: SpeciesDatabase | None) -> SpeciesData
     if data is not None and check_data_name(data) != db.data_set:
         raise InputError(f"data={data!r} and db= (data set {db.data_set!r}) disagree; pass one of them")
     return db
+
+
+def database_holding(names: Iterable[str], preferred: SpeciesDatabase | None = None) -> SpeciesDatabase:
+    """``preferred`` (the default set's when None) if it knows every name, else the first shipped set that does.
+
+    For what does not depend on the data set (formula, phase, molar mass): a stream table whose feeds
+    were read with one set can then show an outlet of another that holds a species the first lacks
+    (liquid methanol is in "atct-anchored" only).  Raises the preferred set's error where none does.
+    """
+    names = list(names)
+    preferred = preferred if preferred is not None else data_set()
+    if all(name in preferred for name in names):
+        return preferred
+    for name in DATA_SETS:
+        candidate = data_set(name)
+        if all(n in candidate for n in names):
+            return candidate
+    preferred.resolve(names)  # raises UnknownSpeciesError naming the first unknown species
+    return preferred
