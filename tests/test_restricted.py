@@ -21,7 +21,7 @@ import gibbsmin
 from cantera_reference import cantera_species
 from gibbsmin.errors import InputError, UnknownSpeciesError
 from gibbsmin.reactions import approach_temperatures
-from gibbsmin.restricted import equilibrate_with_approach
+from gibbsmin import equilibrate_with_approach
 
 REFORMER_FEED = {"CH4": 1.0, "H2O": 3.0}
 REFORMER_SET = ["CH4", "H2O", "CO", "CO2", "H2"]
