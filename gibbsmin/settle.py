@@ -20,6 +20,7 @@ from numpy.typing import NDArray
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
+from .compiled import compiled
 from .solve import SOLVERS, SolverResult, solve
 from .system import Problem, System, reduce, select_species, standard_mu0
 from .thermo.database import SpeciesDatabase, SpeciesRecord, default_database
@@ -240,29 +241,20 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     system = setup.system
     names = system.names
     S = len(names)
-    ln_n = np.full(S, -np.inf)
-    n = np.zeros(S)
-    G = problem.n_gas
-    keep = problem.keep
-    ln_n[keep[:G]] = result.ln_n_gas[i]
-    n[keep[:G]] = np.exp(result.ln_n_gas[i])
-    n[keep[G:]] = result.n_condensed[i]
-    mu = problem.mu0[i].copy()
-    gas_total = n[keep[:G]].sum()
-    if gas_total > 0.0:
-        mu[:G] += result.ln_n_gas[i] - np.log(gas_total)
-    n_kept = n[keep]
-    G_RT = float(np.sum(n_kept[n_kept > 0] * mu[n_kept > 0]))
-    potentials = _element_potentials(system, problem, result.pi[i])
+    ln_n = np.empty(S)
+    n = np.empty(S)
+    G_RT = _unpacked(problem.keep, problem.n_gas, result.ln_n_gas[i], result.n_condensed[i], problem.mu0[i],
+                     ln_n, n)
     omitted = dict(setup.omitted)
-    for local in np.flatnonzero(~problem.allowed[i]):
-        omitted[names[keep[local]]] = "outside its data range at this temperature: cannot appear"
+    if not problem.allowed[i].all():
+        for local in np.flatnonzero(~problem.allowed[i]):
+            omitted[names[problem.keep[local]]] = "outside its data range at this temperature: cannot appear"
     return Equilibrium(
         T=T, P=P,
-        amounts={s: float(v) for s, v in zip(names, n)},
-        phase_of={r.name: ("gas" if r.is_gas else r.name) for r in system.records},
-        ln_gas_amounts={s: float(ln_n[j]) for j, s in enumerate(system.gas_names)},
-        element_potentials=potentials,
+        amounts=dict(zip(names, n.tolist())),
+        phase_of=dict(system.phase_of),
+        ln_gas_amounts=dict(zip(system.gas_names, ln_n[: system.n_gas].tolist())),
+        element_potentials=_element_potentials(system, problem, result.pi[i]),
         G_RT=G_RT,
         certificate=certificates[i],
         specification=specification,
@@ -271,19 +263,55 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     )
 
 
+@compiled()
+def _unpacked(keep, n_gas, ln_n_gas, n_condensed, mu0, ln_n, n):
+    """Amounts (and logs of the gas's) on the whole System from a solve on its kept species; returns G/RT.
+
+    Compiled: a result is unpacked after every solve, where a dozen array
+    operations on ten numbers would cost more than the solve's last iterations.
+    """
+    for j in range(ln_n.shape[0]):
+        ln_n[j] = -np.inf
+        n[j] = 0.0
+    gas_total = 0.0
+    for j in range(n_gas):
+        ln_n[keep[j]] = ln_n_gas[j]
+        n[keep[j]] = math.exp(ln_n_gas[j])
+        gas_total += n[keep[j]]
+    for c in range(keep.shape[0] - n_gas):
+        n[keep[n_gas + c]] = n_condensed[c]
+    ln_total = math.log(gas_total) if gas_total > 0.0 else 0.0
+    G_RT = 0.0
+    for j in range(keep.shape[0]):
+        amount = n[keep[j]]
+        if amount > 0.0:
+            G_RT += amount * (mu0[j] + (ln_n_gas[j] - ln_total if j < n_gas else 0.0))
+    return G_RT
+
+
 def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64]) -> dict[str, float]:
     """Potentials on the System's element rows; NaN for elements absent from the feed."""
-    A_kept = system.A[:, problem.keep]
-    present = np.any(A_kept != 0.0, axis=1)
     lam = np.full(len(system.elements), np.nan)
-    if problem.A.shape[0] == np.count_nonzero(present):
+    present, rows_dropped = _present_elements(system, problem)
+    if not rows_dropped:
         # No row was dropped: the solve's potentials are those of the present elements, in order.
         lam[present] = (pi @ problem.basis)[present]
     else:
         # Dependent element rows were dropped for the solve; the least-norm
         # potentials reproduce the same species potentials on all rows.
-        lam[present] = np.linalg.lstsq(A_kept[present].T, pi @ problem.A, rcond=None)[0]
-    return {el: float(v) for el, v in zip(system.elements, lam)}
+        lam[present] = np.linalg.lstsq(system.A[:, problem.keep][present].T, pi @ problem.A, rcond=None)[0]
+    return dict(zip(system.elements, lam.tolist()))
+
+
+def _present_elements(system: System, problem: Problem) -> tuple[NDArray[np.bool_], bool]:
+    """The System's element rows some kept species carries, and whether the solve dropped any of them."""
+    key = ("present elements", problem.keep.tobytes(), problem.A.shape[0])
+    found = system.reductions.get(key)
+    if found is None:
+        present = np.any(system.A[:, problem.keep] != 0.0, axis=1)
+        found = (present, problem.A.shape[0] != np.count_nonzero(present))
+        system.reductions[key] = found
+    return found
 
 
 def check_method(method: str) -> None:

@@ -252,6 +252,12 @@ def species_directory() -> Path:
     override = os.environ.get("GIBBSMIN_SPECIES")
     if override:
         return Path(override)
+    return _shipped_directory()
+
+
+@functools.lru_cache(maxsize=1)
+def _shipped_directory() -> Path:
+    # Resolved once: every solve asks (through the data-set choice), and the install does not move.
     package = Path(__file__).resolve().parent.parent
     installed = package / "_species_data"
     if installed.is_dir():

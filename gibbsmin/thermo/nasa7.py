@@ -27,12 +27,12 @@ from ..compiled import compiled
 R = 8.31446261815324
 
 
-#: Which quantity ``_polynomials`` evaluates.
-_CP, _H, _S, _G = 0, 1, 2, 3
+#: Which quantity ``polynomials`` evaluates.
+HEAT_CAPACITY, ENTHALPY, ENTROPY, GIBBS = 0, 1, 2, 3
 
 
 @compiled()
-def _polynomials(low, high, T_mid, T, quantity, out):
+def polynomials(low, high, T_mid, T, quantity, out):
     """cp/R, h/RT, s/R or g/RT of every species at every temperature, into out (T.size, S).
 
     Compiled: a set of ten species at one temperature is the common call (every
@@ -44,12 +44,12 @@ def _polynomials(low, high, T_mid, T, quantity, out):
         ln_t = math.log(t)
         for j in range(low.shape[0]):
             a = low[j] if t <= T_mid[j] else high[j]
-            if quantity == _CP:
+            if quantity == HEAT_CAPACITY:
                 out[p, j] = a[0] + t * (a[1] + t * (a[2] + t * (a[3] + t * a[4])))
                 continue
             h = a[0] + t * (a[1] / 2 + t * (a[2] / 3 + t * (a[3] / 4 + t * a[4] / 5))) + a[5] / t
             s = a[0] * ln_t + t * (a[1] + t * (a[2] / 2 + t * (a[3] / 3 + t * a[4] / 4))) + a[6]
-            out[p, j] = h if quantity == _H else (s if quantity == _S else h - s)
+            out[p, j] = h if quantity == ENTHALPY else (s if quantity == ENTROPY else h - s)
 
 
 @dataclass(frozen=True)
@@ -80,25 +80,25 @@ class Nasa7Table:
 
     def cp_R(self, T: ArrayLike) -> NDArray[np.float64]:
         """Heat capacity cp/R, shape ``np.shape(T) + (S,)``."""
-        return self._evaluate(T, _CP)
+        return self._evaluate(T, HEAT_CAPACITY)
 
     def h_RT(self, T: ArrayLike) -> NDArray[np.float64]:
         """Enthalpy h/RT on the formation basis, shape ``np.shape(T) + (S,)``."""
-        return self._evaluate(T, _H)
+        return self._evaluate(T, ENTHALPY)
 
     def s_R(self, T: ArrayLike) -> NDArray[np.float64]:
         """Absolute entropy s/R at 1 bar, shape ``np.shape(T) + (S,)``."""
-        return self._evaluate(T, _S)
+        return self._evaluate(T, ENTROPY)
 
     def g_RT(self, T: ArrayLike) -> NDArray[np.float64]:
         """Standard Gibbs energy g/RT = h/RT - s/R, shape ``np.shape(T) + (S,)``."""
-        return self._evaluate(T, _G)
+        return self._evaluate(T, GIBBS)
 
     def _evaluate(self, T: ArrayLike, quantity: int) -> NDArray[np.float64]:
         T = np.asarray(T, dtype=float)
         flat = np.ascontiguousarray(T.reshape(-1))
         out = np.empty((flat.size, self.low.shape[0]))
-        _polynomials(self.low, self.high, self.T_mid, flat, quantity, out)
+        polynomials(self.low, self.high, self.T_mid, flat, quantity, out)
         return out.reshape(T.shape + (self.low.shape[0],))
 
     def outside_range(self, T: ArrayLike) -> NDArray[np.bool_]:
