@@ -19,8 +19,10 @@ from .reactions import independent_reactions as independent_reactions
 from .reactions import parse_reaction as parse_reaction
 from .reactions import quotients as quotients
 from .reactions import reaction as reaction
-from .restricted import equilibrate_with_approach as equilibrate_with_approach
-from .settle import equilibrate as equilibrate
+from .api import equilibrate_with_approach as equilibrate_with_approach
+from .api import equilibrate as equilibrate
+from .prepared import Prepared as Prepared
+from .prepared import prepare as prepare
 from .solve.certificate import Certificate as Certificate
 from .thermo import default_database as default_database
 from .thermo import formation_properties as formation_properties

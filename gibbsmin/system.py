@@ -15,6 +15,7 @@ fixed by the element balance while it still dilutes the gas.
 from __future__ import annotations
 
 import functools
+import math
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -25,7 +26,8 @@ from numpy.typing import NDArray
 
 from .errors import InputError
 from .thermo.database import SpeciesDatabase, SpeciesRecord, nasa7_table
-from .thermo.nasa7 import Nasa7Table
+from .compiled import compiled
+from .thermo.nasa7 import GIBBS, Nasa7Table, polynomials
 
 #: Reference pressure of the standard state, [Pa] (that of the NASA data).
 P_REF = 1.0e5
@@ -60,13 +62,18 @@ class System:
     A: NDArray[np.float64]
     inert: tuple[str, ...] = ()
     table: Nasa7Table = field(init=False, repr=False, compare=False)
+    #: Reductions already worked out for this System (``reduce``), by the pattern of elements present.
+    reductions: dict = field(init=False, repr=False, compare=False)
+    #: Species names, gas first (as ``records``).
+    names: tuple[str, ...] = field(init=False, repr=False, compare=False)
+    #: Species name to its phase: "gas", or the species' own name for a pure condensed species.
+    phase_of: dict[str, str] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "table", nasa7_table(self.records))
-
-    @property
-    def names(self) -> tuple[str, ...]:
-        return tuple(r.name for r in self.records)
+        object.__setattr__(self, "reductions", {})
+        object.__setattr__(self, "names", tuple(r.name for r in self.records))
+        object.__setattr__(self, "phase_of", {r.name: ("gas" if r.is_gas else r.name) for r in self.records})
 
     @property
     def gas_names(self) -> tuple[str, ...]:
@@ -177,46 +184,73 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     """Drop species made impossible by zero element totals and reduce dependent element rows.
 
     ``b`` has shape (B, M_system), ``mu0`` and ``allowed`` (B, S_system).  Every
-    point of a batch must have the same elements present.
+    point of a batch must have the same elements present.  The reduction of each
+    pattern of elements present (and of condensed species allowed) is worked
+    out once per System and kept (``System.reductions``).
     """
     b = np.atleast_2d(np.asarray(b, dtype=float))
     scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
     present = (b / scale) > 1e-14
-    if not np.all(present == present[0]):
+    if present.shape[0] > 1 and not np.all(present == present[0]):
         raise InputError("every point of a batch must contain the same elements; split the batch by element set")
     present = present[0]
-    A = system.A
-    possible = ~np.any(A[~present] > 0, axis=0)
-    if not np.any(possible[: system.n_gas]):
-        raise InputError("no gas species can be formed from the feed's elements")
-    keep = np.flatnonzero(possible)
-    carried = A[present][:, keep]
-    # Condensed species that can appear at no point of the batch (outside their data) do not count
-    # for the rank: rows independent only through them leave a potential the solve cannot fix.
-    usable = np.atleast_2d(allowed)[:, keep].any(axis=0)
-    usable[: int(np.sum(keep < system.n_gas))] = True
-    if np.any(~carried.any(axis=1)):
-        missing = [system.elements[k] for k in np.flatnonzero(present)[~carried.any(axis=1)]]
-        raise InputError(
-            f"element(s) {', '.join(missing)} in the feed cannot be carried by any species of the set; "
-            "add a species that contains them"
-        )
-    rows = _independent_rows(carried[:, usable])
-    b_present = b[:, present]
-    if not usable.all():
-        _check_balance_possible(system, carried[:, usable], rows, b_present, np.flatnonzero(present))
-    selector = np.zeros((len(rows), A.shape[0]))
-    selector[np.arange(len(rows)), np.flatnonzero(present)[rows]] = 1.0
-    n_gas = int(np.sum(keep < system.n_gas))
+    allowed = np.atleast_2d(allowed)
+    key = (present.tobytes(), allowed.any(axis=0).tobytes())
+    reduction = system.reductions.get(key)
+    if reduction is None:
+        reduction = _Reduction.of(system, present, allowed)
+        system.reductions[key] = reduction
+    if reduction.dropped_rows:
+        _check_balance_possible(system, reduction.carried_usable, reduction.rows, b[:, present],
+                                np.flatnonzero(present))
+    keep = reduction.keep
     return Problem(
-        A=carried[rows],
-        b=b @ selector.T,
+        A=reduction.A,
+        b=b @ reduction.selector.T,
         mu0=np.atleast_2d(mu0)[:, keep],
-        n_gas=n_gas,
-        allowed=np.atleast_2d(allowed)[:, keep],
+        n_gas=reduction.n_gas,
+        allowed=allowed[:, keep],
         keep=keep,
-        basis=selector,
+        basis=reduction.selector,
     )
+
+
+@dataclass(frozen=True)
+class _Reduction:
+    """How a System's problem is reduced for one pattern of elements present and condensed species allowed."""
+
+    keep: NDArray[np.int_]
+    n_gas: int
+    rows: NDArray[np.int_]
+    A: NDArray[np.float64]
+    selector: NDArray[np.float64]
+    carried_usable: NDArray[np.float64]
+    dropped_rows: bool
+
+    @classmethod
+    def of(cls, system: System, present: NDArray[np.bool_], allowed: NDArray[np.bool_]) -> _Reduction:
+        A = system.A
+        possible = ~np.any(A[~present] > 0, axis=0)
+        if not np.any(possible[: system.n_gas]):
+            raise InputError("no gas species can be formed from the feed's elements")
+        keep = np.flatnonzero(possible)
+        carried = A[present][:, keep]
+        # Condensed species that can appear at no point of the batch (outside their data) do not count
+        # for the rank: rows independent only through them leave a potential the solve cannot fix.
+        usable = allowed[:, keep].any(axis=0)
+        n_gas = int(np.sum(keep < system.n_gas))
+        usable[:n_gas] = True
+        if np.any(~carried.any(axis=1)):
+            missing = [system.elements[k] for k in np.flatnonzero(present)[~carried.any(axis=1)]]
+            raise InputError(
+                f"element(s) {', '.join(missing)} in the feed cannot be carried by any species of the set; "
+                "add a species that contains them"
+            )
+        rows = _independent_rows(carried[:, usable])
+        selector = np.zeros((len(rows), A.shape[0]))
+        selector[np.arange(len(rows)), np.flatnonzero(present)[rows]] = 1.0
+        return cls(keep, n_gas, rows, carried[rows], selector, carried[:, usable],
+                   not usable.all() and len(rows) < carried.shape[0])
 
 
 def _check_balance_possible(system: System, carried: NDArray[np.float64], rows: NDArray[np.int_],
@@ -254,13 +288,24 @@ def _independent_rows_of(data: bytes, shape: tuple[int, int]) -> NDArray[np.int_
 def standard_mu0(system: System, T: NDArray[np.float64], P: NDArray[np.float64],
                  ln_phi: NDArray[np.float64] | None = None) -> NDArray[np.float64]:
     """mu0 of every species of the system for temperatures T [K] and pressures P [Pa], shape (B, S)."""
-    T = np.atleast_1d(np.asarray(T, dtype=float))
-    P = np.broadcast_to(np.atleast_1d(np.asarray(P, dtype=float)), T.shape)
-    mu0 = system.table.g_RT(T)
-    mu0[:, : system.n_gas] += np.log(P / P_REF)[:, None]
+    T = np.ascontiguousarray(np.atleast_1d(np.asarray(T, dtype=float)))
+    P = np.ascontiguousarray(np.broadcast_to(np.atleast_1d(np.asarray(P, dtype=float)), T.shape))
+    table = system.table
+    mu0 = np.empty((T.size, len(system.records)))
+    _standard_potentials(table.low, table.high, table.T_mid, T, P, system.n_gas, mu0)
     if ln_phi is not None:
         mu0[:, : system.n_gas] += ln_phi
     return mu0
+
+
+@compiled()
+def _standard_potentials(low, high, T_mid, T, P, n_gas, out):
+    """g0/RT of every species at each (T, P), with ln(P/P0) on the gas species, into out (B, S)."""
+    polynomials(low, high, T_mid, T, GIBBS, out)
+    for p in range(T.shape[0]):
+        ln_p = math.log(P[p] / P_REF)
+        for j in range(n_gas):
+            out[p, j] += ln_p
 
 
 def select_species(

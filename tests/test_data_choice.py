@@ -11,7 +11,7 @@ from gibbsmin import equilibrate
 from gibbsmin.case import parse_case, settle_case
 from gibbsmin.report.settle import settle_document, settle_report
 from gibbsmin.report.text import render_text
-from gibbsmin.restricted import equilibrate_with_approach
+from gibbsmin import equilibrate_with_approach
 from gibbsmin.sweep import SweepSpec, grid, solve_points
 from gibbsmin.thermo import R, data_set
 

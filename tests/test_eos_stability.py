@@ -98,7 +98,7 @@ def test_hot_loop_gas_is_not_tested():
 
 
 def test_a_held_back_reaction_with_a_cubic_is_checked_too():
-    from gibbsmin.restricted import equilibrate_with_approach
+    from gibbsmin import equilibrate_with_approach
 
     feed = dict(zip(METHANOL_LOOP, [66.0, 9.0, 6.0, 16.0, 0.5, 2.5]))
     with pytest.warns(RuntimeWarning, match="NOT stable as one gas"):

@@ -48,10 +48,10 @@ def _peng_robinson_pure_ln_phi(name: str, T: float, P: float) -> tuple[float, fl
 
 
 @pytest.mark.parametrize(("name", "T", "P"), [("N2", 300.0, 200e5), ("CO2", 350.0, 100e5), ("CH4", 250.0, 80e5)])
-def test_pure_gas_takes_z_and_fugacity_from_the_equation_of_state(name, T, P):
+def test_pure_gas_takes_z_and_fugacity_from_the_equation_of_state(name, T, P, solver):
     # Source: Peng and Robinson (1976) eq. 15 for a pure fluid (our transcription, rounded Omegas:
     # they move ln phi by about 1e-5, hence the 1e-4 tolerance).
-    eq = gibbsmin.equilibrate({name: 2.0}, T, P, species=[name], gas="peng-robinson")
+    eq = gibbsmin.equilibrate({name: 2.0}, T, P, species=[name], gas="peng-robinson", method=solver)
     Z_paper, ln_phi_paper = _peng_robinson_pure_ln_phi(name, T, P)
     assert eq.gas_model == "peng-robinson"
     assert eq.extras["compressibility_factor"] == pytest.approx(Z_paper, rel=1e-4)
@@ -65,29 +65,29 @@ def test_pure_gas_takes_z_and_fugacity_from_the_equation_of_state(name, T, P):
     assert eq.amounts[name] == pytest.approx(2.0, rel=1e-14)
 
 
-def test_ideal_keyword_is_the_default_bit_for_bit():
-    default = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5)
-    ideal = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="ideal")
+def test_ideal_keyword_is_the_default_bit_for_bit(solver):
+    default = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, method=solver)
+    ideal = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="ideal", method=solver)
     assert ideal.amounts == default.amounts
     assert ideal.ln_gas_amounts == default.ln_gas_amounts
     assert ideal.G_RT == default.G_RT
     assert ideal.gas_model == default.gas_model == "ideal"
 
 
-def test_ideal_phase_through_the_non_ideal_path_is_solve_fixed():
+def test_ideal_phase_through_the_non_ideal_path_is_solve_fixed(solver):
     setup = prepare(LOOP_FEED, T_span=(700.0, 700.0))
-    reference, _, _ = solve_fixed(setup, 700.0, 200e5)
-    through, _, _ = solve_nonideal(setup, 700.0, 200e5, gas_phase(setup.system, "ideal"))
+    reference, _, _ = solve_fixed(setup, 700.0, 200e5, method=solver)
+    through, _, _ = solve_nonideal(setup, 700.0, 200e5, gas_phase(setup.system, "ideal"), method=solver)
     assert through.amounts == reference.amounts
     assert through.G_RT == reference.G_RT
 
 
 @pytest.mark.parametrize("gas", ["peng-robinson", "srk"])
-def test_non_ideal_stationarity_recomputed_from_the_answer(gas):
+def test_non_ideal_stationarity_recomputed_from_the_answer(gas, solver):
     # Common practice, no source: at the optimum mu_j/RT = g0_j/RT + ln(P/P0) + ln y_j + ln phi_j(T, P, y)
     # equals sum_k a_kj lambda_k for every gas species, with phi evaluated at the answer itself.
     T, P = 700.0, 250e5
-    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas=gas)
+    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas=gas, method=solver)
     gas_species = [s for s in eq.species if eq.phase_of[s] == "gas"]
     described = [s for s in gas_species if DB[s].critical is not None]
     y = eq.mole_fractions
@@ -108,10 +108,10 @@ def test_non_ideal_stationarity_recomputed_from_the_answer(gas):
     assert min(y[s] for s in gas_species if y[s] > 0) < 1e-15
 
 
-def test_the_ideal_answer_fails_the_non_ideal_stationarity():
+def test_the_ideal_answer_fails_the_non_ideal_stationarity(solver):
     # The check above can fail: the ideal-gas answer violates the PR condition by about |ln phi|.
     T, P = 700.0, 250e5
-    ideal = gibbsmin.equilibrate(LOOP_FEED, T, P)
+    ideal = gibbsmin.equilibrate(LOOP_FEED, T, P, method=solver)
     described = [s for s in ideal.species if ideal.phase_of[s] == "gas" and DB[s].critical is not None]
     y = np.array([ideal.mole_fractions[s] for s in described])
     ln_phi = gas_model_for_species("peng-robinson", described).ln_phi(T, P, y / y.sum())
@@ -121,9 +121,9 @@ def test_the_ideal_answer_fails_the_non_ideal_stationarity():
     assert abs(mu - potential) > 1e-3
 
 
-def test_species_without_critical_constants_are_ideal_and_left_out_of_the_mixture():
+def test_species_without_critical_constants_are_ideal_and_left_out_of_the_mixture(solver):
     T, P = 700.0, 200e5
-    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas="peng-robinson")
+    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas="peng-robinson", method=solver)
     phi = eq.extras["fugacity_coefficients"]
     lacking = [s for s in phi if DB[s].critical is None]
     assert {"H", "NH2", "CH3"} <= set(lacking)
@@ -138,43 +138,43 @@ def test_species_without_critical_constants_are_ideal_and_left_out_of_the_mixtur
     np.testing.assert_allclose([math.log(phi[s]) for s in described], expected, rtol=0, atol=2e-10)
 
 
-def test_a_gas_rich_in_species_without_constants_warns():
+def test_a_gas_rich_in_species_without_constants_warns(solver):
     # Hydrogen atoms at 3500 K: a few per cent of the gas, treated as ideal.
     with pytest.warns(RuntimeWarning, match="no critical constants"):
-        eq = gibbsmin.equilibrate({"H2": 1.0}, 3500.0, 50e5, gas="peng-robinson")
+        eq = gibbsmin.equilibrate({"H2": 1.0}, 3500.0, 50e5, gas="peng-robinson", method=solver)
     assert eq.mole_fractions["H"] > 1e-3
 
 
-def test_loop_that_cannot_settle_raises_a_clear_error():
+def test_loop_that_cannot_settle_raises_a_clear_error(solver):
     setup = prepare(LOOP_FEED, T_span=(700.0, 700.0))
     phase = gas_phase(setup.system, "peng-robinson")
     with pytest.raises(gibbsmin.ConvergenceError, match="fugacity coefficients did not settle"):
-        solve_nonideal(setup, 700.0, 300e5, phase, options=OuterLoopOptions(max_iterations=2))
+        solve_nonideal(setup, 700.0, 300e5, phase, options=OuterLoopOptions(max_iterations=2), method=solver)
 
 
-def test_warm_start_gives_the_cold_answer():
+def test_warm_start_gives_the_cold_answer(solver):
     setup = prepare(LOOP_FEED, T_span=(690.0, 700.0))
     phase = gas_phase(setup.system, "peng-robinson")
-    cold, _, _ = solve_nonideal(setup, 700.0, 200e5, phase)
-    _, _, neighbour = solve_nonideal(setup, 690.0, 200e5, phase)
-    warm, _, _ = solve_nonideal(setup, 700.0, 200e5, phase, start=neighbour)
+    cold, _, _ = solve_nonideal(setup, 700.0, 200e5, phase, method=solver)
+    _, _, neighbour = solve_nonideal(setup, 690.0, 200e5, phase, method=solver)
+    warm, _, _ = solve_nonideal(setup, 700.0, 200e5, phase, start=neighbour, method=solver)
     assert warm.extras["gas_model_iterations"] < cold.extras["gas_model_iterations"]
     for s in ("NH3", "H2", "N2"):
         assert warm.mole_fractions[s] == pytest.approx(cold.mole_fractions[s], rel=1e-9)
 
 
-def test_plain_iteration_and_anderson_agree():
+def test_plain_iteration_and_anderson_agree(solver):
     setup = prepare(LOOP_FEED, T_span=(700.0, 700.0))
     phase = gas_phase(setup.system, "peng-robinson")
-    plain, _, _ = solve_nonideal(setup, 700.0, 300e5, phase, options=OuterLoopOptions(memory=0))
-    fast, _, _ = solve_nonideal(setup, 700.0, 300e5, phase)
+    plain, _, _ = solve_nonideal(setup, 700.0, 300e5, phase, options=OuterLoopOptions(memory=0), method=solver)
+    fast, _, _ = solve_nonideal(setup, 700.0, 300e5, phase, method=solver)
     assert fast.extras["gas_model_iterations"] < plain.extras["gas_model_iterations"]
     assert fast.mole_fractions["NH3"] == pytest.approx(plain.mole_fractions["NH3"], rel=1e-9)
 
 
-def test_residual_enthalpy_matches_the_equation_of_state():
+def test_residual_enthalpy_matches_the_equation_of_state(solver):
     T, P = 700.0, 200e5
-    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas="peng-robinson")
+    eq = gibbsmin.equilibrate(LOOP_FEED, T, P, gas="peng-robinson", method=solver)
     described = [s for s in eq.species if eq.phase_of[s] == "gas" and DB[s].critical is not None]
     n = np.array([eq.amounts[s] for s in described])
     props = gas_model_for_species("peng-robinson", described).properties(T, P, n / n.sum())
@@ -199,20 +199,20 @@ def test_kij_by_pair_reaches_the_model():
     np.testing.assert_allclose(tuned.ln_phi(700.0, 200e5, y)[where], direct, rtol=0, atol=1e-14)
 
 
-def test_shipped_kij_is_the_default_and_the_result_says_so():
+def test_shipped_kij_is_the_default_and_the_result_says_so(solver):
     # Source of the values: ChemSep PR table as served by thermo 0.6 (species/SOURCES.md, key chemsep-pr).
-    eq = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson")
+    eq = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson", method=solver)
     assert eq.extras["binary_interactions"]["H2-N2"] == 0.0711
     assert eq.extras["binary_interactions"]["N2-NH3"] == 0.2193
     assert "kij from the shipped table" in eq.extras["gas_model_note"]
-    plain = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson", kij="none")
+    plain = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="peng-robinson", kij="none", method=solver)
     assert plain.extras["binary_interactions"] == {}
     assert "kij = 0 for every pair" in plain.extras["gas_model_note"]
     # The table moves ammonia by about 7e-4 mol% here: small, but measurable.
     shift = abs(eq.mole_fractions["NH3"] - plain.mole_fractions["NH3"])
     assert 1e-6 < shift < 1e-3
     # SRK has no shipped values, so its answer is the same either way.
-    srk = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="srk")
+    srk = gibbsmin.equilibrate(LOOP_FEED, 700.0, 200e5, gas="srk", method=solver)
     assert srk.extras["binary_interactions"] == {}
 
 
@@ -248,18 +248,18 @@ def test_cubic_without_any_described_species_is_refused():
         gibbsmin.equilibrate({"H": 1.0}, 3000.0, 1e5, species=["H"], gas="srk")
 
 
-def test_aliases_of_the_model_names_are_accepted():
-    eq = gibbsmin.equilibrate({"H2": 3.0, "N2": 1.0}, 700.0, 200e5, gas="PR")
+def test_aliases_of_the_model_names_are_accepted(solver):
+    eq = gibbsmin.equilibrate({"H2": 3.0, "N2": 1.0}, 700.0, 200e5, gas="PR", method=solver)
     assert eq.gas_model == "peng-robinson"
 
 
-def test_adiabatic_solve_carries_the_residual_enthalpy():
+def test_adiabatic_solve_carries_the_residual_enthalpy(solver):
     # The energy balance closes on the real-gas enthalpy: H_out (with H_res) = H_in (with the feed's H_res).
     feed = {"H2": 0.66, "N2": 0.22, "NH3": 0.04, "CH4": 0.05, "Ar": 0.03}
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        real = gibbsmin.equilibrate(feed, P=200e5, T_feed=650.0, adiabatic=True, gas="peng-robinson")
-    ideal = gibbsmin.equilibrate(feed, P=200e5, T_feed=650.0, adiabatic=True)
+        real = gibbsmin.equilibrate(feed, P=200e5, T_feed=650.0, adiabatic=True, gas="peng-robinson", method=solver)
+    ideal = gibbsmin.equilibrate(feed, P=200e5, T_feed=650.0, adiabatic=True, method=solver)
     assert real.gas_model == "peng-robinson"
     assert real.specification == "H and P"
     assert real.certificate.stationarity < 1e-8

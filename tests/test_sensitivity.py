@@ -49,8 +49,9 @@ def _assert_close(analytic, numeric, what):
 
 
 @pytest.mark.parametrize("case", CASES)
-def test_derivatives_match_central_differences(case):
+def test_derivatives_match_central_differences(case, solver):
     feed, T, P, kwargs = CASES[case]
+    kwargs = dict(kwargs, method=solver)
     eq, n = _amounts(feed, T, P, dict(kwargs, sensitivities=True))
     s = eq.extras["sensitivities"]
     names = list(eq.species)
@@ -76,8 +77,9 @@ def test_derivatives_match_central_differences(case):
 
 
 @pytest.mark.parametrize("case", ["steam reformer gas", "graphite present", "liquid water present"])
-def test_equilibrium_heat_capacity_is_the_slope_of_the_equilibrium_enthalpy(case):
+def test_equilibrium_heat_capacity_is_the_slope_of_the_equilibrium_enthalpy(case, solver):
     feed, T, P, kwargs = CASES[case]
+    kwargs = dict(kwargs, method=solver)
     eq = gibbsmin.equilibrate(feed, T, P, sensitivities=True, **kwargs)
     h = 1e-3
     slope = (gibbsmin.equilibrate(feed, T + h, P, **kwargs).extras["enthalpy_J"]
@@ -88,10 +90,10 @@ def test_equilibrium_heat_capacity_is_the_slope_of_the_equilibrium_enthalpy(case
     assert s["heat_capacity_equilibrium_J_per_K"] > s["heat_capacity_frozen_J_per_K"]
 
 
-def test_equilibrium_heat_capacity_against_cantera_enthalpy_slope():
+def test_equilibrium_heat_capacity_against_cantera_enthalpy_slope(solver):
     # Cantera's TP equilibrium on the same species, differenced in T: an outside evaluation of dH/dT.
     feed, T, P, kwargs = CASES["steam reformer gas"]
-    eq = gibbsmin.equilibrate(feed, T, P, sensitivities=True, **kwargs)
+    eq = gibbsmin.equilibrate(feed, T, P, sensitivities=True, **kwargs, method=solver)
     gas = cantera_gas([s for s in eq.species if eq.phase_of[s] == "gas"])
     total_mass = None
 
@@ -107,16 +109,17 @@ def test_equilibrium_heat_capacity_against_cantera_enthalpy_slope():
     assert eq.extras["sensitivities"]["heat_capacity_equilibrium_J_per_K"] == pytest.approx(slope, rel=1e-5)
 
 
-def test_frozen_heat_capacity_is_the_sum_of_the_species_heat_capacities():
-    eq = gibbsmin.equilibrate({"N2": 1.0, "Ar": 1.0}, 300.0, BAR, species=["N2", "Ar"], sensitivities=True)
+def test_frozen_heat_capacity_is_the_sum_of_the_species_heat_capacities(solver):
+    eq = gibbsmin.equilibrate({"N2": 1.0, "Ar": 1.0}, 300.0, BAR, species=["N2", "Ar"], sensitivities=True,
+                              method=solver)
     # Argon: cp = 5/2 R exactly (monatomic ideal gas); N2 at 300 K: 29.125 J/(mol K) (JANAF, Chase 1998).
     expected = 2.5 * 8.314462618 + 29.125
     assert eq.extras["sensitivities"]["heat_capacity_frozen_J_per_K"] == pytest.approx(expected, abs=0.01)
 
 
-def test_on_a_two_phase_plateau_temperature_derivatives_do_not_exist():
+def test_on_a_two_phase_plateau_temperature_derivatives_do_not_exist(solver):
     eq = gibbsmin.equilibrate({"N2": 1.0, "H2O": 0.1}, P=101325.0, T_feed=300.0, heat_input=-5300.0,
-                              species=["N2", "H2O", "O2", "H2", "H2O(l)", "H2O(s)"], sensitivities=True)
+                              species=["N2", "H2O", "O2", "H2", "H2O(l)", "H2O(s)"], sensitivities=True, method=solver)
     s = eq.extras["sensitivities"]
     assert "phase_boundary" in eq.extras
     assert s["heat_capacity_equilibrium_J_per_K"] is None
@@ -129,7 +132,7 @@ def test_on_a_two_phase_plateau_temperature_derivatives_do_not_exist():
 LOOP = {"H2": 64.5, "N2": 21.5, "NH3": 3.0, "CH4": 7.0, "Ar": 4.0}
 
 
-def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas():
+def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas(solver):
     # Two independent methods on the same ideal-gas answer: the central differences used for cubic gases
     # and the implicit differentiation of the optimality conditions agree to 1e-6 relative.
     from gibbsmin import energy
@@ -138,14 +141,14 @@ def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas():
 
     T, P = 723.15, 200e5
     setup = prepare(LOOP, inert=["CH4", "Ar"], T_span=(T, T))
-    eq, problem, result = solve_fixed(setup, T, P)
+    eq, problem, result = solve_fixed(setup, T, P, method=solver)
     exact = equilibrium_sensitivities(setup, problem, result, T, P)
     system = setup.system
     columns = system.element_matrix(gibbsmin.default_database().resolve(list(setup.feed)))
 
     def amounts_at(T_now, P_now, b):
         moved = dataclasses.replace(setup, b=b)
-        return energy.state_amounts(moved, solve_fixed(moved, T_now, P_now, start=result)[0])
+        return energy.state_amounts(moved, solve_fixed(moved, T_now, P_now, start=result, method=solver)[0])
 
     def enthalpy_at(T_now, n):
         return energy.enthalpy(system.table, system.n_gas, n, T_now, P)
@@ -162,20 +165,21 @@ def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas():
     assert differenced.heat_capacity_frozen == pytest.approx(exact.heat_capacity_frozen, rel=1e-6)
 
 
-def test_peng_robinson_sensitivities_let_phi_move():
+def test_peng_robinson_sensitivities_let_phi_move(solver):
     # Internal consistency: against central differences of equilibrate itself with another step, and
     # conservation of every element; the cubic moves dNH3/dT by 8 % from the ideal gas's here.
     T, P = 723.15, 200e5
-    eq = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], gas="peng-robinson", sensitivities=True)
+    eq = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], gas="peng-robinson", sensitivities=True, method=solver)
     found = eq.extras["sensitivities"]
     h = 0.05
-    up = gibbsmin.equilibrate(LOOP, T + h, P, inert=["CH4", "Ar"], gas="peng-robinson")
-    down = gibbsmin.equilibrate(LOOP, T - h, P, inert=["CH4", "Ar"], gas="peng-robinson")
+    up = gibbsmin.equilibrate(LOOP, T + h, P, inert=["CH4", "Ar"], gas="peng-robinson", method=solver)
+    down = gibbsmin.equilibrate(LOOP, T - h, P, inert=["CH4", "Ar"], gas="peng-robinson", method=solver)
     assert found["dn_dT_mol_per_K"]["NH3"] == pytest.approx((up.amounts["NH3"] - down.amounts["NH3"]) / (2 * h),
                                                              rel=1e-6)
     assert found["heat_capacity_equilibrium_J_per_K"] == pytest.approx(
         (up.extras["enthalpy_J"] - down.extras["enthalpy_J"]) / (2 * h), rel=1e-6)
     dn_dT = found["dn_dT_mol_per_K"]
     assert abs(3 * dn_dT["NH3"] + 2 * dn_dT["H2"]) < 1e-8 and abs(dn_dT["NH3"] + 2 * dn_dT["N2"]) < 1e-8
-    ideal_phi = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], sensitivities=True).extras["sensitivities"]
+    ideal = gibbsmin.equilibrate(LOOP, T, P, inert=["CH4", "Ar"], sensitivities=True, method=solver)
+    ideal_phi = ideal.extras["sensitivities"]
     assert abs(dn_dT["NH3"] / ideal_phi["dn_dT_mol_per_K"]["NH3"] - 1.0) > 0.05

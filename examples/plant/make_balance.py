@@ -30,7 +30,7 @@ from pathlib import Path
 import scipy.optimize
 
 from gibbsmin.energy import mixture_enthalpy
-from gibbsmin.restricted import equilibrate_with_approach
+from gibbsmin import equilibrate_with_approach
 
 HERE = Path(__file__).resolve().parent
 ATM = 101325.0

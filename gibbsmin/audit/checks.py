@@ -261,7 +261,7 @@ def _dry_percent(flows: Mapping[str, float]) -> dict[str, float]:
 
 def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: TableStream,
                            db: SpeciesDatabase) -> Equilibrium:
-    from ..settle import equilibrate
+    from ..api import equilibrate
 
     # By default the species the unit's own streams hold: a shift converter's reference does not grow
     # hydrocarbons its streams never show.
@@ -272,7 +272,7 @@ def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: T
     frozen = [s for s in spec.frozen if inlet.get(s, 0.0) > 0.0]
     species = tuple(s for s in species if s not in spec.frozen or s in frozen)
     if spec.approach:
-        from ..restricted import equilibrate_with_approach
+        from ..api import equilibrate_with_approach
 
         return equilibrate_with_approach(inlet, outlet.T, outlet.P, dict(spec.approach),
                                          frozen=frozen or None, species=species, gas=spec.gas, db=db)

@@ -12,7 +12,7 @@ import inspect
 from collections.abc import Callable
 from dataclasses import dataclass
 
-from ..settle import equilibrate
+from ..api import equilibrate
 
 
 def engine_accepts(keyword: str) -> bool:
@@ -40,7 +40,7 @@ FEATURES: dict[str, Feature] = {
     "energy": Feature("the energy balance (gibbsmin.energy)",
                       lambda: engine_accepts("adiabatic") and engine_accepts("T_feed")),
     "approach": Feature("restricted equilibrium (gibbsmin.restricted)",
-                        lambda: module_has("restricted", "equilibrate_with_approach")),
+                        lambda: module_has("api", "equilibrate_with_approach")),
     "gas": Feature("non-ideal gas models in the solve (equilibrate(gas=...))", lambda: engine_accepts("gas")),
     "reactions": Feature("reactions and approach temperatures (gibbsmin.reactions)",
                          lambda: module_has("reactions", "approach_temperatures")),

@@ -13,7 +13,7 @@ import scipy.optimize
 
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
-from ..settle import equilibrate
+from ..api import equilibrate
 from ..thermo import SpeciesDatabase, choose_database, default_database
 from ..units import from_mol_s
 from .features import FEATURES
@@ -172,7 +172,7 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db:
     common = {"species": scope.species, "exclude": scope.exclude, "method": stage.method, "db": db,
               "allow_extrapolation": case.species.allow_extrapolation, "uncertainty": stage.uncertainty, **energy}
     if stage.approach:
-        from ..restricted import equilibrate_with_approach
+        from ..api import equilibrate_with_approach
 
         eq = equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach), frozen=list(scope.held) or None,
                                        **common)

@@ -9,7 +9,7 @@ from numpy.typing import NDArray
 
 from ..equilibrium import Equilibrium
 from ..errors import TemperatureRangeError
-from ..settle import Setup, _positive_number, check_feed
+from ..settle import Setup, positive_number, check_feed
 from ..solve import SolverResult
 from ..system import P_REF, Problem
 from ..thermo.database import SpeciesDatabase, default_database
@@ -79,7 +79,7 @@ def heat_capacity(table: Nasa7Table, n: NDArray[np.float64], T: float) -> float:
 
 
 def _temperature(value: object, name: str) -> float:
-    return _positive_number(value, name, "K")
+    return positive_number(value, name, "K")
 
 
 def _mixture(amounts: Mapping[str, float], T: float, db: SpeciesDatabase | None, allow_extrapolation: bool):
@@ -116,14 +116,14 @@ def mixture_enthalpy(amounts: Mapping[str, float], T: float, P: float = P_REF, *
     -241.8
     """
     table, n_gas, n, T = _mixture(amounts, T, db, allow_extrapolation)
-    return enthalpy(table, n_gas, n, T, _positive_number(P, "P", "Pa"))
+    return enthalpy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
 
 
 def mixture_entropy(amounts: Mapping[str, float], T: float, P: float = P_REF, *,
                     db: SpeciesDatabase | None = None, allow_extrapolation: bool = False) -> float:
     """Entropy of a mixture, [J/K]: ideal gas mixture plus pure condensed phases (see ``mixture_enthalpy``)."""
     table, n_gas, n, T = _mixture(amounts, T, db, allow_extrapolation)
-    return entropy(table, n_gas, n, T, _positive_number(P, "P", "Pa"))
+    return entropy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
 
 
 def state_amounts(setup: Setup, eq: Equilibrium) -> NDArray[np.float64]:

@@ -13,7 +13,7 @@ import math
 import numpy as np
 from numba import prange
 
-from ._compile import compiled
+from ..compiled import compiled
 
 LN_TRACE = math.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
 LN_LIFT = math.log(1e-4)   # a trace species may rise at most to this mole fraction in one step

@@ -26,7 +26,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..system import Problem
-from ._compile import compiled
+from ..compiled import compiled
 from .result import SolverResult
 
 

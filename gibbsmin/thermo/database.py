@@ -90,6 +90,9 @@ class SpeciesDatabase:
                     raise DataError(f"alias {alias!r} of {record.name} is already taken")
                 self._by_alias[key] = i
         self._table = nasa7_table(self._records)
+        #: Objects derived from these records alone (species sets and their Systems), kept for reuse
+        #: by ``settle.feed_species_set``; the records never change, so nothing in it goes stale.
+        self.memo: dict[object, object] = {}
 
     def __len__(self) -> int:
         return len(self._records)
@@ -249,6 +252,12 @@ def species_directory() -> Path:
     override = os.environ.get("GIBBSMIN_SPECIES")
     if override:
         return Path(override)
+    return _shipped_directory()
+
+
+@functools.lru_cache(maxsize=1)
+def _shipped_directory() -> Path:
+    # Resolved once: every solve asks (through the data-set choice), and the install does not move.
     package = Path(__file__).resolve().parent.parent
     installed = package / "_species_data"
     if installed.is_dir():

@@ -15,13 +15,41 @@ Entropies are absolute, at the reference pressure of 1 bar.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from ..compiled import compiled
+
 #: Molar gas constant, [J/(mol K)]: exact since the 2019 SI (N_A k, CODATA 2018).
 R = 8.31446261815324
+
+
+#: Which quantity ``polynomials`` evaluates.
+HEAT_CAPACITY, ENTHALPY, ENTROPY, GIBBS = 0, 1, 2, 3
+
+
+@compiled()
+def polynomials(low, high, T_mid, T, quantity, out):
+    """cp/R, h/RT, s/R or g/RT of every species at every temperature, into out (T.size, S).
+
+    Compiled: a set of ten species at one temperature is the common call (every
+    fixed-T solve), where array arithmetic would cost ten times the sums.  The
+    low set applies up to and including T_mid, as the NASA tables' own readers do.
+    """
+    for p in range(T.shape[0]):
+        t = T[p]
+        ln_t = math.log(t)
+        for j in range(low.shape[0]):
+            a = low[j] if t <= T_mid[j] else high[j]
+            if quantity == HEAT_CAPACITY:
+                out[p, j] = a[0] + t * (a[1] + t * (a[2] + t * (a[3] + t * a[4])))
+                continue
+            h = a[0] + t * (a[1] / 2 + t * (a[2] / 3 + t * (a[3] / 4 + t * a[4] / 5))) + a[5] / t
+            s = a[0] * ln_t + t * (a[1] + t * (a[2] / 2 + t * (a[3] / 3 + t * a[4] / 4))) + a[6]
+            out[p, j] = h if quantity == ENTHALPY else (s if quantity == ENTROPY else h - s)
 
 
 @dataclass(frozen=True)
@@ -50,44 +78,28 @@ class Nasa7Table:
             self.T_min[index], self.T_max[index],
         )
 
-    def _coefficients(self, T: NDArray[np.float64]) -> NDArray[np.float64]:
-        # The low set applies up to and including T_mid (the same convention as
-        # the NASA tables' own readers); result shape T.shape + (S, 7).
-        use_low = T[..., None] <= self.T_mid
-        return np.where(use_low[..., None], self.low, self.high)
-
     def cp_R(self, T: ArrayLike) -> NDArray[np.float64]:
         """Heat capacity cp/R, shape ``np.shape(T) + (S,)``."""
-        T = np.asarray(T, dtype=float)
-        a = self._coefficients(T)
-        t = T[..., None]
-        return a[..., 0] + t * (a[..., 1] + t * (a[..., 2] + t * (a[..., 3] + t * a[..., 4])))
+        return self._evaluate(T, HEAT_CAPACITY)
 
     def h_RT(self, T: ArrayLike) -> NDArray[np.float64]:
         """Enthalpy h/RT on the formation basis, shape ``np.shape(T) + (S,)``."""
-        T = np.asarray(T, dtype=float)
-        a = self._coefficients(T)
-        t = T[..., None]
-        return (
-            a[..., 0]
-            + t * (a[..., 1] / 2 + t * (a[..., 2] / 3 + t * (a[..., 3] / 4 + t * a[..., 4] / 5)))
-            + a[..., 5] / t
-        )
+        return self._evaluate(T, ENTHALPY)
 
     def s_R(self, T: ArrayLike) -> NDArray[np.float64]:
         """Absolute entropy s/R at 1 bar, shape ``np.shape(T) + (S,)``."""
-        T = np.asarray(T, dtype=float)
-        a = self._coefficients(T)
-        t = T[..., None]
-        return (
-            a[..., 0] * np.log(t)
-            + t * (a[..., 1] + t * (a[..., 2] / 2 + t * (a[..., 3] / 3 + t * a[..., 4] / 4)))
-            + a[..., 6]
-        )
+        return self._evaluate(T, ENTROPY)
 
     def g_RT(self, T: ArrayLike) -> NDArray[np.float64]:
         """Standard Gibbs energy g/RT = h/RT - s/R, shape ``np.shape(T) + (S,)``."""
-        return self.h_RT(T) - self.s_R(T)
+        return self._evaluate(T, GIBBS)
+
+    def _evaluate(self, T: ArrayLike, quantity: int) -> NDArray[np.float64]:
+        T = np.asarray(T, dtype=float)
+        flat = np.ascontiguousarray(T.reshape(-1))
+        out = np.empty((flat.size, self.low.shape[0]))
+        polynomials(self.low, self.high, self.T_mid, flat, quantity, out)
+        return out.reshape(T.shape + (self.low.shape[0],))
 
     def outside_range(self, T: ArrayLike) -> NDArray[np.bool_]:
         """True where a temperature lies outside a species' fitted range."""
