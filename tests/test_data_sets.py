@@ -102,8 +102,9 @@ def test_anchored_sources_are_listed():
 def test_the_data_sets_are_named(anchored):
     assert set(DATA_SETS) == {"nasa-1993", "atct-anchored"}
     assert anchored.data_set == "atct-anchored"
-    assert data_set("nasa-1993") is default_database()
-    assert default_database().data_set == "nasa-1993"
+    assert data_set("atct-anchored") is default_database()  # the default set
+    assert default_database().data_set == "atct-anchored"
+    assert data_set("nasa-1993").data_set == "nasa-1993"
     with pytest.raises(gibbsmin.InputError, match="unknown data set 'atct'; choose one of nasa-1993, atct-anchored"):
         data_set("atct")
 

@@ -159,8 +159,8 @@ AUDIT_KEYS: dict[str, dict[str, str]] = {
     "plant": {"title": "a title for the report", "stream_table": "the stream table (CSV or XLSX), relative to "
               "this file; the command line's table argument overrides it",
               "normal_conditions": "what Nm3 means in the table: 'DIN 1343' (default), 'ISO 13443', 'US gas'",
-              "data": "thermochemical data set of every check: 'nasa-1993' or 'atct-anchored' (its stated "
-                      "uncertainties give each approach temperature's data uncertainty)"},
+              "data": "thermochemical data set of every check: 'atct-anchored' (default; its stated "
+                      "uncertainties give each approach temperature's data uncertainty) or 'nasa-1993'"},
     "thresholds": {name: f"{{ warn = ..., fail = ... }} in {limit.unit}: {meaning} (default warn {limit.warn:g}, "
                    f"fail {'never' if limit.fail is None else f'{limit.fail:g}'})"
                    for name, (limit, meaning) in THRESHOLDS.items()},

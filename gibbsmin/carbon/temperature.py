@@ -92,9 +92,9 @@ def carbon_limit_temperatures(
     --------
     >>> limits = carbon_limit_temperatures({"CH4": 1.0, "H2O": 0.5}, "25 bar")
     >>> [round(T - 273.15) for T in limits.boundaries]
-    [504]
+    [502]
     >>> limits.describe()
-    'graphite stable from 504.12 to 1000.00 degC at 25 bar'
+    'graphite stable from 501.58 to 1000.00 degC at 25 bar'
     """
     db = db or default_database()
     P = to_pascal(P)

@@ -244,8 +244,8 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "kij_pairs": "with a cubic gas model: your own kij over that table, e.g. [conditions.kij_pairs] "
                      "\"H2 NH3\" = 0.05 (two species names and a value between -1 and 1)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
-        "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
-                "re-anchored to the Active Thermochemical Tables at 298.15 K)",
+        "data": "thermochemical data set: 'atct-anchored' (default: NASA polynomials re-anchored to the "
+                "Active Thermochemical Tables at 298.15 K, with uncertainties) or 'nasa-1993' (as published)",
         "uncertainty": "true: the report shows the standard uncertainty from the data set's formation enthalpies "
                        "beside each flow, mol%, outlet temperature, approach and carbon limit (needs a data set "
                        "that states them, 'atct-anchored'; `settle --uncertainty` asks for it in every stage)",

@@ -21,7 +21,7 @@ from numpy.typing import NDArray
 from ..errors import InputError
 from ..streams import CARBON_BASES, counted_carbon
 from ..thermo.database import SpeciesDatabase, default_database
-from ..thermo.datasets import DEFAULT_DATA, check_data_name
+from ..thermo.datasets import DEFAULT_DATA, UNNAMED_DATA, check_data_name
 
 #: Axis names with a meaning of their own; any other name is a feed species.
 SPECIAL_AXES = ("T", "P", "S/C")
@@ -211,7 +211,7 @@ class SweepSpec:
             data.update(gas=self.gas, kij=self.kij)
             if self.kij_pairs:
                 data["kij_pairs"] = [list(p) for p in self.kij_pairs]
-        if self.data != DEFAULT_DATA:  # likewise: the default set keeps the old fingerprints
+        if self.data != UNNAMED_DATA:  # likewise: the NASA set keeps the old fingerprints
             data["data"] = self.data
         if self.uncertainty:  # and a sweep without uncertainty columns
             data["uncertainty"] = True
@@ -228,7 +228,7 @@ class SweepSpec:
             carbon_basis=data["carbon_basis"], method=data["method"],
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
             kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
-            data=data.get("data", DEFAULT_DATA), uncertainty=data.get("uncertainty", False),
+            data=data.get("data", UNNAMED_DATA), uncertainty=data.get("uncertainty", False),
         )
 
     def fingerprint(self) -> str:

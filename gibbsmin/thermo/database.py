@@ -290,6 +290,13 @@ def load_database(directory: str | os.PathLike[str] | None = None, data_set: str
 
 
 @functools.lru_cache(maxsize=1)
-def default_database() -> SpeciesDatabase:
-    """The shipped database, loaded once per process."""
+def shipped_database() -> SpeciesDatabase:
+    """The species files at the top of the species folder, the data set "nasa-1993" (loaded once per process)."""
     return load_database()
+
+
+def default_database() -> SpeciesDatabase:
+    """The database of the default data set (``thermo.datasets.DEFAULT_DATA``), loaded once per process."""
+    from .datasets import data_set  # datasets builds on this module
+
+    return data_set()

@@ -13,7 +13,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from ..errors import InputError
-from .database import SpeciesDatabase, default_database, load_database, species_directory
+from .database import SpeciesDatabase, load_database, shipped_database, species_directory
 
 
 @dataclass(frozen=True)
@@ -35,8 +35,16 @@ DATA_SETS: dict[str, DataSet] = {
     )
 }
 
-#: The data set used when none is named.
-DEFAULT_DATA = "nasa-1993"
+#: The data set used when none is named: the better-checked one (ATcT's enthalpies of formation, with
+#: their uncertainties; see README "Which thermochemical data").  Name "nasa-1993" for the NASA values
+#: as published (the comparisons with Cantera's NASA evaluation do).
+DEFAULT_DATA = "atct-anchored"
+
+
+#: The data set of anything recorded without a data-set name (a sweep's spec written before the data
+#: sets, or with the NASA data): the default until "atct-anchored" became it.  Such records keep their
+#: meaning; the new default is written out by name.
+UNNAMED_DATA = "nasa-1993"
 
 
 def check_data_name(data: object) -> str:
@@ -48,8 +56,8 @@ def check_data_name(data: object) -> str:
 
 @functools.lru_cache(maxsize=None)
 def _load(name: str, directory: str, override: str) -> SpeciesDatabase:
-    if name == DEFAULT_DATA and not override:
-        return default_database()
+    if name == "nasa-1993" and not override:
+        return shipped_database()
     folder = os.path.join(directory, DATA_SETS[name].folder)
     return load_database(folder, data_set=name if not override else f"{name} (files in {folder})")
 
