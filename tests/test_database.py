@@ -284,6 +284,15 @@ def test_environment_variable_selects_the_species_folder(tmp_path, methane_entry
     assert load_database().names == ("CH4",)
 
 
+def test_a_species_folder_without_the_default_set_says_how_to_proceed(tmp_path, methane_entry, monkeypatch):
+    # The default set lives in a subfolder; a folder of one's own files lacks it: the error names both ways on.
+    _write_species(tmp_path, [methane_entry])
+    monkeypatch.setenv("GIBBSMIN_SPECIES", str(tmp_path))
+    with pytest.raises(gibbsmin.DataError, match="no folder 'atct-anchored' .* pass data='nasa-1993'"):
+        default_database()
+    assert data_set("nasa-1993").names == ("CH4",)
+
+
 # ---------------------------------------------------------------- speed
 
 

@@ -12,7 +12,7 @@ import os
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from ..errors import InputError
+from ..errors import DataError, InputError
 from .database import SpeciesDatabase, load_database, shipped_database, species_directory
 
 
@@ -59,6 +59,10 @@ def _load(name: str, directory: str, override: str) -> SpeciesDatabase:
     if name == "nasa-1993" and not override:
         return shipped_database()
     folder = os.path.join(directory, DATA_SETS[name].folder)
+    if override and not os.path.isdir(folder):
+        raise DataError(f"GIBBSMIN_SPECIES={override} has no folder {DATA_SETS[name].folder!r} for the data set "
+                        f"{name!r}; copy species/{DATA_SETS[name].folder} into it, or pass data='nasa-1993' to use "
+                        "the files at its top")
     return load_database(folder, data_set=name if not override else f"{name} (files in {folder})")
 
 
