@@ -196,6 +196,58 @@ class Prepared:
         from call to call (T in K, P in Pa); the answer is exactly what that
         function returns for the same options.
         """
+        return self._equilibrate(feed, T, P, T_feed, adiabatic, heat_input, sensitivities, uncertainty)[0]
+
+    def equilibrate_many(self, feeds: Mapping[str, object] | Sequence[Mapping[str, object]],
+                         T: float | Sequence[float] | NDArray[np.float64],
+                         P: float | Sequence[float] | NDArray[np.float64]) -> list[Equilibrium]:
+        """The equilibria of many (feed, T, P) points at fixed T and P, each warm-started from the one before.
+
+        Parameters
+        ----------
+        feeds : mapping or sequence of mappings
+            One feed for every point, or a feed per point (species to mol).
+        T, P : float or array
+            Temperatures [K] and pressures [Pa], broadcast against each other
+            and the feeds.
+
+        Returns
+        -------
+        list of Equilibrium
+            One per point, in order, each checked as ``equilibrate`` checks it.
+            Order the points along a sweep axis to profit from the warm starts;
+            an answer starts from its neighbour's, so it may differ from a
+            cold single call in the last digits (within the certificate's
+            tolerances), never in what is certified.
+        """
+        single = isinstance(feeds, (Mapping, Stream))
+        if not single and (isinstance(feeds, str) or not isinstance(feeds, Sequence) or not feeds):
+            raise InputError("feeds takes one feed mapping, or a non-empty list of them (one per point)")
+        try:
+            T_all, P_all = (np.atleast_1d(np.asarray(v, dtype=float)) for v in (T, P))
+            count = np.broadcast(T_all, P_all, np.empty(1 if single else len(feeds))).size
+        except (TypeError, ValueError):
+            sizes = [np.size(T), np.size(P), 1 if single else len(feeds)]
+            raise InputError(f"T, P and feeds give {sizes[0]}, {sizes[1]} and {sizes[2]} points: give each one value "
+                             "or the same number of values (T in K and P in Pa as numbers)") from None
+        if T_all.ndim > 1 or P_all.ndim > 1:
+            raise InputError("T and P take one number or a flat list of numbers each")
+        T_all, P_all = np.broadcast_to(T_all, (count,)), np.broadcast_to(P_all, (count,))
+        answers: list[Equilibrium] = []
+        start = None
+        for i in range(count):
+            feed = feeds if single else feeds[i if len(feeds) > 1 else 0]
+            eq, start = self._equilibrate(feed, float(T_all[i]), float(P_all[i]), start=start)
+            answers.append(eq)
+        return answers
+
+    def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
+                     uncertainty=False, start=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
+        """The pipeline: the answer, and the warm start it offers a neighbour (its System and raw solve).
+
+        ``start`` is such a warm start; it is used only at fixed T, on the same System with the same elements
+        present.
+        """
         spec, db = self.specification, self.db
         if P is None:
             raise InputError("P is required: the pressure in Pa, e.g. P=30e5")
@@ -237,7 +289,7 @@ class Prepared:
                 enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks)
             eq = dataclasses.replace(eq, specification=text)
         else:
-            eq, problem, result = step(T, None)
+            eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)
         extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                       residual_enthalpy=residual)
         extras["data_set"] = db.data_set
@@ -260,7 +312,7 @@ class Prepared:
                 "frozen mol": dict(frozen_mol),
             })
         # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
-        return nonideal.with_stability_verdict(eq)
+        return nonideal.with_stability_verdict(eq), (_start_key(setup), result)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:
@@ -398,6 +450,11 @@ class Prepared:
                 return np.array([moved.amounts[s] for s in setup.system.names])
         return _with_uncertainty_fields(eq, point_uncertainties(
             setup, problem, result, T, data_set, amounts_at=amounts_at, offset_map=offset_map))
+
+
+def _start_key(setup: Setup) -> tuple[int, bytes]:
+    """What a warm start must share with the point it starts: the System, and which elements are present."""
+    return id(setup.system), (setup.b > 1e-14 * max(float(setup.b.max()), 1e-300)).tobytes()
 
 
 def _with_uncertainty_fields(eq: Equilibrium, u: Uncertainties) -> Equilibrium:
