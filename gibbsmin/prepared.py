@@ -38,9 +38,10 @@ from .errors import InputError
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
-from .settle import (Setup, check_method, checked, feed_species_set, finite_number, positive_number, setup_on,
-                     solve_fixed)
-from .solve import SolverResult
+from .settle import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
+                     positive_number, setup_on, solve_fixed)
+from .solve import CertificateBatch, SolverResult, solve
+from .system import Problem
 from .streams import Stream
 from .thermo.database import SpeciesDatabase
 from .thermo.nasa7 import R
@@ -240,6 +241,39 @@ class Prepared:
             eq, start = self._equilibrate(feed, float(T_all[i]), float(P_all[i]), start=start)
             answers.append(eq)
         return answers
+
+    def feed_setup(self, feed: Mapping[str, float], T_span: tuple[float, float]) -> Setup:
+        """The Setup of a feed (species to mol) on this specification's species set over ``T_span`` [K].
+
+        For a batch (``solve_batch``) unit amounts will do: they fix the species
+        set and element rows; each point brings its own element totals.
+        """
+        return self._setup(check_feed(feed, self.db), T_span)[0]
+
+    def solve_batch(self, setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64], b: NDArray[np.float64], *,
+                    chains: int = 1) -> tuple[Problem, SolverResult, CertificateBatch]:
+        """The raw, certified solves of many points of one setup at fixed T [K] and P [Pa] (element totals ``b``,
+        shape (B, elements)), in ``chains`` runs of warm-started neighbours: what a sweep stores.
+
+        Every point must hold the same elements (split a batch by element set first).  The gas model and the
+        held reactions' offsets are this specification's, as in ``equilibrate``.
+        """
+        spec = self.specification
+        if self.ln_phi is not None:
+            raise InputError("a batch iterates the gas model point by point; use gas='peng-robinson' instead of "
+                             "ln_phi held fixed")
+        problem = build_problem(setup, T, P, b=b, allow_extrapolation=spec.allow_extrapolation)
+        if self.held:
+            offsets_at = self._offsets(setup, self._complete_reactions(setup, self._species_set(setup)))
+            problem = dataclasses.replace(problem, mu0=problem.mu0 + np.array(
+                [offsets_at(float(T_i))[problem.keep] for T_i in T]))
+        phase = self._gas_phase(setup, self._species_set(setup))
+        if phase.is_ideal:
+            result, certificates = solve(problem, spec.method, chains=chains)
+        else:
+            result, certificates = nonideal.solve_batch_nonideal(problem, phase, T, P, method=spec.method,
+                                                                 chains=chains)
+        return problem, result, certificates
 
     def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
                      uncertainty=False, start=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:

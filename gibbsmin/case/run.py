@@ -13,10 +13,10 @@ import scipy.optimize
 
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
-from ..api import equilibrate
+from ..api import equilibrate, prepared_for
+from ..prepared import Specification
 from ..thermo import SpeciesDatabase, choose_database, default_database
 from ..units import from_mol_s
-from .features import FEATURES
 from .scope import LIQUID_WATER, StageScope, possible_condensates, stage_scope
 from .spec import Case, CurveSpec, Stage
 from .toml import CaseError
@@ -157,27 +157,27 @@ def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
                         f"{stage.gas!r}; give the stage an outlet T, or remove uncertainty")
 
 
+def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specification:
+    """What a stage computes, as the one specification every front door builds (``gibbsmin.prepare``)."""
+    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    if stage.approach:
+        return Specification.of(species=scope.species, exclude=scope.exclude, approach=dict(stage.approach),
+                                frozen=list(scope.held) or None, method=stage.method,
+                                allow_extrapolation=case.species.allow_extrapolation, restricted=True, **cubic)
+    return Specification.of(species=scope.species, exclude=scope.exclude, inert=scope.held, method=stage.method,
+                            allow_extrapolation=case.species.allow_extrapolation, **cubic)
+
+
 def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
     if not stage.reacts:
         _check_heat_direction(stage, inlet)
-    energy = {}
-    if FEATURES["energy"].available() and inlet.temperatures_known:
-        heat = stage.heat_input if stage.duty is None else stage.duty
-        energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
-                  "heat_input": heat}
-    if stage.gas != "ideal":
-        energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
-        energy["kij"] = stage.interactions
-    feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
-    common = {"species": scope.species, "exclude": scope.exclude, "method": stage.method, "db": db,
-              "allow_extrapolation": case.species.allow_extrapolation, "uncertainty": stage.uncertainty, **energy}
-    if stage.approach:
-        from ..api import equilibrate_with_approach
-
-        eq = equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach), frozen=list(scope.held) or None,
-                                       **common)
-    else:
-        eq = equilibrate(feed, stage.T, stage.P, inert=scope.held, **common)
+    balance = {}
+    if inlet.temperatures_known:
+        balance = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
+                   "heat_input": stage.heat_input if stage.duty is None else stage.duty}
+    feed = dict(inlet.streams) if balance else inlet.mixed
+    prepared = prepared_for(stage_specification(case, stage, scope), db)
+    eq = prepared.equilibrate(feed, stage.T, stage.P, uncertainty=stage.uncertainty, **balance)
     if stage.type in ("heater", "cooler"):
         _check_no_condensate(case, stage, scope, eq, db)
     extras = {**eq.extras, "stage": scope.to_dict()}
