@@ -11,11 +11,13 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.optimize
 
+from ..carbon import CarbonActivity, CarbonLimit, carbon_activity, carbon_limit
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
 from ..api import equilibrate, prepared_for
 from ..prepared import Specification
 from ..thermo import SpeciesDatabase, choose_database, default_database
+from ..streams import Stream
 from ..units import from_mol_s
 from .scope import LIQUID_WATER, StageScope, possible_condensates, stage_scope
 from .spec import Case, CurveSpec, Stage
@@ -56,6 +58,7 @@ class StageResult:
     inlet: Inlet
     equilibrium: Equilibrium
     scope: StageScope | None = None
+    carbon: StageCarbon | None = None
 
     @property
     def outlet(self) -> dict[str, float]:
@@ -69,6 +72,50 @@ class StageResult:
         """Heat added to the stage, [W], when the energy balance was computed."""
         duty = self.equilibrium.extras.get("duty_W")
         return None if duty is None else float(duty)
+
+
+@dataclass(frozen=True)
+class StageCarbon:
+    """The carbon check of a stage (``[report] carbon``): its outlet against graphite, and the S/C limit of its
+    inlet at the outlet's T and P.
+
+    Attributes
+    ----------
+    activity : CarbonActivity
+        The outlet's carbon activity by reaction and its verdict.
+    steam_to_carbon : float or None
+        S/C of the inlet; None where the inlet has no carbon the ratio counts.
+    limit : CarbonLimit or None
+        The lowest S/C without graphite; None where there is no ratio or the search failed.
+    failure : str or None
+        Why a limit that should have been found was not.
+    """
+
+    activity: CarbonActivity
+    steam_to_carbon: float | None
+    limit: CarbonLimit | None
+    failure: str | None
+
+
+def stage_carbon(case: Case, stage: Stage, inlet: Inlet, eq: Equilibrium, db: SpeciesDatabase) -> StageCarbon:
+    """The carbon check of one stage (the limit is searched from the inlet's gas without its water, so that it
+    may lie below the S/C fed)."""
+    basis = case.feeds[0].stream.carbon_basis
+    mixed = inlet.mixed
+    stream = Stream(tuple(mixed), tuple(mixed.values()), eq.T, eq.P, carbon_basis=basis,
+                    database=case.feeds[0].stream.database)
+    activity = carbon_activity(eq)
+    if stream.carbon_flow() == 0.0:
+        return StageCarbon(activity, None, None, None)
+    ratio = stream.steam_to_carbon()
+    dry = {name: n for name, n in mixed.items() if name != "H2O"}
+    try:
+        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=case.species.only,
+                             exclude=case.species.exclude, gas=eq.gas_model, kij=stage.interactions, db=db,
+                             uncertainty=stage.uncertainty)
+    except (GibbsminError, ValueError) as exc:  # shown in the report's notes, not dropped
+        return StageCarbon(activity, ratio, None, " ".join(str(exc).split()))
+    return StageCarbon(activity, ratio, limit, None)
 
 
 @dataclass(frozen=True)
@@ -129,7 +176,8 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
             raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
-        result = StageResult(stage, inlet, eq, scope)
+        carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
+        result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
         inlet = Inlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
     curve = None

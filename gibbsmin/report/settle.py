@@ -287,7 +287,7 @@ def kp_table(result: CaseResult) -> Table | None:
 
 
 def carbon_table(result: CaseResult) -> Table | None:
-    from ..carbon import CARBON_REACTIONS, carbon_activity
+    from ..carbon import CARBON_REACTIONS
 
     if not result.case.report.carbon:
         return None
@@ -295,10 +295,9 @@ def carbon_table(result: CaseResult) -> Table | None:
     rows = []
     failures = []
     for stage in result.stages:
-        eq = stage.equilibrium
-        activity = carbon_activity(eq)
+        activity, feed_ratio, limit, failure = (stage.carbon.activity, stage.carbon.steam_to_carbon,
+                                                stage.carbon.limit, stage.carbon.failure)
         verdict = activity.status  # "fail" whenever the outlet holds graphite
-        feed_ratio, limit, failure = _steam_to_carbon_limit(result, stage)
         if failure:
             failures.append(f"{stage.stage.name}: min S/C not found ({failure})")
         found = limit is not None and limit.status == "found"
@@ -319,33 +318,6 @@ def carbon_table(result: CaseResult) -> Table | None:
                   *([Column("u(min S/C)", "uncertainty")] if asked else []),
                   Column("carbon-free", "verdict"), Column("verdict", "text")), tuple(rows),
                  (*notes, *failures), key="carbon")
-
-
-def _steam_to_carbon_limit(result: CaseResult, stage):
-    """The S/C of a stage's inlet, the ``CarbonLimit`` at its outlet's T and P (None where undefined), and why
-    a limit that should have been found was not (None when it was, or when there is none to find)."""
-    from ..carbon import carbon_limit
-    from ..errors import GibbsminError
-    from ..streams import Stream
-
-    inlet = stage.inlet.mixed
-    eq = stage.equilibrium
-    basis = result.case.feeds[0].stream.carbon_basis
-    db = result.case.feeds[0].stream.database
-    stream = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis, database=db)
-    if stream.carbon_flow() == 0.0:
-        return None, None, None  # no carbon the ratio counts: neither a ratio nor a limit
-    ratio = stream.steam_to_carbon()
-    # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
-    dry = {name: n for name, n in inlet.items() if name != "H2O"}
-    try:
-        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
-                             exclude=result.case.species.exclude, gas=eq.gas_model,
-                             kij=stage.stage.interactions, db=_stage_database(stage, db),
-                             uncertainty=stage.stage.uncertainty)
-    except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
-        return ratio, None, " ".join(str(exc).split())
-    return ratio, limit, None
 
 
 def _stage_database(stage, fallback):
