@@ -9,7 +9,6 @@ import numpy as np
 
 from .. import __version__
 from ..case import CaseResult, ReportSpec, StageResult
-from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
 from ..thermo import default_database
 from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
@@ -147,9 +146,7 @@ def stages_table(result: CaseResult) -> Table:
                      None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
     notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
              f"to the outlet; {_enthalpies_text(result)}"]
-    if not FEATURES["energy"].available():
-        notes = ["duty: not computed (the energy balance is not available in this version)"]
-    elif not result.case.feed_temperatures_known:
+    if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
@@ -434,9 +431,9 @@ def settle_report(result: CaseResult) -> Report:
     tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
               *(stage_table(s, spec) for s in result.stages)]
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
     tables += [t for t in optional if t is not None]
     tables.append(certificate_table(result))
@@ -486,9 +483,9 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
 def _table_documents(result: CaseResult) -> dict[str, list[dict[str, object]]]:
     """The approach, Kp and carbon tables as lists of rows keyed by column heading (NaN written as None)."""
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
 
     def plain(value):
