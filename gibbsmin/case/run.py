@@ -317,12 +317,11 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
     # The curve takes the first stage's gas model, as its operating lines' enthalpies do.
     model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.interactions}
     temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
-    values = []
     species = case.species
-    for T in temperatures:
-        eq = equilibrate(feed, float(T), P, species=species.only, exclude=species.exclude, inert=species.frozen,
-                         db=db, allow_extrapolation=species.allow_extrapolation, **model)
-        values.append(_curve_value(spec, eq.amounts, feed, db))
+    # One specification for the whole curve, each point warm-started from the one before.
+    prepared = prepared_for(Specification.of(species=species.only, exclude=species.exclude, inert=species.frozen,
+                                             allow_extrapolation=species.allow_extrapolation, **model), db)
+    values = [_curve_value(spec, eq.amounts, feed, db) for eq in prepared.equilibrate_many(feed, temperatures, P)]
     lines = []
     for k, result in enumerate(results):
         if not result.stage.reacts:
