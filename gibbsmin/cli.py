@@ -158,11 +158,7 @@ def _settle(args: argparse.Namespace) -> int:
     from .report.text import render_text
 
     if args.keys:
-        from .case import FEATURES, KEY_NEEDS
-
-        status = {key: f"{FEATURES[need].module}: {'available' if FEATURES[need].available() else 'NOT AVAILABLE YET'}"
-                  for key, need in KEY_NEEDS.items()}
-        sys.stdout.write(_keys_text({**CASE_KEYS, "keys that need a module": status}))
+        sys.stdout.write(_keys_text(CASE_KEYS))
         return OK
     if args.case is None:
         raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")
