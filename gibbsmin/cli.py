@@ -19,9 +19,9 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from . import __version__
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
 from .sweep import command as sweep_command
+from .version import __version__
 
 #: Exit codes.
 OK, CHECKS_FAILED, BAD_INPUT, NOT_CERTIFIED, INTERRUPTED = 0, 1, 2, 3, 130

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from .. import __version__
 from ..audit.checks import SEVERITY, AuditResult, UnitAudit
+from ..version import __version__
 from .caution import CAUTION
 from .document import Column, Plot, Report, Table
 from .numbers import format_cell

@@ -7,15 +7,16 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .. import __version__
 from ..case import CaseResult, ReportSpec, StageResult
 from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
 from ..thermo import default_database
-from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
+from ..units import from_kelvin, from_mol_s, from_pascal
+from ..version import __version__
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
 from .feeds import flow_text, meets_steam, mixed_steam_to_carbon, steam_to_carbon_text
+from .numbers import cutoff_text
 from .stream_table import stream_table
 
 
@@ -38,14 +39,6 @@ def pressure_text(P: float, unit: str) -> str:
 def flow_in(species: str, mol_s: float, unit: str) -> float:
     """A species flow [mol/s] in ``unit`` (molar, normal-volume or mass)."""
     return from_mol_s(mol_s, unit, molar_mass=default_database()[species].molar_mass)
-
-
-def cutoff_text(cutoff: float) -> str:
-    if cutoff >= 1e-4:
-        return f"{from_fraction(cutoff, 'mol%'):g} mol%"
-    if cutoff >= 1e-7:
-        return f"{from_fraction(cutoff, 'ppmv'):g} ppmv"
-    return f"{from_fraction(cutoff, 'ppbv'):g} ppbv"
 
 
 def _absolute(unit: str) -> str:
