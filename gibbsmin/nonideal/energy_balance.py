@@ -7,12 +7,12 @@ import functools
 import numpy as np
 
 from ..energy import phase_boundary
+from ..eos.phase import GasPhase
 from ..settle import Setup
 from ..solve import SolverResult
 from ..system import standard_mu0
 from ..thermo.database import SpeciesDatabase
 from .loop import _finish, _gas_amounts, solve_nonideal
-from .phase import GasPhase
 
 
 def inlet_residual_enthalpy(phase: GasPhase, inlet, P: float) -> float:

@@ -8,12 +8,12 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..energy.properties import enthalpy, state_amounts
+from ..eos.phase import GasPhase
 from ..sensitivity import Sensitivities, difference_sensitivities
 from ..settle import Setup
 from ..solve import SolverResult
 from ..thermo.database import SpeciesDatabase, default_database
 from .loop import solve_nonideal
-from .phase import GasPhase
 
 
 def nonideal_sensitivities(setup: Setup, phase: GasPhase, result: SolverResult, T: float, P: float, *,

@@ -8,9 +8,9 @@ from dataclasses import replace
 
 import numpy as np
 
+from ..eos.phase import GasPhase
 from ..eos.stability import tangent_plane_test
 from ..equilibrium import Equilibrium
-from .phase import GasPhase
 
 #: The tangent-plane test is skipped above this multiple of the highest Tc among the gas's species present
 #: above 1 ppm: no liquid-like phase of a gas mixture forms that far above its heaviest component's

@@ -7,10 +7,16 @@ from collections.abc import Mapping
 
 import numpy as np
 
+from .. import carbon
+from ..carbon import CARBON_REACTIONS, carbon_activity
 from ..case import CaseResult, ReportSpec, StageResult
 from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
-from ..thermo import default_database
+from ..errors import GibbsminError
+from ..reactions import approach_temperatures, quotients, reaction
+from ..streams import Stream
+from ..thermo import DATA_SETS, data_set, default_database
+from ..uncertainty import approach_uncertainty
 from ..units import from_kelvin, from_mol_s, from_pascal
 from ..version import __version__
 from .caution import CAUTION
@@ -211,8 +217,6 @@ def certificate_table(result: CaseResult) -> Table:
 
 def approach_table(result: CaseResult) -> Table | None:
     """Approach temperatures at each outlet: the reactions the report asks for and those a stage held."""
-    from ..reactions import approach_temperatures
-
     spec = result.case.report
     asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
@@ -241,16 +245,12 @@ def approach_table(result: CaseResult) -> Table | None:
 
 
 def _approach_uncertainty(approach) -> float | None:
-    from ..uncertainty import approach_uncertainty
-
     value = approach_uncertainty(approach)
     return value if math.isfinite(value) else None
 
 
 def kp_table(result: CaseResult) -> Table | None:
     """Kp of each reaction asked for at each outlet temperature, with its units, and the outlet's quotient."""
-    from ..reactions import quotients, reaction
-
     spec = result.case.report
     if not spec.kp:
         return None
@@ -280,8 +280,6 @@ def kp_table(result: CaseResult) -> Table | None:
 
 
 def carbon_table(result: CaseResult) -> Table | None:
-    from ..carbon import CARBON_REACTIONS, carbon_activity
-
     if not result.case.report.carbon:
         return None
     asked = any(stage.stage.uncertainty for stage in result.stages)
@@ -317,9 +315,6 @@ def carbon_table(result: CaseResult) -> Table | None:
 def _steam_to_carbon_limit(result: CaseResult, stage):
     """The S/C of a stage's inlet, the ``CarbonLimit`` at its outlet's T and P (None where undefined), and why
     a limit that should have been found was not (None when it was, or when there is none to find)."""
-    from ..carbon import carbon_limit
-    from ..errors import GibbsminError
-    from ..streams import Stream
 
     inlet = stage.inlet.mixed
     eq = stage.equilibrium
@@ -332,10 +327,10 @@ def _steam_to_carbon_limit(result: CaseResult, stage):
     # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
     dry = {name: n for name, n in inlet.items() if name != "H2O"}
     try:
-        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
-                             exclude=result.case.species.exclude, gas=eq.gas_model,
-                             kij=stage.stage.interactions, db=_stage_database(stage, db),
-                             uncertainty=stage.stage.uncertainty)
+        limit = carbon.carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
+                                    exclude=result.case.species.exclude, gas=eq.gas_model,
+                                    kij=stage.stage.interactions, db=_stage_database(stage, db),
+                                    uncertainty=stage.stage.uncertainty)
     except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
         return ratio, None, " ".join(str(exc).split())
     return ratio, limit, None
@@ -343,8 +338,6 @@ def _steam_to_carbon_limit(result: CaseResult, stage):
 
 def _stage_database(stage, fallback):
     """The database of the data set a stage's answer was computed with."""
-    from ..thermo import data_set
-
     name = stage.equilibrium.extras.get("data_set")
     return data_set(str(name)) if name else fallback
 
@@ -401,8 +394,6 @@ MAIN_SPECIES_FRACTION = 1e-3
 
 def _data_set_text(result: CaseResult) -> str:
     """The data set(s) the stages used, each with what it is."""
-    from ..thermo import DATA_SETS
-
     names = dict.fromkeys(str(s.equilibrium.extras.get("data_set", "")) for s in result.stages)
     return "; ".join(f"{n}: {DATA_SETS[n].description}" if n in DATA_SETS else n for n in names)
 

@@ -13,11 +13,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..errors import InputError
-from ..eos import (GasModel, GasProperties, IdealGasModel, InteractionTable, canonical_model_name,
-                   default_interactions, gas_model_for_species)
 from ..system import System
 from ..thermo.database import SpeciesDatabase, default_database
 from ..thermo.nasa7 import R
+from .ideal import IdealGasModel
+from .interactions import InteractionTable, default_interactions
+from .names import canonical_model_name
+from .registry import GasModel, gas_model_for_species
+from .result import GasProperties
 
 
 @dataclass(frozen=True, eq=False)
