@@ -19,6 +19,8 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
+from tqdm import tqdm
+
 from . import audit
 from .case import CASE_KEYS, FEATURES, KEY_NEEDS, read_case, settle_case
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
@@ -141,8 +143,6 @@ def _print_json(document: dict) -> None:
 
 def _progress(total: int, what: str):
     """A progress display on stderr for runs of several steps (silent when stderr is not a terminal)."""
-    from tqdm import tqdm
-
     return tqdm(total=total, desc=what, unit="step", file=sys.stderr, disable=None, leave=False)
 
 
