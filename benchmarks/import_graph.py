@@ -16,7 +16,6 @@ Edges are kept apart by where the statement sits: at module level (run on import
 from __future__ import annotations
 
 import ast
-import sys
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -139,40 +138,45 @@ def build(root: Path = ROOT) -> Graph:
 
 
 def circles(edges: dict[str, set[str]]) -> list[list[str]]:
-    """Strongly connected components with more than one module (Tarjan), each sorted, largest first."""
+    """Strongly connected components with more than one module (Tarjan's, iterative), each sorted, largest first."""
     index: dict[str, int] = {}
     low: dict[str, int] = {}
     stack: list[str] = []
     on_stack: set[str] = set()
     found: list[list[str]] = []
-    counter = [0]
-    sys.setrecursionlimit(max(10_000, sys.getrecursionlimit()))
-
-    def visit(v: str) -> None:
-        index[v] = low[v] = counter[0]
-        counter[0] += 1
-        stack.append(v)
-        on_stack.add(v)
-        for w in sorted(edges.get(v, ())):
-            if w not in index:
-                visit(w)
-                low[v] = min(low[v], low[w])
-            elif w in on_stack:
-                low[v] = min(low[v], index[w])
-        if low[v] == index[v]:
-            component = []
-            while True:
-                w = stack.pop()
-                on_stack.discard(w)
-                component.append(w)
-                if w == v:
-                    break
-            if len(component) > 1:
-                found.append(sorted(component))
-
-    for v in sorted(edges):
-        if v not in index:
-            visit(v)
+    for root in sorted(edges):
+        if root in index:
+            continue
+        index[root] = low[root] = len(index)
+        stack.append(root)
+        on_stack.add(root)
+        work = [(root, iter(sorted(edges.get(root, ()))))]
+        while work:
+            v, successors = work[-1]
+            w = next(successors, None)
+            if w is not None:
+                if w not in index:
+                    index[w] = low[w] = len(index)
+                    stack.append(w)
+                    on_stack.add(w)
+                    work.append((w, iter(sorted(edges.get(w, ())))))
+                elif w in on_stack:
+                    low[v] = min(low[v], index[w])
+                continue
+            work.pop()
+            if work:
+                parent = work[-1][0]
+                low[parent] = min(low[parent], low[v])
+            if low[v] == index[v]:
+                component = []
+                while True:
+                    w = stack.pop()
+                    on_stack.discard(w)
+                    component.append(w)
+                    if w == v:
+                        break
+                if len(component) > 1:
+                    found.append(sorted(component))
     return sorted(found, key=lambda c: (-len(c), c))
 
 
