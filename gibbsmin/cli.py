@@ -22,7 +22,7 @@ from pathlib import Path
 from tqdm import tqdm
 
 from . import audit
-from .case import CASE_KEYS, FEATURES, KEY_NEEDS, read_case, settle_case
+from .case import CASE_KEYS, read_case, settle_case
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
 from .formula import ATOMIC_WEIGHTS
 from .report.audit import audit_document, audit_report
@@ -161,9 +161,7 @@ def _ticker(bar) -> Callable[[str], None]:
 
 def _settle(args: argparse.Namespace) -> int:
     if args.keys:
-        status = {key: f"{FEATURES[need].module}: {'available' if FEATURES[need].available() else 'NOT AVAILABLE YET'}"
-                  for key, need in KEY_NEEDS.items()}
-        sys.stdout.write(_keys_text({**CASE_KEYS, "keys that need a module": status}))
+        sys.stdout.write(_keys_text(CASE_KEYS))
         return OK
     if args.case is None:
         raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")

@@ -38,9 +38,10 @@ from .errors import InputError
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
-from .settle import (Setup, check_method, checked, feed_species_set, finite_number, positive_number, setup_on,
-                     solve_fixed)
-from .solve import SolverResult
+from .settle import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
+                     positive_number, setup_on, solve_fixed)
+from .solve import CertificateBatch, SolverResult, solve
+from .system import Problem
 from .streams import Stream
 from .thermo.database import SpeciesDatabase
 from .thermo.nasa7 import R
@@ -196,6 +197,91 @@ class Prepared:
         from call to call (T in K, P in Pa); the answer is exactly what that
         function returns for the same options.
         """
+        return self._equilibrate(feed, T, P, T_feed, adiabatic, heat_input, sensitivities, uncertainty)[0]
+
+    def equilibrate_many(self, feeds: Mapping[str, object] | Sequence[Mapping[str, object]],
+                         T: float | Sequence[float] | NDArray[np.float64],
+                         P: float | Sequence[float] | NDArray[np.float64]) -> list[Equilibrium]:
+        """The equilibria of many (feed, T, P) points at fixed T and P, each warm-started from the one before.
+
+        Parameters
+        ----------
+        feeds : mapping or sequence of mappings
+            One feed for every point, or a feed per point (species to mol).
+        T, P : float or array
+            Temperatures [K] and pressures [Pa], broadcast against each other
+            and the feeds.
+
+        Returns
+        -------
+        list of Equilibrium
+            One per point, in order, each checked as ``equilibrate`` checks it.
+            Order the points along a sweep axis to profit from the warm starts;
+            an answer starts from its neighbour's, so it may differ from a
+            cold single call in the last digits (within the certificate's
+            tolerances), never in what is certified.
+        """
+        single = isinstance(feeds, (Mapping, Stream))
+        if not single and (isinstance(feeds, str) or not isinstance(feeds, Sequence) or not feeds):
+            raise InputError("feeds takes one feed mapping, or a non-empty list of them (one per point)")
+        try:
+            T_all, P_all = (np.atleast_1d(np.asarray(v, dtype=float)) for v in (T, P))
+            count = np.broadcast(T_all, P_all, np.empty(1 if single else len(feeds))).size
+        except (TypeError, ValueError):
+            sizes = [np.size(T), np.size(P), 1 if single else len(feeds)]
+            raise InputError(f"T, P and feeds give {sizes[0]}, {sizes[1]} and {sizes[2]} points: give each one value "
+                             "or the same number of values (T in K and P in Pa as numbers)") from None
+        if T_all.ndim > 1 or P_all.ndim > 1:
+            raise InputError("T and P take one number or a flat list of numbers each")
+        T_all, P_all = np.broadcast_to(T_all, (count,)), np.broadcast_to(P_all, (count,))
+        answers: list[Equilibrium] = []
+        start = None
+        for i in range(count):
+            feed = feeds if single else feeds[i if len(feeds) > 1 else 0]
+            eq, start = self._equilibrate(feed, float(T_all[i]), float(P_all[i]), start=start)
+            answers.append(eq)
+        return answers
+
+    def feed_setup(self, feed: Mapping[str, float], T_span: tuple[float, float]) -> Setup:
+        """The Setup of a feed (species to mol) on this specification's species set over ``T_span`` [K].
+
+        For a batch (``solve_batch``) unit amounts will do: they fix the species
+        set and element rows; each point brings its own element totals.
+        """
+        return self._setup(check_feed(feed, self.db), T_span)[0]
+
+    def solve_batch(self, setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64], b: NDArray[np.float64], *,
+                    chains: int = 1) -> tuple[Problem, SolverResult, CertificateBatch]:
+        """The raw, certified solves of many points of one setup at fixed T [K] and P [Pa] (element totals ``b``,
+        shape (B, elements)), in ``chains`` runs of warm-started neighbours: what a sweep stores.
+
+        Every point must hold the same elements (split a batch by element set first).  The gas model and the
+        held reactions' offsets are this specification's, as in ``equilibrate``.
+        """
+        spec = self.specification
+        if self.ln_phi is not None:
+            raise InputError("a batch iterates the gas model point by point; use gas='peng-robinson' instead of "
+                             "ln_phi held fixed")
+        problem = build_problem(setup, T, P, b=b, allow_extrapolation=spec.allow_extrapolation)
+        if self.held:
+            offsets_at = self._offsets(setup, self._complete_reactions(setup, self._species_set(setup)))
+            problem = dataclasses.replace(problem, mu0=problem.mu0 + np.array(
+                [offsets_at(float(T_i))[problem.keep] for T_i in T]))
+        phase = self._gas_phase(setup, self._species_set(setup))
+        if phase.is_ideal:
+            result, certificates = solve(problem, spec.method, chains=chains)
+        else:
+            result, certificates = nonideal.solve_batch_nonideal(problem, phase, T, P, method=spec.method,
+                                                                 chains=chains)
+        return problem, result, certificates
+
+    def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
+                     uncertainty=False, start=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
+        """The pipeline: the answer, and the warm start it offers a neighbour (its System and raw solve).
+
+        ``start`` is such a warm start; it is used only at fixed T, on the same System with the same elements
+        present.
+        """
         spec, db = self.specification, self.db
         if P is None:
             raise InputError("P is required: the pressure in Pa, e.g. P=30e5")
@@ -237,7 +323,7 @@ class Prepared:
                 enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks)
             eq = dataclasses.replace(eq, specification=text)
         else:
-            eq, problem, result = step(T, None)
+            eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)
         extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                       residual_enthalpy=residual)
         extras["data_set"] = db.data_set
@@ -260,7 +346,7 @@ class Prepared:
                 "frozen mol": dict(frozen_mol),
             })
         # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
-        return nonideal.with_stability_verdict(eq)
+        return nonideal.with_stability_verdict(eq), (_start_key(setup), result)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:
@@ -398,6 +484,11 @@ class Prepared:
                 return np.array([moved.amounts[s] for s in setup.system.names])
         return _with_uncertainty_fields(eq, point_uncertainties(
             setup, problem, result, T, data_set, amounts_at=amounts_at, offset_map=offset_map))
+
+
+def _start_key(setup: Setup) -> tuple[int, bytes]:
+    """What a warm start must share with the point it starts: the System, and which elements are present."""
+    return id(setup.system), (setup.b > 1e-14 * max(float(setup.b.max()), 1e-300)).tobytes()
 
 
 def _with_uncertainty_fields(eq: Equilibrium, u: Uncertainties) -> Equilibrium:

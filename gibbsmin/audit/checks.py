@@ -21,8 +21,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..case.features import FEATURES
+from ..api import prepared_for
+from ..carbon import carbon_activity
+from ..energy import mixture_enthalpy
+from ..nonideal import residual_enthalpy_of_gas
+from ..reactions import approach_temperatures, gas_state, independent_reactions, reaction
+from ..uncertainty import approach_uncertainty
 from ..equilibrium import Equilibrium
+from ..prepared import Specification
 from ..errors import GibbsminError, UnknownSpeciesError
 from ..thermo import SpeciesDatabase, choose_database
 from .plant import Limit, Plant, UnitSpec
@@ -202,23 +208,16 @@ def _component_check(where: str, inlet, outlet, limit: Limit) -> Check:
 
 def _enthalpy(stream: TableStream, T: float | None = None, gas: str = "ideal") -> float:
     """Enthalpy flow of a stream [W]: ideal-gas enthalpies, plus the gas's residual enthalpy under a cubic."""
-    from ..energy import mixture_enthalpy
-
     T = stream.T if T is None else T
     db = stream.stream.database
     H = mixture_enthalpy(stream.flows, T, stream.P, db=db)
     if gas != "ideal":
-        from ..nonideal import residual_enthalpy_of_gas
-
         H += residual_enthalpy_of_gas(_gas(stream.flows, db), T, stream.P, gas, db=db)
     return H
 
 
 def _energy_check(where: str, spec: UnitSpec, inlets: Sequence[TableStream], outlets: Sequence[TableStream],
                   limit: Limit) -> Check:
-    if not FEATURES["energy"].available():
-        return Check(where, "energy balance", None, "K", "n/a",
-                     f"needs {FEATURES['energy'].module}, which this version of gibbsmin does not have yet")
     if spec.duty is None:
         return Check(where, "energy balance", None, "K", "n/a", "no duty stated (give duty = '... MW' or "
                      "adiabatic = true)")
@@ -261,8 +260,6 @@ def _dry_percent(flows: Mapping[str, float]) -> dict[str, float]:
 
 def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: TableStream,
                            db: SpeciesDatabase) -> Equilibrium:
-    from ..api import equilibrate
-
     # By default the species the unit's own streams hold: a shift converter's reference does not grow
     # hydrocarbons its streams never show.
     species = spec.species if spec.species is not None else tuple(
@@ -271,17 +268,18 @@ def _equilibrium_reference(spec: UnitSpec, inlet: Mapping[str, float], outlet: T
     # A frozen species the inlet lacks stays absent: leave it out rather than hold it at zero.
     frozen = [s for s in spec.frozen if inlet.get(s, 0.0) > 0.0]
     species = tuple(s for s in species if s not in spec.frozen or s in frozen)
-    if spec.approach:
-        from ..api import equilibrate_with_approach
+    return prepared_for(_reference_specification(spec, species, frozen), db).equilibrate(inlet, outlet.T, outlet.P)
 
-        return equilibrate_with_approach(inlet, outlet.T, outlet.P, dict(spec.approach),
-                                         frozen=frozen or None, species=species, gas=spec.gas, db=db)
-    return equilibrate(inlet, outlet.T, outlet.P, species=species, inert=frozen, gas=spec.gas, db=db)
+
+def _reference_specification(spec: UnitSpec, species: Sequence[str], frozen: Sequence[str]) -> Specification:
+    """What a unit's equilibrium reference computes, as the one specification every front door builds."""
+    if spec.approach:
+        return Specification.of(species=species, approach=dict(spec.approach), frozen=list(frozen) or None,
+                                gas=spec.gas, restricted=True)
+    return Specification.of(species=species, inert=frozen, gas=spec.gas)
 
 
 def _reactions_to_check(spec: UnitSpec, outlet_gas: Mapping[str, float], db: SpeciesDatabase):
-    from ..reactions import independent_reactions, reaction
-
     if spec.reactions:
         return [reaction(r, db=db) for r in spec.reactions]
     total = sum(outlet_gas.values())
@@ -292,8 +290,6 @@ def _reactions_to_check(spec: UnitSpec, outlet_gas: Mapping[str, float], db: Spe
 
 def _approach_checks(where: str, spec: UnitSpec, plant: Plant, inlets: Sequence[TableStream], outlet: TableStream,
                      db: SpeciesDatabase) -> tuple[list[Check], list[ReactionFinding]]:
-    from ..reactions import approach_temperatures, gas_state
-
     inlet_gas = _gas(summed(inlets), db)
     outlet_gas = _gas(outlet.flows, db)
     gas = None if spec.gas == "ideal" else spec.gas
@@ -343,8 +339,6 @@ def _approach_checks(where: str, spec: UnitSpec, plant: Plant, inlets: Sequence[
 
 def data_uncertainty(approach) -> float | None:
     """The approach's standard uncertainty from the formation data, [K]; None where the data state none."""
-    from ..uncertainty import approach_uncertainty
-
     if any(r.hf298_uncertainty is None for r in approach.reaction.records):
         return None
     return approach_uncertainty(approach)
@@ -356,15 +350,11 @@ def uncertainty_text(u: float) -> str:
 
 
 def _same_reaction(text: str, rx, db: SpeciesDatabase) -> bool:
-    from ..reactions import reaction
-
     other = reaction(text, db=db)
     return other.stoichiometry == rx.stoichiometry
 
 
 def _carbon_check(where: str, outlet: TableStream, limit: Limit, db: SpeciesDatabase) -> Check:
-    from ..carbon import carbon_activity
-
     gas = _gas(outlet.flows, db)
     if not any("C" in db[s].elements for s in gas):
         return Check(where, "carbon activity", None, "-", "n/a", "no carbon in the outlet")
@@ -412,10 +402,9 @@ def audit_unit(plant: Plant, spec: UnitSpec, db: SpeciesDatabase) -> UnitAudit:
         outlet = outlets[0]
         check, eq, stated = _equilibrium_check(where, spec, plant, inlets, outlet, db)
         checks.append(check)
-        if FEATURES["reactions"].available():
-            approach, findings = _approach_checks(where, spec, plant, inlets, outlet, db)
-            checks += approach
-        if spec.carbon and FEATURES["carbon"].available():
+        approach, findings = _approach_checks(where, spec, plant, inlets, outlet, db)
+        checks += approach
+        if spec.carbon:
             checks.append(_carbon_check(where, outlet, plant.limits["carbon_activity"], db))
     return UnitAudit(spec, tuple(checks), elements, tuple(findings), eq, stated)
 

@@ -11,12 +11,14 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.optimize
 
+from ..carbon import CarbonActivity, CarbonLimit, carbon_activity, carbon_limit
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
-from ..api import equilibrate
+from ..api import equilibrate, prepared_for
+from ..prepared import Specification
 from ..thermo import SpeciesDatabase, choose_database, default_database
+from ..streams import Stream
 from ..units import from_mol_s
-from .features import FEATURES
 from .scope import LIQUID_WATER, StageScope, possible_condensates, stage_scope
 from .spec import Case, CurveSpec, Stage
 from .toml import CaseError
@@ -56,6 +58,7 @@ class StageResult:
     inlet: Inlet
     equilibrium: Equilibrium
     scope: StageScope | None = None
+    carbon: StageCarbon | None = None
 
     @property
     def outlet(self) -> dict[str, float]:
@@ -69,6 +72,50 @@ class StageResult:
         """Heat added to the stage, [W], when the energy balance was computed."""
         duty = self.equilibrium.extras.get("duty_W")
         return None if duty is None else float(duty)
+
+
+@dataclass(frozen=True)
+class StageCarbon:
+    """The carbon check of a stage (``[report] carbon``): its outlet against graphite, and the S/C limit of its
+    inlet at the outlet's T and P.
+
+    Attributes
+    ----------
+    activity : CarbonActivity
+        The outlet's carbon activity by reaction and its verdict.
+    steam_to_carbon : float or None
+        S/C of the inlet; None where the inlet has no carbon the ratio counts.
+    limit : CarbonLimit or None
+        The lowest S/C without graphite; None where there is no ratio or the search failed.
+    failure : str or None
+        Why a limit that should have been found was not.
+    """
+
+    activity: CarbonActivity
+    steam_to_carbon: float | None
+    limit: CarbonLimit | None
+    failure: str | None
+
+
+def stage_carbon(case: Case, stage: Stage, inlet: Inlet, eq: Equilibrium, db: SpeciesDatabase) -> StageCarbon:
+    """The carbon check of one stage (the limit is searched from the inlet's gas without its water, so that it
+    may lie below the S/C fed)."""
+    basis = case.feeds[0].stream.carbon_basis
+    mixed = inlet.mixed
+    stream = Stream(tuple(mixed), tuple(mixed.values()), eq.T, eq.P, carbon_basis=basis,
+                    database=case.feeds[0].stream.database)
+    activity = carbon_activity(eq)
+    if stream.carbon_flow() == 0.0:
+        return StageCarbon(activity, None, None, None)
+    ratio = stream.steam_to_carbon()
+    dry = {name: n for name, n in mixed.items() if name != "H2O"}
+    try:
+        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=case.species.only,
+                             exclude=case.species.exclude, gas=eq.gas_model, kij=stage.interactions, db=db,
+                             uncertainty=stage.uncertainty)
+    except (GibbsminError, ValueError) as exc:  # shown in the report's notes, not dropped
+        return StageCarbon(activity, ratio, None, " ".join(str(exc).split()))
+    return StageCarbon(activity, ratio, limit, None)
 
 
 @dataclass(frozen=True)
@@ -129,7 +176,8 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
             raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
-        result = StageResult(stage, inlet, eq, scope)
+        carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
+        result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
         inlet = Inlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
     curve = None
@@ -157,27 +205,27 @@ def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
                         f"{stage.gas!r}; give the stage an outlet T, or remove uncertainty")
 
 
+def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specification:
+    """What a stage computes, as the one specification every front door builds (``gibbsmin.prepare``)."""
+    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    if stage.approach:
+        return Specification.of(species=scope.species, exclude=scope.exclude, approach=dict(stage.approach),
+                                frozen=list(scope.held) or None, method=stage.method,
+                                allow_extrapolation=case.species.allow_extrapolation, restricted=True, **cubic)
+    return Specification.of(species=scope.species, exclude=scope.exclude, inert=scope.held, method=stage.method,
+                            allow_extrapolation=case.species.allow_extrapolation, **cubic)
+
+
 def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
     if not stage.reacts:
         _check_heat_direction(stage, inlet)
-    energy = {}
-    if FEATURES["energy"].available() and inlet.temperatures_known:
-        heat = stage.heat_input if stage.duty is None else stage.duty
-        energy = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
-                  "heat_input": heat}
-    if stage.gas != "ideal":
-        energy["gas"] = stage.gas  # the reader refuses a non-ideal model where equilibrate cannot take one
-        energy["kij"] = stage.interactions
-    feed = dict(inlet.streams) if "T_feed" in energy else inlet.mixed
-    common = {"species": scope.species, "exclude": scope.exclude, "method": stage.method, "db": db,
-              "allow_extrapolation": case.species.allow_extrapolation, "uncertainty": stage.uncertainty, **energy}
-    if stage.approach:
-        from ..api import equilibrate_with_approach
-
-        eq = equilibrate_with_approach(feed, stage.T, stage.P, dict(stage.approach), frozen=list(scope.held) or None,
-                                       **common)
-    else:
-        eq = equilibrate(feed, stage.T, stage.P, inert=scope.held, **common)
+    balance = {}
+    if inlet.temperatures_known:
+        balance = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
+                   "heat_input": stage.heat_input if stage.duty is None else stage.duty}
+    feed = dict(inlet.streams) if balance else inlet.mixed
+    prepared = prepared_for(stage_specification(case, stage, scope), db)
+    eq = prepared.equilibrate(feed, stage.T, stage.P, uncertainty=stage.uncertainty, **balance)
     if stage.type in ("heater", "cooler"):
         _check_no_condensate(case, stage, scope, eq, db)
     extras = {**eq.extras, "stage": scope.to_dict()}
@@ -269,12 +317,11 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
     # The curve takes the first stage's gas model, as its operating lines' enthalpies do.
     model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.interactions}
     temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
-    values = []
     species = case.species
-    for T in temperatures:
-        eq = equilibrate(feed, float(T), P, species=species.only, exclude=species.exclude, inert=species.frozen,
-                         db=db, allow_extrapolation=species.allow_extrapolation, **model)
-        values.append(_curve_value(spec, eq.amounts, feed, db))
+    # One specification for the whole curve, each point warm-started from the one before.
+    prepared = prepared_for(Specification.of(species=species.only, exclude=species.exclude, inert=species.frozen,
+                                             allow_extrapolation=species.allow_extrapolation, **model), db)
+    values = [_curve_value(spec, eq.amounts, feed, db) for eq in prepared.equilibrate_many(feed, temperatures, P)]
     lines = []
     for k, result in enumerate(results):
         if not result.stage.reacts:

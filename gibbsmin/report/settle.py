@@ -7,14 +7,10 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .. import carbon
-from ..carbon import CARBON_REACTIONS, carbon_activity
+from ..carbon import CARBON_REACTIONS
 from ..case import CaseResult, ReportSpec, StageResult
-from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
-from ..errors import GibbsminError
 from ..reactions import approach_temperatures, quotients, reaction
-from ..streams import Stream
 from ..thermo import DATA_SETS, data_set, default_database
 from ..uncertainty import approach_uncertainty
 from ..units import from_kelvin, from_mol_s, from_pascal
@@ -146,9 +142,7 @@ def stages_table(result: CaseResult) -> Table:
                      None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
     notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
              f"to the outlet; {_enthalpies_text(result)}"]
-    if not FEATURES["energy"].available():
-        notes = ["duty: not computed (the energy balance is not available in this version)"]
-    elif not result.case.feed_temperatures_known:
+    if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
@@ -286,10 +280,9 @@ def carbon_table(result: CaseResult) -> Table | None:
     rows = []
     failures = []
     for stage in result.stages:
-        eq = stage.equilibrium
-        activity = carbon_activity(eq)
+        activity, feed_ratio, limit, failure = (stage.carbon.activity, stage.carbon.steam_to_carbon,
+                                                stage.carbon.limit, stage.carbon.failure)
         verdict = activity.status  # "fail" whenever the outlet holds graphite
-        feed_ratio, limit, failure = _steam_to_carbon_limit(result, stage)
         if failure:
             failures.append(f"{stage.stage.name}: min S/C not found ({failure})")
         found = limit is not None and limit.status == "found"
@@ -310,30 +303,6 @@ def carbon_table(result: CaseResult) -> Table | None:
                   *([Column("u(min S/C)", "uncertainty")] if asked else []),
                   Column("carbon-free", "verdict"), Column("verdict", "text")), tuple(rows),
                  (*notes, *failures), key="carbon")
-
-
-def _steam_to_carbon_limit(result: CaseResult, stage):
-    """The S/C of a stage's inlet, the ``CarbonLimit`` at its outlet's T and P (None where undefined), and why
-    a limit that should have been found was not (None when it was, or when there is none to find)."""
-
-    inlet = stage.inlet.mixed
-    eq = stage.equilibrium
-    basis = result.case.feeds[0].stream.carbon_basis
-    db = result.case.feeds[0].stream.database
-    stream = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis, database=db)
-    if stream.carbon_flow() == 0.0:
-        return None, None, None  # no carbon the ratio counts: neither a ratio nor a limit
-    ratio = stream.steam_to_carbon()
-    # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
-    dry = {name: n for name, n in inlet.items() if name != "H2O"}
-    try:
-        limit = carbon.carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
-                                    exclude=result.case.species.exclude, gas=eq.gas_model,
-                                    kij=stage.stage.interactions, db=_stage_database(stage, db),
-                                    uncertainty=stage.stage.uncertainty)
-    except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
-        return ratio, None, " ".join(str(exc).split())
-    return ratio, limit, None
 
 
 def _stage_database(stage, fallback):
@@ -446,9 +415,9 @@ def settle_report(result: CaseResult) -> Report:
     tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
               *(stage_table(s, spec) for s in result.stages)]
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
     tables += [t for t in optional if t is not None]
     tables.append(certificate_table(result))
@@ -498,9 +467,9 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
 def _table_documents(result: CaseResult) -> dict[str, list[dict[str, object]]]:
     """The approach, Kp and carbon tables as lists of rows keyed by column heading (NaN written as None)."""
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
 
     def plain(value):

@@ -7,13 +7,12 @@ else, so a chunk solved twice gives the same table.
 
 from __future__ import annotations
 
-import functools
-
 import numpy as np
 import pandas as pd
 
-from ..settle import Setup, build_problem, prepare
-from ..solve import solve
+from ..api import prepared_for
+from ..prepared import Prepared
+from ..settle import Setup
 from ..thermo.datasets import data_set
 from .grid import SweepSpec
 
@@ -22,30 +21,11 @@ SUMMARY_COLUMNS = ("point", "T_K", "P_Pa", "certified", "solver", "iterations",
                    "element_balance", "stationarity", "condensed_margin")
 
 
-@functools.lru_cache(maxsize=8)
-def _gas_phase(spec_json: str):
-    """The sweep's cubic gas model on its species set (None for the ideal gas)."""
-    spec = SweepSpec.from_json(spec_json)
-    if spec.gas == "ideal":
-        return None
-    from ..nonideal import gas_phase
-
-    kij = spec.kij
-    if spec.kij_pairs:
-        from ..eos import InteractionTable, default_interactions
-
-        base = default_interactions() if spec.kij == "shipped" else InteractionTable([])
-        kij = base.updated({(a, b): v for a, b, v in spec.kij_pairs}, model=spec.gas, source="sweep")
-    return gas_phase(_setup(spec_json).system, spec.gas, kij=kij)
-
-
-@functools.lru_cache(maxsize=8)
-def _setup(spec_json: str) -> Setup:
-    spec = SweepSpec.from_json(spec_json)
-    names = spec.feed_species()
-    # Unit amounts only fix the species set and element rows; each point brings its own totals.
-    return prepare({n: 1.0 for n in names}, species=spec.species, exclude=spec.exclude, inert=spec.inert,
-                   T_span=spec.T_span(), db=data_set(spec.data))
+def prepared_sweep(spec: SweepSpec) -> tuple[Prepared, Setup]:
+    """The sweep's prepared specification and the setup of its feed species (unit amounts: they fix the species
+    set and element rows; each point brings its own totals)."""
+    prepared = prepared_for(spec.specification(), data_set(spec.data))
+    return prepared, prepared.feed_setup({n: 1.0 for n in spec.feed_species()}, spec.T_span())
 
 
 def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
@@ -57,7 +37,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     solver certifies keeps ``certified = False``.  No point is dropped.
     """
     db = data_set(spec.data)
-    setup = _setup(spec.to_json())
+    prepared, setup = prepared_sweep(spec)
     system = setup.system
     T, P, feed, shown = spec.conditions(first, last, db)
     feed_matrix = system.element_matrix(db.resolve(spec.feed_species(db)))
@@ -71,19 +51,11 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     iterations = np.zeros(B, dtype=int)
     solver = np.empty(B, dtype="<U16")
     run = spec.shape[-1]
-    phase = _gas_phase(spec.to_json())
     if spec.uncertainty:
         u_y, u_condensed = np.full((B, n_gas), np.nan), np.full((B, len(system.names) - n_gas), np.nan)
     for group in _element_groups(b):
-        problem = build_problem(setup, T[group], P[group], b=b[group])
-        chains = max(1, group.size // run)
-        if phase is None:
-            result, certificates = solve(problem, spec.method, chains=chains)
-        else:
-            from ..nonideal import solve_batch_nonideal
-
-            result, certificates = solve_batch_nonideal(problem, phase, T[group], P[group], method=spec.method,
-                                                        chains=chains)
+        problem, result, certificates = prepared.solve_batch(setup, T[group], P[group], b[group],
+                                                             chains=max(1, group.size // run))
         keep = problem.keep
         gas_keep = keep[keep < n_gas]
         with np.errstate(divide="ignore", invalid="ignore"):  # NaN where the gas is absent (all liquid water)

@@ -18,7 +18,9 @@ from dataclasses import dataclass, field
 import numpy as np
 from numpy.typing import NDArray
 
+from ..eos import InteractionTable, default_interactions
 from ..errors import InputError
+from ..prepared import Specification
 from ..streams import CARBON_BASES, counted_carbon
 from ..thermo.database import SpeciesDatabase, default_database
 from ..thermo.datasets import DEFAULT_DATA, check_data_name
@@ -156,6 +158,15 @@ class SweepSpec:
 
     def axis(self, name: str) -> Axis | None:
         return next((a for a in self.axes if a.name == name), None)
+
+    def specification(self) -> Specification:
+        """What every point computes, as the one specification every front door builds (``gibbsmin.prepare``)."""
+        kij: object = self.kij
+        if self.kij_pairs:
+            base = default_interactions() if self.kij == "shipped" else InteractionTable([])
+            kij = base.updated({(a, b): v for a, b, v in self.kij_pairs}, model=self.gas, source="sweep")
+        return Specification.of(species=self.species, exclude=self.exclude, inert=self.inert, method=self.method,
+                                gas=self.gas, kij=kij if self.gas != "ideal" else "shipped", data=self.data)
 
     def T_span(self) -> tuple[float, float]:
         axis = self.axis("T")
