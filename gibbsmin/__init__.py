@@ -26,5 +26,4 @@ from .prepared import prepare as prepare
 from .solve.certificate import Certificate as Certificate
 from .thermo import default_database as default_database
 from .thermo import formation_properties as formation_properties
-
-__version__ = "0.1.0"
+from .version import __version__ as __version__

@@ -42,6 +42,7 @@ from ..case.values import (
     read_text,
 )
 from ..errors import InputError, UnknownSpeciesError
+from ..reactions import reaction
 from ..thermo import DATA_SETS, SpeciesDatabase, choose_database
 from ..units import NORMAL_DIN_1343
 from .table import ROW_LABELS, StreamTable, read_stream_table
@@ -328,8 +329,6 @@ def _read_unit(section: Section, unit_id: str, table: StreamTable, db: SpeciesDa
 
 
 def _check_reactions(section: Section, key: str, texts: tuple[str, ...]) -> None:
-    from ..reactions import reaction
-
     for text in texts:
         try:
             reaction(text)

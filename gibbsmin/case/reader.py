@@ -9,6 +9,7 @@ from collections.abc import Callable, Mapping
 from pathlib import Path
 
 from ..errors import InputError, UnknownSpeciesError
+from ..reactions import reaction
 from ..streams import CARBON_BASES, Stream
 from ..thermo import DATA_SETS, SpeciesDatabase, default_database
 from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal, to_fraction
@@ -393,8 +394,6 @@ def read_kij_value(value: object) -> float:
 
 def _check_reaction(section: Section, key: str, text: str) -> None:
     """A reaction named or written in the case must be one the reactions module can read."""
-    from ..reactions import reaction
-
     try:
         reaction(text)
     except (InputError, UnknownSpeciesError) as exc:

@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
+from ..eos import InteractionTable, default_interactions
 from ..streams import Stream
 
 
@@ -116,7 +117,6 @@ class Stage:
         """What the engine's ``kij=`` takes for this stage: the choice, or the table with the own pairs."""
         if not self.kij_pairs:
             return self.kij
-        from ..eos import InteractionTable, default_interactions
 
         base = default_interactions() if self.kij == "shipped" else InteractionTable([])
         return base.updated(dict(self.kij_pairs), model=self.gas, source="case file")  # "given table" in notes

@@ -30,7 +30,7 @@ one-component feed) make H_eq(T) jump: every H inside the jump belongs to the
 boundary temperature, and only the split between the phases changes.  Both
 cases are solved exactly by Newton on the optimality conditions with the union
 of the two phase sets present and T as an unknown closed by the energy balance
-(``sensitivity.settle_on_phase_set``); its answer is accepted when every
+(``phase_boundary.solve_on_phase_boundary``); its answer is accepted when every
 condensed amount is non-negative and it certifies.
 
 A condensed species cannot form outside its fitted range, so H_eq(T) also

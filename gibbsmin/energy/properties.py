@@ -26,7 +26,7 @@ ResidualEnthalpy = Callable[[float, float, NDArray[np.float64]], float]
 FixedTStep = Callable[[float, "SolverResult | None"], tuple[Equilibrium, Problem, SolverResult]]
 
 #: The solve with T unknown on the union of two phase sets, with the arguments of
-#: ``sensitivity.settle_on_phase_set`` and its returns (None where that phase set is not the answer).
+#: ``phase_boundary.solve_on_phase_boundary`` and its returns (None where that phase set is not the answer).
 PhaseSetStep = Callable[..., "tuple[Equilibrium, Problem, SolverResult] | None"]
 
 

@@ -8,13 +8,13 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import NDArray
 
+from ..eos.phase import GasPhase
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError
 from ..settle import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from ..solve import CertificateBatch, SolverResult, certify, solve
 from ..system import Problem
 from ..thermo.nasa7 import R
-from .phase import GasPhase
 
 
 #: Above this total mole fraction of species treated as ideal for lack of critical constants, warn.

@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..eos import canonical_model_name
+from ..eos.phase import ln_phi_of_gas
 from ..equilibrium import Equilibrium
 from ..errors import InputError
 from ..streams import Stream
@@ -106,8 +107,6 @@ def gas_state(
             f"composition must be a mapping of species to amount, an Equilibrium or a Stream, not {type(composition).__name__}"
         )
     if gas is not None:
-        from ..nonideal import ln_phi_of_gas  # the equilibrium machinery is only needed for a non-ideal gas
-
         ln_phi = ln_phi_of_gas({s: math.exp(v) for s, v in ln_y.items()}, T, P, gas, kij=kij, db=db)
     return GasState(T, P, ln_y, _checked_ln_phi(ln_phi, db))
 

@@ -7,14 +7,18 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .. import __version__
+from ..carbon import CARBON_REACTIONS
 from ..case import CaseResult, ReportSpec, StageResult
 from ..equilibrium import Equilibrium
-from ..thermo import database_holding, default_database
-from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
+from ..reactions import approach_temperatures, quotients, reaction
+from ..thermo import DATA_SETS, data_set, database_holding, default_database
+from ..uncertainty import approach_uncertainty
+from ..units import from_kelvin, from_mol_s, from_pascal
+from ..version import __version__
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
 from .feeds import flow_text, meets_steam, mixed_steam_to_carbon, steam_to_carbon_text
+from .numbers import cutoff_text
 from .stream_table import stream_table
 
 
@@ -37,14 +41,6 @@ def pressure_text(P: float, unit: str) -> str:
 def flow_in(species: str, mol_s: float, unit: str) -> float:
     """A species flow [mol/s] in ``unit`` (molar, normal-volume or mass)."""
     return from_mol_s(mol_s, unit, molar_mass=database_holding([species], default_database())[species].molar_mass)
-
-
-def cutoff_text(cutoff: float) -> str:
-    if cutoff >= 1e-4:
-        return f"{from_fraction(cutoff, 'mol%'):g} mol%"
-    if cutoff >= 1e-7:
-        return f"{from_fraction(cutoff, 'ppmv'):g} ppmv"
-    return f"{from_fraction(cutoff, 'ppbv'):g} ppbv"
 
 
 def _absolute(unit: str) -> str:
@@ -215,8 +211,6 @@ def certificate_table(result: CaseResult) -> Table:
 
 def approach_table(result: CaseResult) -> Table | None:
     """Approach temperatures at each outlet: the reactions the report asks for and those a stage held."""
-    from ..reactions import approach_temperatures
-
     spec = result.case.report
     asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
@@ -245,16 +239,12 @@ def approach_table(result: CaseResult) -> Table | None:
 
 
 def _approach_uncertainty(approach) -> float | None:
-    from ..uncertainty import approach_uncertainty
-
     value = approach_uncertainty(approach)
     return value if math.isfinite(value) else None
 
 
 def kp_table(result: CaseResult) -> Table | None:
     """Kp of each reaction asked for at each outlet temperature, with its units, and the outlet's quotient."""
-    from ..reactions import quotients, reaction
-
     spec = result.case.report
     if not spec.kp:
         return None
@@ -284,8 +274,6 @@ def kp_table(result: CaseResult) -> Table | None:
 
 
 def carbon_table(result: CaseResult) -> Table | None:
-    from ..carbon import CARBON_REACTIONS
-
     if not result.case.report.carbon:
         return None
     asked = any(stage.stage.uncertainty for stage in result.stages)
@@ -319,8 +307,6 @@ def carbon_table(result: CaseResult) -> Table | None:
 
 def _stage_database(stage, fallback):
     """The database of the data set a stage's answer was computed with."""
-    from ..thermo import data_set
-
     name = stage.equilibrium.extras.get("data_set")
     return data_set(str(name)) if name else fallback
 
@@ -377,8 +363,6 @@ MAIN_SPECIES_FRACTION = 1e-3
 
 def _data_set_text(result: CaseResult) -> str:
     """The data set(s) the stages used, each with what it is."""
-    from ..thermo import DATA_SETS
-
     names = dict.fromkeys(str(s.equilibrium.extras.get("data_set", "")) for s in result.stages)
     return "; ".join(f"{n}: {DATA_SETS[n].description}" if n in DATA_SETS else n for n in names)
 

@@ -21,6 +21,7 @@ from ..streams import Stream
 from ..thermo import SpeciesDatabase, database_holding
 from ..units import ReferenceConditions, from_kelvin
 from .document import Column, Table
+from .numbers import cutoff_text
 
 #: The flow unit of the species rows and the total, as the trade's stream tables give it.
 _FLOW = "kmol/h"
@@ -153,13 +154,7 @@ def stream_table(result: CaseResult) -> Table:
         notes.append(f"{', '.join(condensed)}: condensed, in the total flows (Nm3 counted as ideal gas, as the "
                      "trade states it) but not in the gas flows or the gas mol%")
     if hidden:
-        why = "not listed in [report] show" if spec.show else f"below {_cutoff_text(spec.cutoff)} in every stream"
+        why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)} in every stream"
         notes.append(f"({hidden} gas species {why} not shown; the totals include them)")
     table_columns = (Column("item", "text"), Column("unit", "text"), *(Column(c.title, "number") for c in columns))
     return Table("Stream table", table_columns, tuple(rows), tuple(notes), key="streams", row_styles=tuple(styles))
-
-
-def _cutoff_text(cutoff: float) -> str:
-    from .settle import cutoff_text
-
-    return cutoff_text(cutoff)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import difflib
 import functools
 import os
 import tomllib
@@ -146,11 +147,8 @@ class SpeciesDatabase:
             found.append(record)
         return found
 
-
     def close_matches(self, text: str, n: int = 4) -> list[str]:
         """Species whose name or an alias is spelled close to ``text`` (any case), as "NH3 (ammonia)" or "NH3"."""
-        import difflib
-
         spellings: dict[str, str] = {}
         for record in self:
             spellings.setdefault(record.name.casefold(), record.name)
