@@ -27,12 +27,12 @@ ROOT = Path(__file__).resolve().parents[1] / PACKAGE
 LAYERS: dict[str, int] = {
     "gibbsmin.errors": 0, "gibbsmin.formula": 0, "gibbsmin.compiled": 0, "gibbsmin.thermo": 0,
     "gibbsmin.units": 0, "gibbsmin.version": 0,
-    "gibbsmin.eos": 1, "gibbsmin.system": 1, "gibbsmin.solve": 1,
+    "gibbsmin.eos": 1, "gibbsmin.system": 1, "gibbsmin.solve": 1, "gibbsmin.streams": 1,
     "gibbsmin.equilibrium": 2, "gibbsmin.settle": 2, "gibbsmin.reactions": 2,
     "gibbsmin.restricted": 3, "gibbsmin.sensitivity": 3, "gibbsmin.energy": 3, "gibbsmin.nonideal": 3,
     "gibbsmin.uncertainty": 3,
     "gibbsmin.prepared": 4, "gibbsmin.api": 4,
-    "gibbsmin.carbon": 5, "gibbsmin.streams": 5, "gibbsmin.audit": 5, "gibbsmin.case": 5,
+    "gibbsmin.carbon": 5, "gibbsmin.audit": 5, "gibbsmin.case": 5,
     "gibbsmin.sweep": 5, "gibbsmin.report": 5,
     "gibbsmin.cli": 6,
     "gibbsmin": 7,  # the package's own __init__: the public names, above everything

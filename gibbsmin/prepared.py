@@ -44,6 +44,7 @@ from .solve import CertificateBatch, SolverResult, solve
 from .system import Problem
 from .streams import Stream
 from .thermo.database import SpeciesDatabase
+from .thermo.datasets import choose_database
 from .thermo.nasa7 import R
 from .uncertainty import Uncertainties, energy_balance_uncertainty, point_uncertainties
 
@@ -517,8 +518,6 @@ def prepare(*, species: Sequence[str] | None = None, exclude: Sequence[str] = ()
     >>> round(eq.mole_fractions["H2"], 3) > 0.4
     True
     """
-    from .thermo.datasets import choose_database
-
     restricted = bool(approach) or frozen is not None or bool(reactions) or ln_phi is not None
     specification = Specification.of(
         species=species, exclude=exclude, inert=inert, frozen=frozen, approach=approach, reactions=reactions,

@@ -42,7 +42,8 @@ from numpy.typing import NDArray
 from .settle import Setup
 from .solve import SolverResult
 from .system import Problem
-from .thermo.database import SpeciesDatabase, default_database
+from .thermo.database import SpeciesDatabase
+from .thermo.datasets import default_database
 from .thermo.nasa7 import R
 
 #: Phases whose element columns are dependent to this relative precision fix T (see ``_fixed_T_system``).

@@ -23,7 +23,8 @@ from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .compiled import compiled
 from .solve import SOLVERS, SolverResult, solve
 from .system import P_REF, Problem, System, reduce, select_species
-from .thermo.database import SpeciesDatabase, SpeciesRecord, default_database
+from .thermo.database import SpeciesDatabase, SpeciesRecord
+from .thermo.datasets import default_database
 from .thermo.nasa7 import GIBBS, polynomials
 from .thermo.datasets import choose_database
 

@@ -10,7 +10,8 @@ import numpy as np
 
 from ..equilibrium import Equilibrium
 from ..reactions import Composition, gas_state, reaction
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 
 
 #: The carbon-depositing reactions a gas is judged by.

@@ -18,7 +18,8 @@ import scipy.optimize
 from ..errors import InputError
 from ..settle import check_feed, check_method
 from ..streams import Stream
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..units import to_kelvin, to_pascal
 from .scan import GasOnlyEquilibria
 

@@ -12,6 +12,8 @@ import numpy as np
 import scipy.optimize
 
 from ..carbon import CarbonActivity, CarbonLimit, carbon_activity, carbon_limit
+from ..energy import mixture_enthalpy
+from ..eos.phase import residual_enthalpy_of_gas
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
 from ..api import equilibrate, prepared_for
@@ -274,14 +276,10 @@ def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatab
               kij="shipped") -> float:
     """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter; with a cubic gas
     model its gas's residual enthalpy is included."""
-    from ..energy import mixture_enthalpy
-
     total = sum(amounts.values())
     kept = {s: n for s, n in amounts.items() if n > _NEGLIGIBLE * total}
     H = mixture_enthalpy(kept, T, P, db=db)
     if gas != "ideal":
-        from ..nonideal import residual_enthalpy_of_gas
-
         H += residual_enthalpy_of_gas({s: n for s, n in kept.items() if db[s].is_gas}, T, P, gas, kij=kij, db=db)
     return H
 

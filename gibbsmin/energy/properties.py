@@ -13,7 +13,8 @@ from ..errors import TemperatureRangeError
 from ..settle import Setup, positive_number, check_feed
 from ..solve import SolverResult
 from ..system import P_REF, Problem
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..compiled import compiled
 from ..thermo.nasa7 import ENTHALPY, ENTROPY, Nasa7Table, R, polynomials
 

@@ -20,7 +20,8 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..errors import DataError, InputError
-from ..thermo.database import default_database, species_directory
+from ..thermo.database import species_directory
+from ..thermo.datasets import default_database
 from .names import GAS_MODELS, canonical_model_name
 
 FILE_NAME = "interactions.toml"

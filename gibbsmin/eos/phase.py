@@ -14,7 +14,8 @@ from numpy.typing import NDArray
 
 from ..errors import InputError
 from ..system import System
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..thermo.nasa7 import R
 from .ideal import IdealGasModel
 from .interactions import InteractionTable, default_interactions

@@ -8,7 +8,8 @@ from typing import Protocol
 from numpy.typing import ArrayLike, NDArray
 
 from ..errors import InputError
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from .cubic import CubicModel
 from .families import PENG_ROBINSON, SOAVE_REDLICH_KWONG, CubicFamily
 from .ideal import IdealGasModel

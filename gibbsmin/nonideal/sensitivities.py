@@ -12,7 +12,8 @@ from ..eos.phase import GasPhase
 from ..sensitivity import Sensitivities, difference_sensitivities
 from ..settle import Setup
 from ..solve import SolverResult
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from .loop import solve_nonideal
 
 

@@ -15,7 +15,8 @@ from ..equilibrium import Equilibrium
 from ..errors import InputError
 from ..streams import Stream
 from ..system import P_REF
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..units import to_kelvin, to_pascal
 
 #: What a quotient can be taken of: species to amount (with T and P given), an Equilibrium or a Stream.

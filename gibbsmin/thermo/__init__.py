@@ -3,7 +3,7 @@
 from .database import CriticalConstants as CriticalConstants
 from .database import SpeciesDatabase as SpeciesDatabase
 from .database import SpeciesRecord as SpeciesRecord
-from .database import default_database as default_database
+from .datasets import default_database as default_database
 from .database import load_database as load_database
 from .formation import FormationProperties as FormationProperties
 from .formation import formation_properties as formation_properties

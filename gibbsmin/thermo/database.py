@@ -291,10 +291,3 @@ def load_database(directory: str | os.PathLike[str] | None = None, data_set: str
 def shipped_database() -> SpeciesDatabase:
     """The species files at the top of the species folder, the data set "nasa-1993" (loaded once per process)."""
     return load_database()
-
-
-def default_database() -> SpeciesDatabase:
-    """The database of the default data set (``thermo.datasets.DEFAULT_DATA``), loaded once per process."""
-    from .datasets import data_set  # datasets builds on this module
-
-    return data_set()

@@ -72,6 +72,11 @@ def data_set(data: str | None = None) -> SpeciesDatabase:
     return _load(name, str(species_directory()), os.environ.get("GIBBSMIN_SPECIES", ""))
 
 
+def default_database() -> SpeciesDatabase:
+    """The database of the default data set (``DEFAULT_DATA``), loaded once per process."""
+    return data_set()
+
+
 def choose_database(data: str | None, db: SpeciesDatabase | None) -> SpeciesDatabase:
     """The database of ``data=``, or ``db`` as given; naming both is an error unless they agree."""
     if db is None:
