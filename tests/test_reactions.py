@@ -23,6 +23,7 @@ import numpy as np
 import pytest
 
 import gibbsmin
+from gibbsmin.equilibrium import GasModelState
 from cantera_reference import cantera_species
 from gibbsmin.errors import InputError, TemperatureRangeError, UnknownSpeciesError
 from gibbsmin.reactions import (
@@ -306,10 +307,13 @@ def test_quotients_use_fugacities_when_given_ln_phi():
 
 
 def test_non_ideal_equilibrium_quotients_use_its_fugacity_coefficients():
-    # A non-ideal answer carries phi in extras["fugacity_coefficients"]; Q = Q_ideal prod phi^nu.
+    # A non-ideal answer carries phi in its gas model's state (Equilibrium.gas); Q = Q_ideal prod phi^nu.
     eq = gibbsmin.equilibrate({"CH4": 1.0, "H2O": 3.0}, 1000.0, 20e5, species=["CH4", "H2O", "CO", "CO2", "H2"])
     phi = {"CH4": 0.98, "H2O": 0.91, "CO": 1.01, "CO2": 0.97, "H2": 1.015}
-    real = dataclasses.replace(eq, gas_model="peng-robinson", extras={"fugacity_coefficients": phi})
+    state = GasModelState(fugacity_coefficients=phi, compressibility_factor=1.0, residual_enthalpy_J=0.0,
+                          residual_entropy_J_per_K=0.0, iterations=1, ln_phi_change=0.0, note="",
+                          binary_interactions={})
+    real = dataclasses.replace(eq, gas_model="peng-robinson", gas=state)
     ideal_Q = quotients(eq, reactions=["SMR"])["steam methane reforming"]
     real_Q = quotients(real, reactions=["SMR"])["steam methane reforming"]
     assert real_Q == pytest.approx(ideal_Q * phi["CO"] * phi["H2"] ** 3 / (phi["CH4"] * phi["H2O"]), rel=1e-13)

@@ -149,7 +149,8 @@ def carbon_activity(
     if isinstance(composition, Equilibrium):
         graphite = graphite_held(composition, db)
         lam = composition.element_potentials.get("C", math.nan)
-        if math.isfinite(lam) and not composition.extras.get("approach K"):
+        held = composition.restriction is not None and composition.restriction.approach_K
+        if math.isfinite(lam) and not held:
             potential = float(np.exp(lam - _g0_graphite(state.T, db)))
     return CarbonActivity(state.T, state.P, by_reaction, potential, graphite)
 

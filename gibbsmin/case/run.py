@@ -53,7 +53,7 @@ class Inlet:
 
 @dataclass(frozen=True)
 class StageResult:
-    """One stage: its specification, its inlet, its equilibrium (``extras`` hold duty and approaches) and what
+    """One stage: its specification, its inlet, its equilibrium (with its energy figures and restriction) and what
     it let change (``scope``: the species set, the species held, the reactions allowed)."""
 
     stage: Stage
@@ -72,8 +72,8 @@ class StageResult:
     @property
     def duty_W(self) -> float | None:
         """Heat added to the stage, [W], when the energy balance was computed."""
-        duty = self.equilibrium.extras.get("duty_W")
-        return None if duty is None else float(duty)
+        energy = self.equilibrium.energy
+        return None if energy is None or energy.duty_W is None else float(energy.duty_W)
 
 
 @dataclass(frozen=True)

@@ -68,4 +68,5 @@ from .properties import mixture_entropy as mixture_entropy
 from .properties import state_amounts as state_amounts
 from .results import SIGN_CONVENTION as SIGN_CONVENTION
 from .results import energy_extras as energy_extras
+from .results import energy_figures as energy_figures
 from .results import with_extras as with_extras

@@ -9,7 +9,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..eos.phase import GasPhase
-from ..equilibrium import Equilibrium
+from ..equilibrium import Equilibrium, GasModelState
 from ..errors import ConvergenceError
 from ..settle import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from ..solve import CertificateBatch, SolverResult, certify, solve
@@ -278,17 +278,34 @@ def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, re
             f"{', '.join(phase.ideal_species)} have no critical constants and were treated as ideal gases, but "
             f"make up {ideal_fraction:.2g} of the gas; the {phase.name} answer is approximate there",
             RuntimeWarning, stacklevel=4)
-    return replace(eq, certificate=certificate, extras={
-        **eq.extras,
-        "fugacity_coefficients": {s: float(np.exp(v)) for s, v in zip(phase.gas_names, final)},
-        "compressibility_factor": float(properties.Z),
-        "residual_enthalpy_J": float(total * R * eq.T * properties.H_res_RT),
-        "residual_entropy_J_per_K": float(total * R * properties.S_res_R),
-        "gas_model_iterations": iterations,
-        "ln_phi_change": change,
-        "gas_model_note": _note(phase, ideal_fraction),
-        "binary_interactions": {f"{a}-{b}": v for (a, b), v in phase.kij.items()},
-    })
+    state = GasModelState(
+        fugacity_coefficients={s: float(np.exp(v)) for s, v in zip(phase.gas_names, final)},
+        compressibility_factor=float(properties.Z),
+        residual_enthalpy_J=float(total * R * eq.T * properties.H_res_RT),
+        residual_entropy_J_per_K=float(total * R * properties.S_res_R),
+        iterations=iterations,
+        ln_phi_change=change,
+        note=_note(phase, ideal_fraction),
+        binary_interactions={f"{a}-{b}": v for (a, b), v in phase.kij.items()},
+    )
+    return replace(eq, certificate=certificate, gas=state, extras={**eq.extras, **gas_model_extras(state)})
+
+
+def gas_model_extras(state: GasModelState) -> dict[str, object]:
+    """The gas model's figures by the names ``Equilibrium.extras`` has always used."""
+    extras: dict[str, object] = {
+        "fugacity_coefficients": dict(state.fugacity_coefficients),
+        "compressibility_factor": state.compressibility_factor,
+        "residual_enthalpy_J": state.residual_enthalpy_J,
+        "residual_entropy_J_per_K": state.residual_entropy_J_per_K,
+        "gas_model_iterations": state.iterations,
+        "ln_phi_change": state.ln_phi_change,
+        "gas_model_note": state.note,
+        "binary_interactions": dict(state.binary_interactions),
+    }
+    if state.stability is not None:
+        extras["gas_phase_stability"] = state.stability
+    return extras
 
 
 def _kij_note(phase: GasPhase) -> str:

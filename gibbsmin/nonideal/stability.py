@@ -75,15 +75,15 @@ def stability_checked(phase: GasPhase, eq: Equilibrium, stacklevel: int = 3) -> 
     return stability
 
 
-def with_stability_verdict(eq: Equilibrium) -> Equilibrium:
-    """The answer with the verdict of ``extras["gas_phase_stability"]`` in its certificate.
+def with_stability_verdict(eq: Equilibrium, record: Mapping[str, object]) -> Equilibrium:
+    """The answer with the verdict of a one-phase stability record (``gas_stability``) in its certificate, and
+    the record in its gas model's state (and ``extras["gas_phase_stability"]``).
 
     A gas the tangent-plane test finds unstable as one phase is not the
     equilibrium (gibbsmin has no liquid-solution phase), so it is not certified.
     """
-    record = eq.extras.get("gas_phase_stability")
-    if not record:
-        return eq
+    gas = None if eq.gas is None else replace(eq.gas, stability=record)
+    eq = replace(eq, gas=gas, extras={**eq.extras, "gas_phase_stability": record})
     if record.get("tested"):
         verdict = "stable" if record.get("stable") else "unstable"
     else:

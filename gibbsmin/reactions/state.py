@@ -74,7 +74,7 @@ def gas_state(
     ln_phi : mapping, optional
         Gas species to ln of its fugacity coefficient.  For an Equilibrium of
         a non-ideal gas model the default is its
-        ``extras["fugacity_coefficients"]``.
+        ``Equilibrium.gas.fugacity_coefficients``.
     gas : {"ideal", "peng-robinson", "srk"}, optional
         For a mapping or a Stream (a measured gas): take ln phi from this gas
         model at the gas's own T, P and composition, with ``kij`` as in
@@ -130,9 +130,9 @@ def _equilibrium_ln_y(eq: Equilibrium) -> dict[str, float]:
 
 
 def _equilibrium_ln_phi(eq: Equilibrium) -> dict[str, float]:
-    """ln phi of a non-ideal answer, from the fugacity coefficients its gas model left in ``extras``."""
-    phi = eq.extras.get("fugacity_coefficients")
-    if not isinstance(phi, Mapping):
+    """ln phi of a non-ideal answer, from the fugacity coefficients its gas model found (``Equilibrium.gas``)."""
+    phi = None if eq.gas is None else eq.gas.fugacity_coefficients
+    if phi is None:
         raise InputError(
             f"this equilibrium used the gas model {eq.gas_model!r} but carries no fugacity coefficients; "
             f"pass ln_phi=... (ln of each species' fugacity coefficient) so that quotients use fugacities"

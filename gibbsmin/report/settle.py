@@ -307,8 +307,8 @@ def carbon_table(result: CaseResult) -> Table | None:
 
 def _stage_database(stage, fallback):
     """The database of the data set a stage's answer was computed with."""
-    name = stage.equilibrium.extras.get("data_set")
-    return data_set(str(name)) if name else fallback
+    name = stage.equilibrium.data_set
+    return data_set(name) if name else fallback
 
 
 def curve_plot(result: CaseResult) -> Plot | None:
@@ -342,15 +342,15 @@ def composition_plot(result: CaseResult) -> Plot:
 
 def _gas_model_text(eq) -> str:
     """The model's name and, for a cubic, where its kij come from and those of the main species."""
-    if eq.gas_model == "ideal":
-        return "ideal"
-    pairs = eq.extras.get("binary_interactions", {})
+    if eq.gas_model == "ideal" or eq.gas is None:
+        return eq.gas_model
+    pairs = eq.gas.binary_interactions
     if not pairs:
         return f"{eq.gas_model}, van der Waals mixing, kij = 0"
     y = eq.mole_fractions
     main = {pair: v for pair, v in pairs.items()
             if all(y.get(s, 0.0) >= MAIN_SPECIES_FRACTION for s in _pair_species(pair, y))}
-    note = eq.extras.get("gas_model_note", "")
+    note = eq.gas.note
     origin = "shipped kij" if "shipped" in note else "kij of the given table" if "given table" in note else "kij given"
     listed = ", ".join(f"{pair} {value:+.4g}" for pair, value in main.items()) or "none between main species"
     return (f"{eq.gas_model}, van der Waals mixing, {origin}: {listed} "
@@ -363,7 +363,7 @@ MAIN_SPECIES_FRACTION = 1e-3
 
 def _data_set_text(result: CaseResult) -> str:
     """The data set(s) the stages used, each with what it is."""
-    names = dict.fromkeys(str(s.equilibrium.extras.get("data_set", "")) for s in result.stages)
+    names = dict.fromkeys(s.equilibrium.data_set for s in result.stages)
     return "; ".join(f"{n}: {DATA_SETS[n].description}" if n in DATA_SETS else n for n in names)
 
 
@@ -395,7 +395,8 @@ def settle_report(result: CaseResult) -> Report:
              ("thermochemical data", _data_set_text(result)),
              ("amounts", "flows; the feed's flows are taken as amounts per second")]
     for stage in result.stages:
-        stability = stage.equilibrium.extras.get("gas_phase_stability")
+        gas = stage.equilibrium.gas
+        stability = None if gas is None else gas.stability
         if stability and stability.get("tested"):
             facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
