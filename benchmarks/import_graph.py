@@ -28,7 +28,7 @@ LAYERS: dict[str, int] = {
     "gibbsmin.errors": 0, "gibbsmin.formula": 0, "gibbsmin.compiled": 0, "gibbsmin.thermo": 0,
     "gibbsmin.units": 0, "gibbsmin.version": 0,
     "gibbsmin.eos": 1, "gibbsmin.system": 1, "gibbsmin.solve": 1, "gibbsmin.streams": 1,
-    "gibbsmin.equilibrium": 2, "gibbsmin.settle": 2, "gibbsmin.reactions": 2,
+    "gibbsmin.equilibrium": 2, "gibbsmin.fixed_step": 2, "gibbsmin.reactions": 2,
     "gibbsmin.restricted": 3, "gibbsmin.sensitivity": 3, "gibbsmin.energy": 3, "gibbsmin.nonideal": 3,
     "gibbsmin.uncertainty": 3,
     "gibbsmin.prepared": 4, "gibbsmin.api": 4,

@@ -38,7 +38,7 @@ from .errors import InputError
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
-from .settle import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
+from .fixed_step import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
                      positive_number, setup_on, solve_fixed)
 from .solve import CertificateBatch, SolverResult, solve
 from .system import Problem

@@ -39,7 +39,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from .settle import Setup
+from .fixed_step import Setup
 from .solve import SolverResult
 from .system import Problem
 from .thermo.database import SpeciesDatabase
@@ -188,7 +188,7 @@ def equilibrium_sensitivities(setup: Setup, problem: Problem, result: SolverResu
     Parameters
     ----------
     setup, problem, result
-        A solved fixed-T,P point (``settle.solve_fixed``).
+        A solved fixed-T,P point (``fixed_step.solve_fixed``).
     T : float
         Its temperature, [K].
     P : float

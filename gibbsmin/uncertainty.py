@@ -24,7 +24,7 @@ from numpy.typing import NDArray
 from .equilibrium import WATER
 from .errors import InputError
 from .sensitivity import equilibrium_sensitivities, formation_enthalpy_sensitivities
-from .settle import Setup
+from .fixed_step import Setup
 from .solve import SolverResult
 from .system import Problem
 from .thermo.database import SpeciesRecord

@@ -120,7 +120,7 @@ def test_methanol_condenses_from_a_cold_gas_at_its_own_vapour_pressure():
 
 
 def test_the_default_species_set_of_a_methanol_gas_includes_the_liquid():
-    from gibbsmin.settle import prepare
+    from gibbsmin.fixed_step import prepare
 
     feed = {"H2": 0.70, "CO": 0.05, "CO2": 0.05, "CH4": 0.10, "CH3OH": 0.08, "H2O": 0.02}
     assert "CH3OH(l)" in prepare(feed, T_span=(308.15, 308.15), db=DB).system.names

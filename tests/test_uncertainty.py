@@ -15,7 +15,7 @@ import pytest
 import gibbsmin
 from gibbsmin import equilibrate
 from gibbsmin.nonideal import gas_phase
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import solve
 from gibbsmin.thermo import R, data_set
 from gibbsmin.uncertainty import formation_uncertainties, propagated

@@ -7,7 +7,7 @@ from collections.abc import Mapping, Sequence
 
 from ..errors import InputError
 from ..nonideal import gas_phase, solve_nonideal
-from ..settle import checked, prepare, solve_fixed
+from ..fixed_step import checked, prepare, solve_fixed
 from ..thermo.database import SpeciesDatabase
 from .activity import GRAPHITE, _g0_graphite
 

@@ -9,7 +9,7 @@ from dataclasses import dataclass
 import scipy.optimize
 
 from ..errors import InputError
-from ..settle import check_feed, check_method
+from ..fixed_step import check_feed, check_method
 from ..streams import CARBON_BASES, Stream
 from ..thermo.database import SpeciesDatabase
 from ..thermo.datasets import choose_database

@@ -16,7 +16,7 @@ import numpy as np
 import scipy.optimize
 
 from ..errors import InputError
-from ..settle import check_feed, check_method
+from ..fixed_step import check_feed, check_method
 from ..streams import Stream
 from ..thermo.database import SpeciesDatabase
 from ..thermo.datasets import default_database

@@ -29,7 +29,7 @@ from .reader import parse_case as parse_case
 from .reader import read_case as read_case
 from .run import CaseResult as CaseResult
 from .run import Curve as Curve
-from .run import Inlet as Inlet
+from .run import StageInlet as StageInlet
 from .run import StageResult as StageResult
 from .run import settle_case as settle_case
 from .spec import CASE_KEYS as CASE_KEYS

@@ -32,7 +32,7 @@ _NEGLIGIBLE = 1e-14
 
 
 @dataclass(frozen=True)
-class Inlet:
+class StageInlet:
     """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given)."""
 
     streams: Mapping[str, Mapping[str, float]]
@@ -57,7 +57,7 @@ class StageResult:
     it let change (``scope``: the species set, the species held, the reactions allowed)."""
 
     stage: Stage
-    inlet: Inlet
+    inlet: StageInlet
     equilibrium: Equilibrium
     scope: StageScope | None = None
     carbon: StageCarbon | None = None
@@ -99,7 +99,7 @@ class StageCarbon:
     failure: str | None
 
 
-def stage_carbon(case: Case, stage: Stage, inlet: Inlet, eq: Equilibrium, db: SpeciesDatabase) -> StageCarbon:
+def stage_carbon(case: Case, stage: Stage, inlet: StageInlet, eq: Equilibrium, db: SpeciesDatabase) -> StageCarbon:
     """The carbon check of one stage (the limit is searched from the inlet's gas without its water, so that it
     may lie below the S/C fed)."""
     basis = case.feeds[0].stream.carbon_basis
@@ -162,14 +162,14 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     for stage in case.stages:
         if stage.uncertainty:
             check_uncertainty(case, stage, choose_database(stage.data, given))
-    inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
+    inlet = StageInlet({f.name: f.stream.feed_mol() for f in case.feeds},
                   {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
     results = []
     for stage in case.stages:
         if progress is not None:
             progress(stage.name)
         if stage.T_in is not None:
-            inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
+            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
@@ -181,7 +181,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
         result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
-        inlet = Inlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
+        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -218,7 +218,7 @@ def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specific
                             allow_extrapolation=case.species.allow_extrapolation, **cubic)
 
 
-def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
+def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
     if not stage.reacts:
         _check_heat_direction(stage, inlet)
     balance = {}
@@ -241,7 +241,7 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db:
     return dataclasses.replace(eq, extras=extras)
 
 
-def _check_heat_direction(stage: Stage, inlet: Inlet) -> None:
+def _check_heat_direction(stage: Stage, inlet: StageInlet) -> None:
     """A cooler (or knock-out) whose outlet is hotter than its inlet, or a heater that cools, is a typing slip."""
     if stage.T is None or not inlet.temperatures_known:
         return

@@ -14,7 +14,7 @@ from .. import sensitivity
 from . import phase_boundary
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, InputError
-from ..settle import Setup, checked, solve_fixed
+from ..fixed_step import Setup, checked, solve_fixed
 from ..solve import SolverResult
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
@@ -108,7 +108,7 @@ def solve_energy_balance(
     residual_enthalpy : callable, optional
         Gas-phase residual enthalpy (ideal gas when omitted).
     step : callable, optional
-        The fixed-T solve to iterate on; ``settle.solve_fixed`` on the ideal
+        The fixed-T solve to iterate on; ``fixed_step.solve_fixed`` on the ideal
         gas by default.  A non-ideal gas model passes its own.
     phase_set_solve : bool
         Where the bracket's ends differ in phases, solve on their union with T

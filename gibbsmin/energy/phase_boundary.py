@@ -20,7 +20,7 @@ from numpy.typing import NDArray
 
 from ..equilibrium import Equilibrium
 from ..sensitivity import fixed_T_matrix, kept_properties, linearised_state
-from ..settle import Setup, build_problem, to_equilibrium
+from ..fixed_step import Setup, build_problem, to_equilibrium
 from ..solve import SolverResult, certify
 from ..system import Problem, standard_mu0
 from ..thermo.nasa7 import R

@@ -10,7 +10,7 @@ from numpy.typing import NDArray
 
 from ..equilibrium import Equilibrium
 from ..errors import TemperatureRangeError
-from ..settle import Setup, positive_number, check_feed
+from ..fixed_step import Setup, positive_number, check_feed
 from ..solve import SolverResult
 from ..system import P_REF, Problem
 from ..thermo.database import SpeciesDatabase
@@ -23,7 +23,7 @@ from ..thermo.nasa7 import ENTHALPY, ENTROPY, Nasa7Table, R, polynomials
 #: System's gas order.  None means an ideal gas; a cubic equation of state supplies its own.
 ResidualEnthalpy = Callable[[float, float, NDArray[np.float64]], float]
 
-#: A fixed-T step: (T [K], warm start) -> (Equilibrium, Problem, SolverResult), as ``settle.solve_fixed``.
+#: A fixed-T step: (T [K], warm start) -> (Equilibrium, Problem, SolverResult), as ``fixed_step.solve_fixed``.
 FixedTStep = Callable[[float, "SolverResult | None"], tuple[Equilibrium, Problem, SolverResult]]
 
 #: The solve with T unknown on the union of two phase sets, with the arguments of

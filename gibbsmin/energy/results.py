@@ -7,7 +7,7 @@ from dataclasses import replace
 
 
 from ..equilibrium import EnergyFigures, Equilibrium
-from ..settle import Setup
+from ..fixed_step import Setup
 from .balance import enthalpy_scale
 from .inlet import Inlet
 from .properties import ResidualEnthalpy, enthalpy, entropy, state_amounts

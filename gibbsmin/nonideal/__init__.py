@@ -7,7 +7,7 @@ In a non-ideal gas the potentials are
 With phi held fixed, ln phi_j only shifts g0_j/RT, and the problem is the
 convex one every solver of the package takes.  The non-ideal equilibrium is
 therefore the fixed point  ln phi = F(ln phi),  where F solves the frozen-phi
-problem (``settle.solve_fixed`` builds it once; each later pass only shifts
+problem (``fixed_step.solve_fixed`` builds it once; each later pass only shifts
 the gas potentials and re-solves, warm-started from the previous answer) and
 evaluates the equation of state at the composition it returns.  The plain
 iteration converges linearly (each pass cuts the change in ln phi by about ten

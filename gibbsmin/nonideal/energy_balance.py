@@ -8,7 +8,7 @@ import numpy as np
 
 from ..energy import phase_boundary
 from ..eos.phase import GasPhase
-from ..settle import Setup
+from ..fixed_step import Setup
 from ..solve import SolverResult
 from ..system import standard_mu0
 from ..thermo.database import SpeciesDatabase

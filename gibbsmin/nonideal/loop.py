@@ -11,7 +11,7 @@ from numpy.typing import NDArray
 from ..eos.phase import GasPhase
 from ..equilibrium import Equilibrium, GasModelState
 from ..errors import ConvergenceError
-from ..settle import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
+from ..fixed_step import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from ..solve import CertificateBatch, SolverResult, certify, solve
 from ..system import Problem
 from ..thermo.nasa7 import R
@@ -88,7 +88,7 @@ def solve_nonideal(
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium of a prepared setup at T [K] and P [Pa] with the gas described by ``phase``.
 
-    The counterpart of ``settle.solve_fixed`` for a non-ideal gas, with the
+    The counterpart of ``fixed_step.solve_fixed`` for a non-ideal gas, with the
     same arguments and returns; for the ideal gas it is ``solve_fixed`` itself.
 
     Parameters
@@ -116,7 +116,7 @@ def solve_nonideal(
         ``fugacity_coefficients`` (species to phi [-]), ``compressibility_factor``
         Z [-], ``residual_enthalpy_J`` [J], ``gas_model_iterations`` (frozen-phi
         solves), ``ln_phi_change`` (the last change [-]) and ``gas_model_note``.
-        The answer is not checked here: see ``settle.checked``.
+        The answer is not checked here: see ``fixed_step.checked``.
 
     Raises
     ------

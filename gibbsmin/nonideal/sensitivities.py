@@ -10,7 +10,7 @@ from numpy.typing import NDArray
 from ..energy.properties import enthalpy, state_amounts
 from ..eos.phase import GasPhase
 from ..sensitivity import Sensitivities, difference_sensitivities
-from ..settle import Setup
+from ..fixed_step import Setup
 from ..solve import SolverResult
 from ..thermo.database import SpeciesDatabase
 from ..thermo.datasets import default_database

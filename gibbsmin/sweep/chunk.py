@@ -16,7 +16,7 @@ if TYPE_CHECKING:
 
 from ..api import prepared_for
 from ..prepared import Prepared
-from ..settle import Setup
+from ..fixed_step import Setup
 from ..uncertainty import batch_uncertainty
 from ..thermo.datasets import data_set
 from .grid import SweepSpec

@@ -92,7 +92,7 @@ class SpeciesDatabase:
                 self._by_alias[key] = i
         self._table = nasa7_table(self._records)
         #: Objects derived from these records alone (species sets and their Systems), kept for reuse
-        #: by ``settle.feed_species_set``; the records never change, so nothing in it goes stale.
+        #: by ``fixed_step.feed_species_set``; the records never change, so nothing in it goes stale.
         self.memo: dict[object, object] = {}
 
     def __len__(self) -> int:
