@@ -5,6 +5,8 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import replace
 
+import numpy as np
+
 
 from ..equilibrium import EnergyFigures, Equilibrium
 from ..fixed_step import Setup
@@ -27,9 +29,20 @@ def energy_figures(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None,
     """
     system = setup.system
     n = state_amounts(setup, eq)
-    H_out = enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
+    if eq.fluid_phases is None:
+        H_out = enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
+        S_out = entropy(system.table, system.n_gas, n, eq.T, P)
+    else:
+        # Each fluid phase mixes on its own; the residual parts are the gas model's, summed over the phases.
+        H_out = enthalpy(system.table, system.n_gas, n, eq.T, P) + eq.gas.residual_enthalpy_J
+        condensed = n.copy()
+        condensed[: system.n_gas] = 0.0
+        S_out = entropy(system.table, system.n_gas, condensed, eq.T, P) + sum(
+            entropy(system.table, system.n_gas, np.concatenate(
+                [[phase.amounts.get(name, 0.0) for name in system.gas_names], np.zeros(len(n) - system.n_gas)]),
+                eq.T, P) for phase in eq.fluid_phases)
     search = {name: eq.extras.get(key) for name, key in _SEARCH_FIGURES.items()}
-    figures = EnergyFigures(H_out, entropy(system.table, system.n_gas, n, eq.T, P), **search)
+    figures = EnergyFigures(H_out, S_out, **search)
     if inlet is None or H_in is None:
         return figures
     # "T and P", or "T and P; <held reactions>" for a restricted equilibrium: the duty is what T needs.

@@ -295,7 +295,8 @@ class CubicModel:
         """Tc of each species, [K] (quantum gases: their classical limit)."""
         return self._species.Tc.copy()
 
-    def properties(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False) -> GasProperties:
+    def properties(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False,
+                   root: float | None = None) -> GasProperties:
         """Z, ln phi, residual enthalpy and entropy of the gas at T, P and y.
 
         Parameters
@@ -308,6 +309,9 @@ class CubicModel:
             Mole fractions, in the model's species order [-]; must sum to one.
         dT : bool
             Also return d ln phi / dT at constant P and y, [1/K].
+        root : float, optional
+            The root Z to take (one condition: a liquid phase's, from
+            ``least_gibbs_root``); the vapour root by default.
 
         Returns
         -------
@@ -322,7 +326,7 @@ class CubicModel:
         Delta = delta1 - delta2
 
         sqrt_a, dsqrt_a, b_i, db_i, q, a, b, A, B, beta, abar = self._mixture(T, P, y)
-        Z = vapour_root(*fam.cubic_coefficients(A, B), B)
+        Z = vapour_root(*fam.cubic_coefficients(A, B), B) if root is None else root
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
         A_BD = A / (B * Delta)

@@ -41,12 +41,15 @@ from numpy.typing import NDArray
 
 from ..eos.phase import GasPhase
 from ..eos.stability import tangent_plane_test
-from ..equilibrium import Equilibrium
+from .stability import stability_and_trial
+from ..equilibrium import Equilibrium, FluidPhase
 from ..errors import ConvergenceError
 from ..fixed_step import Setup, fixed_problem
 from ..solve import SolverResult
 from ..solve.certificate import Certificate, Tolerances
 from ..system import Problem
+from ..thermo.nasa7 import R
+from .loop import gas_model_extras
 
 #: Outer-loop tolerance on ln phi of every phase [-] and its pass limit.
 PHI_TOLERANCE = 1e-10
@@ -78,6 +81,8 @@ class FluidSplit:
         Z of each phase [-].
     passes : int
         Frozen-phi solves of the outer loop.
+    stability_distance : float
+        The lowest tangent-plane distance the test of the final phases found (>= -1e-8: no further phase).
     """
 
     names: tuple[str, ...]
@@ -85,6 +90,15 @@ class FluidSplit:
     ln_phi: NDArray[np.float64]
     compressibility: tuple[float, ...]
     passes: int
+    stability_distance: float = 0.0
+
+    def stability_record(self) -> dict[str, object]:
+        """The one-phase stability record of the answer (as ``nonideal.gas_stability`` gives one), for its
+        certificate and reports."""
+        listed = " and ".join(self.names)
+        return {"tested": True, "stable": True, "distance": self.stability_distance, "would_form": None,
+                "note": f"{len(self.names)} fluid phases ({listed}); the tangent-plane test of the final phases "
+                        "finds no further phase"}
 
 
 @dataclass
@@ -146,11 +160,12 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
     for _ in range(3):  # at most two phases added after the first split settles
         phases, pi, n_c, present_c, passes = _settle(problem, phase, phases, pi, n_c, present_c, keep_gas,
                                                      len(gas_names), T, P, passes)
-        added = _added_phase(phase, problem, phases, pi, keep_gas, liquid_allowed, len(gas_names), T, P)
+        added, distance = _added_phase(phase, problem, phases, pi, keep_gas, liquid_allowed, len(gas_names), T, P)
         if added is None:
             break
         phases.append(added)
-    return _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model)
+    return _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model,
+                   distance)
 
 
 def _system_gas(values: NDArray[np.float64], keep_gas: NDArray[np.int_], n_gas: int) -> NDArray[np.float64]:
@@ -161,17 +176,9 @@ def _system_gas(values: NDArray[np.float64], keep_gas: NDArray[np.int_], n_gas: 
 
 
 def _trial_liquid(phase: GasPhase, eq: Equilibrium, T: float, P: float) -> NDArray[np.float64] | None:
-    """The composition (System gas order) of the phase the one-gas answer would split off, or None."""
-    names = [phase.gas_names[j] for j in phase.described]
-    n = np.array([eq.amounts.get(name, 0.0) for name in names])
-    if not n.sum() > 0.0:
-        return None
-    verdict = tangent_plane_test(phase.model, T, P, n / n.sum())
-    if verdict.stable:
-        return None
-    full = np.zeros(len(phase.gas_names))
-    full[phase.described] = verdict.trial
-    return full
+    """The composition (System gas order) of the phase the one-gas answer would split off, or None (stable, far
+    above every critical temperature present, or a pure condensate the answer already holds)."""
+    return stability_and_trial(phase, eq)[1]
 
 
 def _liquid_ln_phi(phase: GasPhase, x_gas: NDArray[np.float64], T: float, P: float) -> NDArray[np.float64]:
@@ -294,7 +301,7 @@ def _merged(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64]) -> 
 
 def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: NDArray[np.float64],
                  keep_gas: NDArray[np.int_], liquid_allowed: NDArray[np.bool_], n_gas: int, T: float,
-                 P: float) -> _Phase | None:
+                 P: float) -> tuple[_Phase | None, float]:
     """A further liquid where the tangent-plane test of the settled first phase still finds one.
 
     At a settled split every present phase has the same tangent plane, so one
@@ -306,16 +313,17 @@ def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: ND
     part = first[phase.described]
     verdict = tangent_plane_test(phase.model, T, P, part / part.sum())
     if verdict.stable or len(phases) >= int(liquid_allowed.sum()):
-        return None
+        return None, verdict.distance
     trial = np.zeros(n_gas)
     trial[phase.described] = verdict.trial
     for k in range(len(phases)):
         if np.max(np.abs(trial[keep_gas] - np.exp(ln_x[k]))) < 1e3 * SAME_COMPOSITION:
-            return None
-    return _new_liquid(phase, trial, keep_gas, liquid_allowed, T, P, phases[0].ln_N)
+            return None, 0.0
+    return _new_liquid(phase, trial, keep_gas, liquid_allowed, T, P, phases[0].ln_N), verdict.distance
 
 
-def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model):
+def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model,
+            distance):
     """The Equilibrium and FluidSplit of a settled set of fluid phases, with its certificate over every phase."""
     system = setup.system
     n_gas = system.n_gas
@@ -341,7 +349,7 @@ def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, o
             Z.append(model.least_gibbs_root(T, P, y)[2])
         else:
             Z.append(float(model.properties(T, P, y).Z))
-    split = FluidSplit(tuple(names), amounts, ln_phi, tuple(Z), passes)
+    split = FluidSplit(tuple(names), amounts, ln_phi, tuple(Z), passes, distance)
     totals = dict(one_gas.amounts)
     for j, name in enumerate(system.gas_names):
         totals[name] = float(amounts[:, j].sum())
@@ -361,8 +369,28 @@ def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, o
         if np.isfinite(potentials.get(element, np.nan)):
             potentials[element] = float(lam[k])
     G_RT = _total_gibbs(problem, ln_n, ln_x, phases, n_c, present_c)
+    molar_mass = np.array([r.molar_mass for r in system.records[:n_gas]]) * 1e-3  # kg/mol
+    fluid = tuple(
+        FluidPhase(name, {s: float(v) for s, v in zip(system.gas_names, amounts[k]) if v > 0.0}, Z[k],
+                   Z[k] * R * T / P, float(amounts[k] @ molar_mass / amounts[k].sum()) * P / (Z[k] * R * T),
+                   {s: float(np.exp(ln_phi[k, j])) for j, s in enumerate(system.gas_names) if amounts[k, j] > 0.0})
+        for k, name in enumerate(names))
+    residual_H = residual_S = 0.0
+    for k in range(len(names)):
+        part = amounts[k][phase.described]
+        properties = model.properties(T, P, part / part.sum(), root=Z[k])
+        residual_H += float(part.sum() * R * T * properties.H_res_RT)
+        residual_S += float(part.sum() * R * properties.S_res_R)
+    first = fluid[0]
+    state = replace(one_gas.gas, fugacity_coefficients=dict(first.fugacity_coefficients),
+                    compressibility_factor=first.compressibility_factor, residual_enthalpy_J=residual_H,
+                    residual_entropy_J_per_K=residual_S, iterations=one_gas.gas.iterations + passes,
+                    note=one_gas.gas.note + f"; {len(names)} fluid phases ({', '.join(names)}), each on its own "
+                    "root of the cubic (fugacity coefficients and Z above: the first phase's)",
+                    stability=split.stability_record())
     eq = replace(one_gas, amounts=totals, ln_gas_amounts=ln_gas, element_potentials=potentials, G_RT=G_RT,
-                 certificate=certificate)
+                 certificate=certificate.with_phase_stability("stable"), fluid_phases=fluid, gas=state,
+                 extras={**one_gas.extras, **gas_model_extras(state)})
     return eq, split
 
 
