@@ -34,7 +34,7 @@ from .families import CubicFamily
 from .inputs import check_conditions
 from .quantum import QuantumGas, QuantumTable, quantum_gases_of
 from .result import GasProperties
-from .roots import real_roots, vapour_root
+from .roots import liquid_root, real_roots, vapour_root
 
 FloatArray = NDArray[np.float64]
 
@@ -295,9 +295,15 @@ class CubicModel:
         """Tc of each species, [K] (quantum gases: their classical limit)."""
         return self._species.Tc.copy()
 
-    def properties(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False,
-                   root: float | None = None) -> GasProperties:
-        """Z, ln phi, residual enthalpy and entropy of the gas at T, P and y.
+    @property
+    def critical_pressures(self) -> NDArray[np.float64]:
+        """Pc of each species, [Pa] (quantum gases: their classical limit)."""
+        return self._species.Pc.copy()
+
+    def properties(
+        self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False, root: str | float = "vapour"
+    ) -> GasProperties:
+        """Z, ln phi, residual enthalpy and entropy of the gas (or, with root="liquid", the liquid) at T, P and y.
 
         Parameters
         ----------
@@ -309,9 +315,11 @@ class CubicModel:
             Mole fractions, in the model's species order [-]; must sum to one.
         dT : bool
             Also return d ln phi / dT at constant P and y, [1/K].
-        root : float, optional
-            The root Z to take (one condition: a liquid phase's, from
-            ``least_gibbs_root``); the vapour root by default.
+        root : str or float
+            "vapour" (the default: the largest root, see :func:`gibbsmin.eos.roots.vapour_root`)
+            or "liquid" (the smallest physical root; the same as the vapour root
+            where the cubic has only one, see :func:`gibbsmin.eos.roots.liquid_root`); or, for one
+            condition, the root Z itself (a liquid-solution phase's, from ``least_gibbs_root``).
 
         Returns
         -------
@@ -326,7 +334,10 @@ class CubicModel:
         Delta = delta1 - delta2
 
         sqrt_a, dsqrt_a, b_i, db_i, q, a, b, A, B, beta, abar = self._mixture(T, P, y)
-        Z = vapour_root(*fam.cubic_coefficients(A, B), B) if root is None else root
+        if isinstance(root, str):
+            Z = _ROOTS[_root_choice(root)](*fam.cubic_coefficients(A, B), B)
+        else:
+            Z = root
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
         A_BD = A / (B * Delta)
@@ -349,11 +360,11 @@ class CubicModel:
             return GasProperties(self.name, Z, ln_phi, H_res, H_res - g, dln_phi)
         return GasProperties(self.name, Z[:, 0], ln_phi, H_res[:, 0], (H_res - g)[:, 0], dln_phi)
 
-    def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike) -> FloatArray:
+    def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, root: str = "vapour") -> FloatArray:
         """ln phi of each species [-], shape (S,) or (B, S); as :meth:`properties` gives it, without the rest."""
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         *_, A, B, beta, abar = self._mixture(T, P, y)
-        Z = vapour_root(*self.family.cubic_coefficients(A, B), B)
+        Z = _ROOTS[_root_choice(root)](*self.family.cubic_coefficients(A, B), B)
         return self._at_root(Z, A, B, beta, abar, math.log if single else np.log)[0]
 
     def _dln_phi_dT(self, s: _Local) -> FloatArray:
@@ -407,6 +418,16 @@ class _Local(NamedTuple):
     b: Any
     db_i: Any
     db: Any
+
+
+#: The root each phase takes: the gas the largest, a liquid the smallest physical one.
+_ROOTS = {"vapour": vapour_root, "liquid": liquid_root}
+
+
+def _root_choice(root: str) -> str:
+    if root not in _ROOTS:
+        raise InputError(f"root={root!r} is not understood: give 'vapour' or 'liquid'")
+    return root
 
 
 def _weighted_sum(y, x):

@@ -1,4 +1,4 @@
-"""The roots of the compressibility cubic: the vapour root, and all physical roots for stability tests."""
+"""The roots of the compressibility cubic: the vapour root, the liquid root, and all physical roots for stability tests."""
 
 from __future__ import annotations
 
@@ -62,6 +62,33 @@ def vapour_root(c2: Real, c1: Real, c0: Real, B: Real) -> Real:
                 Z[i] = _only_root(float(c2[i]), float(c1[i]), float(c0[i]), float(B[i]), 0.0)
             return Z
     raise ConvergenceError(_not_converged(float(np.max(np.abs(step)))))
+
+
+def liquid_root(c2: Real, c1: Real, c0: Real, B: Real) -> Real:
+    """Smallest physical root (Z > B) of Z^3 + c2 Z^2 + c1 Z + c0 = 0, elementwise.
+
+    Where the cubic has three real roots it is the liquid-like density; where
+    it has one, that root (then the same as :func:`vapour_root`).  A caller
+    that needs to know which case it is compares the two.  From the companion
+    matrix (:func:`real_roots`), as Newton from the left could start below B.
+    """
+    if isinstance(B, float):
+        return _smallest_root(c2, c1, c0, B)
+    c2, c1, c0, B = np.broadcast_arrays(*(np.asarray(c, dtype=float) for c in (c2, c1, c0, B)))
+    Z = np.empty(B.shape)
+    for i in np.ndindex(B.shape):
+        Z[i] = _smallest_root(float(c2[i]), float(c1[i]), float(c0[i]), float(B[i]))
+    return Z
+
+
+def _smallest_root(c2: float, c1: float, c0: float, B: float) -> float:
+    roots = real_roots(c2, c1, c0, B)
+    if not roots:
+        raise ConvergenceError(
+            "the cubic equation of state has no physical root (Z > B) at this state; "
+            "move T or P slightly or use gas='ideal'"
+        )
+    return roots[-1]
 
 
 def _only_root(c2: float, c1: float, c0: float, B: float, step: float) -> float:
