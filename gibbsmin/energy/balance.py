@@ -17,6 +17,7 @@ from ..settle import Setup, checked, solve_fixed
 from ..solve import SolverResult
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
+from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, solve_at_fixed_enthalpy
 from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
 
 
@@ -89,6 +90,7 @@ def solve_energy_balance(
     phase_set_solve: bool = True,
     phase_set_step: PhaseSetStep | None = None,
     enthalpy_kinks: Mapping[str, float] | None = None,
+    plain_ideal_gas: bool | None = None,
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
 
@@ -123,12 +125,20 @@ def solve_energy_balance(
         holding it jumps (``GasPhase.enthalpy_kinks``).  An outlet whose
         energy balance falls inside such a jump is pinned there, with a
         warning and ``extras["enthalpy_kink"]``.
+    plain_ideal_gas : bool, optional
+        Whether ``step`` is the ideal gas with the plain standard potentials
+        (no ln phi, no offsets of held reactions); by default, whether
+        ``step`` is omitted.  Then the T-unknown Newton
+        (``enthalpy_newton.solve_at_fixed_enthalpy``) is tried first, and its
+        answer taken where it certifies and closes the balance.
 
     Returns
     -------
     (Equilibrium, Problem, SolverResult)
         The answer (``specification`` "H and P", ``extras["T_evaluations"]``,
-        and ``extras["phase_boundary"]`` when T sits on a two-phase plateau).
+        ``extras["energy_balance_path"]`` (the T-unknown Newton, or the
+        temperature search), and ``extras["phase_boundary"]`` when T sits on
+        a two-phase plateau).
 
     Raises
     ------
@@ -137,6 +147,8 @@ def solve_energy_balance(
     ConvergenceError
         The search did not close the balance.
     """
+    if plain_ideal_gas is None:
+        plain_ideal_gas = step is None
     if step is None:
         def step(T, start):
             if method == "auto" and start is not None:
@@ -156,9 +168,31 @@ def solve_energy_balance(
         # mixture knows nothing of, and the search then walks down from there.
         T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
     scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
+    T_start = min(max(T_guess, T_bounds[0]), T_bounds[1])
+    if plain_ideal_gas and method in ("auto", "newton") and residual_enthalpy is None and phase_set_step is None \
+            and not enthalpy_kinks:
+        answer = _by_enthalpy_newton(setup, H_target, P, T_start, T_bounds, scale, allow_extrapolation)
+        if answer is not None:
+            return answer
     search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
                      phase_set_solve, phase_set_step, enthalpy_kinks)
-    return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
+    return search.run(T_start)
+
+
+def _by_enthalpy_newton(setup: Setup, H_target: float, P: float, T_start: float, T_bounds: tuple[float, float],
+                        scale: float, allow_extrapolation: bool) -> tuple[Equilibrium, Problem, SolverResult] | None:
+    """The T-unknown Newton's answer where it certifies and closes the balance as the search would; else None."""
+    solved = solve_at_fixed_enthalpy(setup, H_target, P, T_start, T_bounds, allow_extrapolation)
+    if solved is None:
+        return None
+    eq, problem, result = solved
+    system = setup.system
+    n = state_amounts(setup, eq)
+    miss = enthalpy(system.table, system.n_gas, n, eq.T, P) - H_target
+    if not abs(miss) <= _TOLERANCE * enthalpy_scale(setup, n, eq.T, scale, 0.0):
+        return None
+    # Two fixed-T solves inside the kernel: at the start, and at the temperature found.
+    return replace(eq, extras={**eq.extras, "T_evaluations": 2, PATH_KEY: ENTHALPY_NEWTON}), problem, result
 
 
 class _Search:
@@ -202,7 +236,8 @@ class _Search:
 
     def finish(self, point: _Point, extras: Mapping[str, object] | None = None):
         eq = replace(point.eq, specification="H and P",
-                     extras={**point.eq.extras, "T_evaluations": len(self.points), **(extras or {})})
+                     extras={**point.eq.extras, "T_evaluations": len(self.points), PATH_KEY: SEARCH,
+                             **(extras or {})})
         return eq, point.problem, point.result
 
     def no_root(self, point: _Point) -> InputError:
