@@ -15,6 +15,7 @@ from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, InputError
 from ..settle import Setup, checked, solve_fixed
 from ..solve import SolverResult
+from ..solve import _enthalpy_kernel as enthalpy_kernel
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
 from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, solve_at_fixed_enthalpy
@@ -39,15 +40,9 @@ _PHASE_SET_TRIES = 3
 def frozen_temperature(table: Nasa7Table, n: NDArray[np.float64], H: float, bounds: tuple[float, float]) -> float:
     """Temperature at which an unreacted mixture has enthalpy H, [K] (a first guess of the outlet)."""
     low, high = bounds
-    T = 0.5 * (low + high)
-    for _ in range(60):
-        cp = max(heat_capacity(table, n, T), 1e-12)
-        step = (H - float(n @ table.h_RT(T)) * R * T) / cp
-        T = min(max(T + step, low), high)
-        if abs(step) < 1e-6:
-            break
-    return T
-
+    return float(enthalpy_kernel.frozen_temperature(table.low, table.high, table.T_mid,
+                                                    np.ascontiguousarray(n, dtype=float), float(H), float(low),
+                                                    float(high)))
 
 
 @dataclass(frozen=True)

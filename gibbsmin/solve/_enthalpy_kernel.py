@@ -30,7 +30,7 @@ import numpy as np
 
 from ..compiled import compiled
 from ..system import P_REF
-from ..thermo.nasa7 import ENTHALPY, GIBBS, HEAT_CAPACITY, polynomials
+from ..thermo.nasa7 import ENTHALPY, GIBBS, HEAT_CAPACITY, R, polynomials
 from ._newton_kernel import CONVERGED, LN_LIFT, LN_TRACE, _lu_solve, iterate_point
 
 # Outcomes of ``run`` beyond the Newton kernel's CONVERGED, NOT_CONVERGED, SINGULAR and CYCLING.
@@ -58,6 +58,30 @@ def _at_temperature(low, high, T_mid, n_gas, T, ln_p, t, out, mu0, h, cp):
     polynomials(low, high, T_mid, t, HEAT_CAPACITY, out)
     for j in range(cp.size):
         cp[j] = out[0, j]
+
+
+@compiled()
+def frozen_temperature(low, high, T_mid, n, H, T_low, T_high):
+    """Temperature [K] in [T_low, T_high] at which amounts n [mol] unreacted have enthalpy H [J] (Newton on T)."""
+    t = np.empty(1)
+    out = np.empty((1, n.size))
+    T = 0.5 * (T_low + T_high)
+    for _ in range(60):
+        t[0] = T
+        polynomials(low, high, T_mid, t, HEAT_CAPACITY, out)
+        cp = 0.0
+        for j in range(n.size):
+            cp += n[j] * out[0, j]
+        cp = max(R * cp, 1e-12)
+        polynomials(low, high, T_mid, t, ENTHALPY, out)
+        h = 0.0
+        for j in range(n.size):
+            h += n[j] * out[0, j]
+        step = (H - h * R * T) / cp
+        T = min(max(T + step, T_low), T_high)
+        if abs(step) < 1e-6:
+            break
+    return T
 
 
 @compiled()
