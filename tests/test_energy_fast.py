@@ -1,0 +1,160 @@
+"""The fast path of the adiabatic equilibrium (the T-unknown Newton, gibbsmin/energy/enthalpy_newton.py).
+
+Reference answers: Cantera 3.2 (Goodwin, Moffat, Schoegl, Speth and Weber,
+2025), ``ThermoPhase.equilibrate("HP", rtol=1e-12)`` on the same NASA
+7-coefficient data (McBride, Gordon and Reno, NASA TM-4513, 1993) handed to it
+from gibbsmin's own species files (tests/cantera_reference.py), so the
+differences are the algorithms'.  The feeds are invented plants; their
+conditions are what the trade runs (common practice, no source).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+import gibbsmin
+from cantera_reference import cantera_gas, cantera_species
+from gibbsmin.energy.enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH
+
+BAR = 1.0e5
+ATM = 101325.0
+
+#: Outlet temperature within this of Cantera's, [K]; mole fractions within this relative, above 1e-12.
+T_TOLERANCE = 1e-6
+Y_TOLERANCE = 1e-9
+Y_FLOOR = 1e-12
+
+# name, feed [mol], T_feed [K], P [Pa], species set
+CASES = [
+    # An invented prereformer: natural gas with a little ethane and recycle H2, S/C 3, 500 degC, 25 bar.
+    ("prereformer", {"CH4": 1.0, "H2O": 3.0, "H2": 0.05, "C2H6": 0.04}, 773.15, 25 * BAR,
+     ["H2", "H2O", "CO", "CO2", "CH4", "N2", "C2H6", "NH3", "O2"]),
+    # An invented naphtha prereformer (butane and propane as the heavy end), 480 degC, 30 bar.
+    ("naphtha prereformer", {"CH4": 0.2, "C2H6": 0.1, "C3H8": 0.1, "nC4H10": 0.05, "H2O": 2.5, "H2": 0.1},
+     753.15, 30 * BAR, ["CH4", "C2H6", "C3H8", "nC4H10", "H2O", "H2", "CO", "CO2"]),
+    # An invented ammonia plant's methanator: 0.4 % CO and 0.1 % CO2 left after CO2 removal, 300 degC, 28 bar
+    # (NH3 left out: the catalyst does not make it).
+    ("methanator", {"H2": 0.74, "N2": 0.245, "CO": 0.004, "CO2": 0.001, "CH4": 0.008, "Ar": 0.003, "H2O": 0.002},
+     573.15, 28 * BAR, ["H2", "N2", "CO", "CO2", "CH4", "Ar", "H2O"]),
+    # An invented high-temperature shift bed, 350 degC, 30 bar; shift only (no methane in the set).
+    ("HT shift", {"H2": 0.38, "CO": 0.12, "CO2": 0.05, "N2": 0.005, "H2O": 0.45}, 623.15, 30 * BAR,
+     ["H2", "CO", "CO2", "N2", "H2O"]),
+    # A stoichiometric methane/air flame (air as 21 % O2, 79 % N2) at 1 atm with its radicals and NOx.
+    ("methane/air flame", {"CH4": 1.0, "O2": 2.0, "N2": 7.52}, 298.15, ATM,
+     ["CH4", "O2", "N2", "CO2", "H2O", "CO", "H2", "OH", "H", "O", "NO", "HO2", "N", "NO2", "N2O"]),
+]
+
+
+def cantera_hp(species, feed, T_feed, P):
+    """Cantera 3.2's HP equilibrium of the feed at T_feed and P on the same NASA data."""
+    gas = cantera_gas(species)
+    gas.TPX = T_feed, P, feed
+    gas.equilibrate("HP", rtol=1e-12, max_steps=10000)
+    return gas
+
+
+@pytest.mark.parametrize("name, feed, T_feed, P, species", CASES, ids=[c[0] for c in CASES])
+def test_fast_path_matches_cantera_hp(name, feed, T_feed, P, species):
+    eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species)
+    assert eq.extras[PATH_KEY] == ENTHALPY_NEWTON
+    assert eq.extras["T_evaluations"] == 2
+    assert eq.specification == "H and P"
+    assert eq.certificate.certified, eq.certificate.summary()
+    assert eq.extras["energy_balance_residual"] <= 1e-11
+    # Source: Cantera 3.2 equilibrate("HP") on the same NASA 7-coefficient data.
+    gas = cantera_hp(species, feed, T_feed, P)
+    assert abs(eq.T - gas.T) <= T_TOLERANCE
+    for s, x in zip(gas.species_names, gas.X):
+        if x > Y_FLOOR:
+            assert eq.mole_fractions[s] == pytest.approx(x, rel=Y_TOLERANCE), s
+
+
+def test_fast_path_answers_the_same_through_a_prepared_specification():
+    name, feed, T_feed, P, species = CASES[0]
+    plain = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species)
+    prepared = gibbsmin.prepare(species=species).equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True)
+    assert prepared.T == plain.T
+    assert prepared.amounts == plain.amounts
+    assert prepared.extras[PATH_KEY] == ENTHALPY_NEWTON
+
+
+def test_fast_path_with_heat_added_matches_cantera_hp():
+    # The invented prereformer with 20 kJ per mol of methane added through its wall.
+    name, feed, T_feed, P, species = CASES[0]
+    heat = 20e3
+    eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, heat_input=heat, species=species)
+    assert eq.extras[PATH_KEY] == ENTHALPY_NEWTON
+    gas = cantera_gas(species)
+    gas.TPX = T_feed, P, feed
+    mass = gas.mean_molecular_weight * sum(feed.values()) / 1000.0   # kg
+    gas.HP = gas.enthalpy_mass + heat / mass, P
+    gas.equilibrate("HP", rtol=1e-12, max_steps=10000)
+    # Source: Cantera 3.2 equilibrate("HP") on the same NASA 7-coefficient data.
+    assert abs(eq.T - gas.T) <= T_TOLERANCE
+    for s, x in zip(gas.species_names, gas.X):
+        if x > Y_FLOOR:
+            assert eq.mole_fractions[s] == pytest.approx(x, rel=Y_TOLERANCE), s
+
+
+def _g_RT(name: str, T: float) -> float:
+    """g0/RT of a species by Cantera's evaluation of its NASA polynomials (J/kmol inside Cantera)."""
+    thermo = cantera_species(name).thermo
+    return (thermo.h(T) - T * thermo.s(T)) / (8314.46261815324 * T)
+
+
+def test_graphite_vanishing_on_the_way_falls_back_to_the_search():
+    # Invented partial oxidation of methane with 0.6 O2 per CH4, both at 25 degC, 1 atm: graphite is stable
+    # at the feed temperature, where the fast path starts, and gone at the adiabatic outlet.
+    feed = {"CH4": 1.0, "O2": 0.6}
+    gas_species = ["CH4", "O2", "CO", "CO2", "H2", "H2O"]
+    eq = gibbsmin.equilibrate(feed, P=ATM, T_feed=298.15, adiabatic=True, species=[*gas_species, "C(s)"])
+    assert eq.extras[PATH_KEY] == SEARCH
+    assert eq.certificate.certified, eq.certificate.summary()
+    assert eq.amounts["C(s)"] == 0.0
+    # Source: Cantera 3.2 equilibrate("HP") on the same NASA data, gas only; and carbon's potential in that
+    # gas (Boudouard, 2 CO = C + CO2: mu_C = 2 mu_CO - mu_CO2) below graphite's g0 (graphite would not form).
+    gas = cantera_hp(gas_species, feed, 298.15, ATM)
+    assert abs(eq.T - gas.T) <= T_TOLERANCE
+    for s, x in zip(gas.species_names, gas.X):
+        if x > Y_FLOOR:
+            assert eq.mole_fractions[s] == pytest.approx(x, rel=Y_TOLERANCE), s
+    mu = gas.chemical_potentials / (8314.46261815324 * gas.T)
+    mu_C = 2.0 * mu[gas.species_index("CO")] - mu[gas.species_index("CO2")]
+    assert mu_C < _g_RT("C(s)", gas.T) - 1e-3
+
+
+def test_liquid_water_appearing_falls_back_to_the_search():
+    # An invented methanator outlet gas with 20 % steam cooled from 300 degC by 20 kJ: water condenses.
+    feed = {"H2": 0.74, "N2": 0.245, "CO": 0.004, "CO2": 0.001, "CH4": 0.008, "H2O": 0.2}
+    P = 28 * BAR
+    eq = gibbsmin.equilibrate(feed, P=P, T_feed=573.15, heat_input=-20e3,
+                              species=["H2", "N2", "CO", "CO2", "CH4", "H2O", "H2O(l)"])
+    assert eq.extras[PATH_KEY] == SEARCH
+    assert eq.certificate.certified, eq.certificate.summary()
+    assert eq.amounts["H2O(l)"] > 0.0
+    assert eq.extras["energy_balance_residual"] <= 1e-9
+    # With liquid water present the steam in the gas is at its vapour pressure: y P / P0 = exp(g_l - g_g)/RT,
+    # both potentials from Cantera 3.2's evaluation of the same NASA polynomials.
+    vapour = math.exp(_g_RT("H2O(l)", eq.T) - _g_RT("H2O", eq.T))
+    assert eq.mole_fractions["H2O"] * P / 1e5 == pytest.approx(vapour, rel=1e-9)
+
+
+def test_cubic_gas_and_held_approach_do_not_take_the_fast_path():
+    # The fast path holds only the ideal gas with plain standard potentials (common practice, no source:
+    # the scope this path is built for).
+    name, feed, T_feed, P, species = CASES[0]
+    cubic = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species, gas="peng-robinson")
+    assert cubic.extras[PATH_KEY] == SEARCH
+    held = gibbsmin.equilibrate_with_approach(feed, None, P, {"water-gas shift": 10.0}, T_feed=T_feed,
+                                              adiabatic=True, species=species)
+    assert held.extras[PATH_KEY] == SEARCH
+
+
+def test_method_convex_keeps_the_search():
+    name, feed, T_feed, P, species = CASES[3]
+    eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species, method="convex")
+    assert eq.extras[PATH_KEY] == SEARCH
+    assert np.isfinite(eq.T)
