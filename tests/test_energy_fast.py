@@ -17,7 +17,9 @@ import pytest
 
 import gibbsmin
 from cantera_reference import cantera_gas, cantera_species
-from gibbsmin.energy.enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH
+from gibbsmin.energy.enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, equilibrium_heat_capacity
+from gibbsmin.settle import prepare, solve_fixed
+from test_energy_cantera import cantera_enthalpy, cantera_tp_vcs
 
 BAR = 1.0e5
 ATM = 101325.0
@@ -158,3 +160,28 @@ def test_method_convex_keeps_the_search():
     eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species, method="convex")
     assert eq.extras[PATH_KEY] == SEARCH
     assert np.isfinite(eq.T)
+
+
+@pytest.mark.parametrize("species, feed, T, P", [
+    # An invented reformer gas at S/C 3 and one at S/C 0.3 with graphite present, 25 bar (away from the NASA
+    # polynomials' 1000 K joint, where cp has a kink).
+    (["H2", "H2O", "CO", "CO2", "CH4", "N2"], {"CH4": 1.0, "H2O": 3.0, "N2": 0.01}, 950.0, 25 * BAR),
+    (["H2", "H2O", "CO", "CO2", "CH4", "C(s)"], {"CH4": 1.0, "H2O": 0.3}, 900.0, 25 * BAR),
+], ids=["gas only", "with graphite"])
+def test_lean_equilibrium_heat_capacity_matches_cantera_differences(species, feed, T, P):
+    setup = prepare(feed, species=species, T_span=(T - 1.0, T + 1.0))
+    eq, problem, result = solve_fixed(setup, T, P)
+    assert ("C(s)" in species) == (eq.amounts.get("C(s)", 0.0) > 0.0)
+    cp = equilibrium_heat_capacity(setup, problem, result, T, P)
+    gases = [s for s in species if "(" not in s]
+    condensed = [s for s in species if "(" in s]
+
+    def H(T_i):
+        # Cantera 3.2's equilibrium at T_i on the same NASA data (VCS where graphite may form), its enthalpy
+        # by Cantera's evaluation of each species' polynomials.
+        mix = cantera_tp_vcs(gases, condensed, feed, T_i, P)
+        amounts = {s: n * 1000.0 for s, n in zip(mix.species_names, mix.species_moles)}
+        return cantera_enthalpy(amounts, T_i)
+    dT = 0.05
+    # Source: central difference of Cantera 3.2's equilibrium enthalpy (error of order dT^2 H''' / 6).
+    assert cp == pytest.approx((H(T + dT) - H(T - dT)) / (2 * dT), rel=1e-6)

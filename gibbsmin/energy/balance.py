@@ -18,7 +18,7 @@ from ..solve import SolverResult
 from ..solve import _enthalpy_kernel as enthalpy_kernel
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
-from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, solve_at_fixed_enthalpy
+from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, equilibrium_heat_capacity, solve_at_fixed_enthalpy
 from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
 
 
@@ -220,7 +220,7 @@ class _Search:
         system = self.setup.system
         n = state_amounts(self.setup, eq)
         H = enthalpy(system.table, system.n_gas, n, T, self.P, self.residual_enthalpy)
-        cp = sensitivity.equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
+        cp = equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
         point = _Point(T, eq, problem, result, H, H - self.H_target, cp)
         self.points.append(point)
         return point

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import sensitivity
 from ..equilibrium import Equilibrium
 from ..settle import Setup, fixed_problem, to_equilibrium
 from ..solve import SolverResult, certify
@@ -85,3 +86,19 @@ def solve_at_fixed_enthalpy(setup: Setup, H_target: float, P: float, T_start: fl
         return None
     eq = to_equilibrium(setup, problem, result, certificates, 0, T, P, specification="H and P")
     return eq, problem, result
+
+
+def equilibrium_heat_capacity(setup: Setup, problem: Problem, result: SolverResult, T: float, P: float) -> float:
+    """dH/dT of a solved fixed-T,P point at fixed P [J/K], the composition shifting; NaN where the phases fix T.
+
+    The temperature column alone of ``sensitivity.equilibrium_sensitivities``, compiled; that full
+    computation where the compiled system cannot be solved.
+    """
+    low, high, T_mid, _, _ = _kept_table(setup, problem)
+    cp = kernel.equilibrium_heat_capacity(
+        np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, float(problem.b[0].sum()),
+        np.ascontiguousarray(result.ln_n_gas[0]), np.ascontiguousarray(result.n_condensed[0]),
+        np.ascontiguousarray(result.present[0]), low, high, T_mid, float(T))
+    if cp == kernel.UNSOLVED:
+        return sensitivity.equilibrium_heat_capacity(setup, problem, result, T, P)
+    return cp

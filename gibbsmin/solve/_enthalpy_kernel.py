@@ -84,6 +84,119 @@ def frozen_temperature(low, high, T_mid, n, H, T_low, T_high):
     return T
 
 
+#: Columns [A n_gas, A_c] dependent to this relative precision: the phases fix T (as ``sensitivity._DEPENDENT``).
+_DEPENDENT = 1e-9
+#: What ``equilibrium_heat_capacity`` returns where its linear system could not be solved.
+UNSOLVED = -1.0
+
+
+@compiled()
+def equilibrium_heat_capacity(A, n_gas, b_total, ln_n_gas, n_condensed, present, low, high, T_mid, T):
+    """dH/dT [J/K] of a solved fixed-T,P point on its phase set, the composition shifting; NaN where the phases
+    fix T, ``UNSOLVED`` where the system could not be solved.
+
+    The derivative of the fixed-T conditions with respect to T (d mu0_j/dT = -h_j/(R T^2)): the bordered
+    system of ``sensitivity.equilibrium_sensitivities`` with its temperature column alone, amounts scaled
+    to sum(b) = 1 (b_total, [mol]).  Singular exactly when [A n_gas, A_c] are dependent (the phase rule leaving no freedom
+    in T), which is tested on those columns as there.
+    """
+    M, S = A.shape
+    G = n_gas
+    C = S - G
+    m = 0
+    for c in range(C):
+        if present[c]:
+            m += 1
+    where = np.empty(m, dtype=np.int64)
+    i = 0
+    for c in range(C):
+        if present[c]:
+            where[i] = c
+            i += 1
+    t = np.empty(1)
+    t[0] = T
+    h = np.empty((1, S))
+    cp = np.empty((1, S))
+    polynomials(low, high, T_mid, t, ENTHALPY, h)
+    polynomials(low, high, T_mid, t, HEAT_CAPACITY, cp)
+    n_g = np.empty(G)
+    frozen = 0.0
+    for j in range(G):
+        n_g[j] = math.exp(ln_n_gas[j])
+        frozen += n_g[j] * cp[0, j]
+    for c in range(C):
+        frozen += n_condensed[c] * cp[0, G + c]
+    frozen *= R
+    scale = b_total
+    if not scale > 0.0:
+        return UNSOLVED
+    nu = n_g / scale
+    columns = np.zeros((M, m + 1))
+    for k in range(M):
+        for j in range(G):
+            columns[k, 0] += A[k, j] * nu[j]
+        for i in range(m):
+            columns[k, i + 1] = A[k, G + where[i]]
+    kept = 0
+    for i in range(m + 1):
+        norm = 0.0
+        for k in range(M):
+            norm += columns[k, i] ** 2
+        norm = math.sqrt(norm)
+        if norm > 0.0:
+            for k in range(M):
+                columns[k, kept] = columns[k, i] / norm
+            kept += 1
+    if kept == 0:
+        return UNSOLVED
+    singular_values = np.linalg.svd(np.ascontiguousarray(columns[:, :kept]))[1]
+    if not singular_values[-1] >= _DEPENDENT * singular_values[0]:
+        return math.nan
+    K = M + 1 + m
+    J = np.zeros((K, K))
+    rhs = np.zeros(K)
+    x = np.empty(K)
+    m_gas = np.empty(G)
+    for j in range(G):
+        m_gas[j] = -h[0, j] / T
+    for k in range(M):
+        for i in range(k, M):
+            value = 0.0
+            for j in range(G):
+                value += A[k, j] * A[i, j] * nu[j]
+            J[k, i] = value
+            J[i, k] = value
+        columns_sum = 0.0
+        for j in range(G):
+            columns_sum += A[k, j] * nu[j]
+            rhs[k] += A[k, j] * nu[j] * m_gas[j]
+        J[k, M] = columns_sum
+        J[M, k] = columns_sum
+        for i in range(m):
+            J[k, M + 1 + i] = A[k, G + where[i]]
+            J[M + 1 + i, k] = A[k, G + where[i]]
+    for j in range(G):
+        rhs[M] += nu[j] * m_gas[j]
+    for i in range(m):
+        rhs[M + 1 + i] = -h[0, G + where[i]] / T
+    for i in range(K):
+        for k in range(K):
+            if not math.isfinite(J[i, k]):
+                return math.nan
+    if not _lu_solve(J, rhs, x):
+        return UNSOLVED
+    # dH/dT = frozen + sum_j H_j dn_j/dT, H_j = R T h_j.
+    shift = 0.0
+    for j in range(G):
+        d_ln = x[M] - m_gas[j]
+        for k in range(M):
+            d_ln += A[k, j] * x[k]
+        shift += h[0, j] * scale * nu[j] * d_ln
+    for i in range(m):
+        shift += h[0, G + where[i]] * scale * x[M + 1 + i]
+    return frozen + R * T * shift
+
+
 @compiled()
 def _allowed_at(T_min_c, T_max_c, T, extrapolate, allowed_c):
     for c in range(allowed_c.size):
