@@ -31,7 +31,7 @@ import numpy as np
 from ..compiled import compiled
 from ..system import P_REF
 from ..thermo.nasa7 import ENTHALPY, GIBBS, HEAT_CAPACITY, R, polynomials
-from ._newton_kernel import CONVERGED, LN_LIFT, LN_TRACE, _lu_solve, iterate_point
+from ._newton_kernel import CONVERGED, _lu_solve, iterate_point, step_limits
 
 # Outcomes of ``run`` beyond the Newton kernel's CONVERGED, NOT_CONVERGED, SINGULAR and CYCLING.
 START_FAILED = 10       # the fixed-T solve at the starting temperature did not converge
@@ -43,6 +43,19 @@ LAST_SOLVE_FAILED = 15  # the fixed-T solve at the temperature found did not con
 
 #: Step on ln T allowed in one iteration: a factor of about 1.5 on T.
 _MAX_D_LN_T = 0.4
+
+
+@compiled()
+def _gas_block(A_g, n, J):
+    """J[:M, :M] = A_g diag(n) A_g^T: the gas's block of every element-potential system here."""
+    M, G = A_g.shape
+    for k in range(M):
+        for i in range(k, M):
+            value = 0.0
+            for j in range(G):
+                value += A_g[k, j] * A_g[i, j] * n[j]
+            J[k, i] = value
+            J[i, k] = value
 
 
 @compiled()
@@ -159,13 +172,8 @@ def equilibrium_heat_capacity(A, n_gas, b_total, ln_n_gas, n_condensed, present,
     m_gas = np.empty(G)
     for j in range(G):
         m_gas[j] = -h[0, j] / T
+    _gas_block(np.ascontiguousarray(A[:, :G]), nu, J)
     for k in range(M):
-        for i in range(k, M):
-            value = 0.0
-            for j in range(G):
-                value += A[k, j] * A[i, j] * nu[j]
-            J[k, i] = value
-            J[i, k] = value
         columns_sum = 0.0
         for j in range(G):
             columns_sum += A[k, j] * nu[j]
@@ -262,6 +270,7 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
         for i in range(K):
             for k in range(K):
                 J[i, k] = 0.0
+        _gas_block(A_g, n_g, J)
         balanced = True
         for k in range(M):
             s_an = 0.0
@@ -273,12 +282,6 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
                 s_anh += A_g[k, j] * n_g[j] * h[j]
                 s_abs += abs(A_g[k, j]) * n_g[j]
                 s_rhs += A_g[k, j] * n_g[j] * mu_g[j]
-            for i in range(k, M):
-                s = 0.0
-                for j in range(G):
-                    s += A_g[k, j] * A_g[i, j] * n_g[j]
-                J[k, i] = s
-                J[i, k] = s
             cond = 0.0
             for c in range(C):
                 if active[c]:
@@ -334,20 +337,12 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
         d_ln_N = x[iN]
         d_ln_T = x[iT]
         # Step length (Gordon and McBride 1994, eqs. 3.1 to 3.3, with ln T among the major unknowns).
-        biggest = 5.0 * max(abs(d_ln_N), abs(d_ln_T))
-        lam2 = 1.0
-        worst = 0.0
         for j in range(G):
             d = -mu_g[j] + d_ln_N + h[j] * d_ln_T
             for k in range(M):
                 d += A_g[k, j] * x[k]
             d_ln_n[j] = d
-            ln_y = ln_n[j] - ln_N
-            worst = max(worst, abs(d) * math.exp(min(0.0, max(ln_y, ln_y + d - d_ln_N))))
-            if ln_y > LN_TRACE:
-                biggest = max(biggest, abs(d))
-            elif d - d_ln_N > 0.0:
-                lam2 = min(lam2, abs((LN_LIFT - ln_y) / (d - d_ln_N)))
+        biggest, lam2, worst = step_limits(ln_n, ln_N, d_ln_n, d_ln_N, 5.0 * max(abs(d_ln_N), abs(d_ln_T)))
         if not (math.isfinite(worst) and math.isfinite(d_ln_T)):
             return T, iteration, HP_NOT_CONVERGED
         lam = 1.0
