@@ -41,10 +41,6 @@ OUT_OF_RANGE = 13       # T left the bounds, or a present condensed species' dat
 HP_NOT_CONVERGED = 14   # the T-unknown Newton did not settle
 LAST_SOLVE_FAILED = 15  # the fixed-T solve at the temperature found did not converge
 
-#: Step on ln T allowed in one iteration: a factor of about 1.5 on T.
-_MAX_D_LN_T = 0.4
-
-
 @compiled()
 def _gas_block(A_g, n, J):
     """J[:M, :M] = A_g diag(n) A_g^T: the gas's block of every element-potential system here."""
@@ -336,7 +332,8 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
             pi[k] = x[k]
         d_ln_N = x[iN]
         d_ln_T = x[iT]
-        # Step length (Gordon and McBride 1994, eqs. 3.1 to 3.3, with ln T among the major unknowns).
+        # Step length (Gordon and McBride 1994, eqs. 3.1 to 3.3, with ln T among the major unknowns: at most
+        # a factor e^0.4 on T in one step).
         for j in range(G):
             d = -mu_g[j] + d_ln_N + h[j] * d_ln_T
             for k in range(M):
@@ -349,8 +346,6 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
         if biggest > 2.0:
             lam = 2.0 / biggest
         lam = min(lam, lam2)
-        if abs(lam * d_ln_T) > _MAX_D_LN_T:
-            lam = _MAX_D_LN_T / abs(d_ln_T)
         if lam <= 0.0:
             lam = 1.0
         worst_c = 0.0
