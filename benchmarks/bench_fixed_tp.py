@@ -26,7 +26,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
 import gibbsmin  # noqa: E402
 from cantera_reference import cantera_gas, cantera_pure  # noqa: E402
-from gibbsmin.settle import build_problem, prepare  # noqa: E402
+from gibbsmin.fixed_step import build_problem, prepare  # noqa: E402
 from gibbsmin.solve import solve  # noqa: E402
 
 FEED = {"CH4": 1.0, "H2O": 2.5, "N2": 0.02, "Ar": 0.001, "C2H6": 0.05}

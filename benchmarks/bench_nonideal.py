@@ -36,7 +36,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
 import gibbsmin  # noqa: E402
 from gibbsmin.nonideal import gas_phase, solve_nonideal  # noqa: E402
-from gibbsmin.settle import prepare, solve_fixed  # noqa: E402
+from gibbsmin.fixed_step import prepare, solve_fixed  # noqa: E402
 from test_nonideal_cantera import cantera_peng_robinson  # noqa: E402
 
 FEED = {"H2": 0.62, "N2": 0.21, "NH3": 0.04, "CH4": 0.08, "Ar": 0.05}

@@ -37,7 +37,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
 import gibbsmin  # noqa: E402
 from cantera_reference import cantera_gas, cantera_pure  # noqa: E402
-from gibbsmin.settle import build_problem, prepare as feed_setup  # noqa: E402
+from gibbsmin.fixed_step import build_problem, prepare as feed_setup  # noqa: E402
 from gibbsmin.solve import solve  # noqa: E402
 from test_nonideal_cantera import cantera_peng_robinson  # noqa: E402
 

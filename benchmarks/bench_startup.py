@@ -74,7 +74,7 @@ def _in_process(repeat: int) -> dict[str, float]:
     """The reformer case settled in this (warm) process, its one solve, and the kernel alone on that problem."""
     import gibbsmin
     from gibbsmin.case import read_case, settle_case
-    from gibbsmin.settle import build_problem, prepare
+    from gibbsmin.fixed_step import build_problem, prepare
     from gibbsmin.solve import solve
 
     case = read_case(CASE)

@@ -10,7 +10,10 @@ from .errors import UnknownSpeciesError as UnknownSpeciesError
 from .carbon import carbon_activity as carbon_activity
 from .carbon import carbon_limit as carbon_limit
 from .carbon import carbon_limit_curve as carbon_limit_curve
+from .equilibrium import EnergyFigures as EnergyFigures
 from .equilibrium import Equilibrium as Equilibrium
+from .equilibrium import GasModelState as GasModelState
+from .equilibrium import Restriction as Restriction
 from .formula import molar_mass as molar_mass
 from .formula import parse_formula as parse_formula
 from .reactions import Reaction as Reaction
@@ -26,5 +29,4 @@ from .prepared import prepare as prepare
 from .solve.certificate import Certificate as Certificate
 from .thermo import default_database as default_database
 from .thermo import formation_properties as formation_properties
-
-__version__ = "0.1.0"
+from .version import __version__ as __version__

@@ -120,7 +120,7 @@ def equilibrate(
     db : SpeciesDatabase, optional
     data : str, optional
         The thermochemical data set by name (``gibbsmin.thermo.DATA_SETS``):
-        "nasa-1993" (the default) or "atct-anchored"; not with a ``db`` of
+        "atct-anchored" (the default) or "nasa-1993"; not with a ``db`` of
         another set.  The result's ``extras["data_set"]`` names the one used.
     allow_extrapolation : bool
         Use polynomials outside their fitted temperature ranges.

@@ -19,9 +19,20 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from . import __version__
+from tqdm import tqdm
+
+from . import audit
+from .case import CASE_KEYS, read_case, settle_case
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
+from .formula import ATOMIC_WEIGHTS
+from .report.audit import audit_document, audit_report
+from .report.document import VERDICTS
+from .report.files import write_report_files
+from .report.settle import settle_document, settle_report
+from .report.text import render_text
 from .sweep import command as sweep_command
+from .thermo import default_database
+from .version import __version__
 
 #: Exit codes.
 OK, CHECKS_FAILED, BAD_INPUT, NOT_CERTIFIED, INTERRUPTED = 0, 1, 2, 3, 130
@@ -123,8 +134,6 @@ def _add_outputs(parser: argparse.ArgumentParser) -> None:
 
 
 def _write_outputs(report, args: argparse.Namespace) -> list[Path]:
-    from .report.files import write_report_files
-
     return write_report_files(report, csv=args.csv, xlsx=args.xlsx, html=args.html)
 
 
@@ -134,8 +143,6 @@ def _print_json(document: dict) -> None:
 
 def _progress(total: int, what: str):
     """A progress display on stderr for runs of several steps (silent when stderr is not a terminal)."""
-    from tqdm import tqdm
-
     return tqdm(total=total, desc=what, unit="step", file=sys.stderr, disable=None, leave=False)
 
 
@@ -153,16 +160,8 @@ def _ticker(bar) -> Callable[[str], None]:
 
 
 def _settle(args: argparse.Namespace) -> int:
-    from .case import CASE_KEYS, read_case, settle_case
-    from .report.settle import settle_document, settle_report
-    from .report.text import render_text
-
     if args.keys:
-        from .case import FEATURES, KEY_NEEDS
-
-        status = {key: f"{FEATURES[need].module}: {'available' if FEATURES[need].available() else 'NOT AVAILABLE YET'}"
-                  for key, need in KEY_NEEDS.items()}
-        sys.stdout.write(_keys_text({**CASE_KEYS, "keys that need a module": status}))
+        sys.stdout.write(_keys_text(CASE_KEYS))
         return OK
     if args.case is None:
         raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")
@@ -182,8 +181,6 @@ def _settle(args: argparse.Namespace) -> int:
 
 def _worst_verdict(report) -> str:
     """The worst verdict in any verdict column of a report's tables ("pass" where there is none)."""
-    from .report.document import VERDICTS
-
     found = [row[i] for table in report.tables for i, column in enumerate(table.columns)
              if column.style == "verdict" for row in table.rows]
     return max((v for v in found if v in VERDICTS), key=VERDICTS.index, default="pass")
@@ -208,9 +205,6 @@ def _keys_text(keys: dict[str, dict[str, str]]) -> str:
 
 
 def _species(args: argparse.Namespace) -> int:
-    from .formula import ATOMIC_WEIGHTS
-    from .thermo import default_database
-
     if args.element is not None and args.element not in ATOMIC_WEIGHTS:
         folded = [e for e in ATOMIC_WEIGHTS if e.casefold() == args.element.casefold()]
         hint = f"; did you mean {folded[0]}?" if folded else "; give an element symbol such as C, H, O, N or S"
@@ -242,10 +236,6 @@ def _species(args: argparse.Namespace) -> int:
 
 
 def _audit(args: argparse.Namespace) -> int:
-    from . import audit
-    from .report.audit import audit_document, audit_report
-    from .report.text import render_text
-
     if args.keys:
         sys.stdout.write(_keys_text(audit.AUDIT_KEYS))
         return OK

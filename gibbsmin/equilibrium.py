@@ -15,6 +15,106 @@ WATER = "H2O"
 
 
 @dataclass(frozen=True)
+class EnergyFigures:
+    """The energy figures of an answer, [J and J/K per the feed amounts given; W and W/K for mol/s].
+
+    Attributes
+    ----------
+    enthalpy_J, entropy_J_per_K : float
+        Of the outlet (with a cubic gas, its residual parts included in the enthalpy).
+    feed_temperatures_K : mapping or None
+        Feed stream (or species) to its temperature, where the feed's were given.
+    feed_enthalpy_J : float or None
+        Of the inlet, each stream at its own temperature.
+    duty_W : float or None
+        Heat added to the reactor (negative: removed); positive = heat added.
+    balance_residual : float or None
+        |H_out - H_in - duty| over the gross enthalpy.
+    T_evaluations : int or None
+        Fixed-T solves the energy balance took (None at a fixed T).
+    balance_path : str or None
+        How the energy balance was solved: "enthalpy-pressure Newton" (T among the Newton's unknowns, the
+        plain ideal gas on one phase set) or "temperature search" (bracketed, phase changes and plateaus
+        included); None at a fixed T.
+    phase_boundary : mapping or None
+        Where coexisting phases fix the outlet T (a plateau), as the energy balance reports it.
+    enthalpy_kink : mapping or None
+        Where a cubic's enthalpy jumps at the outlet (its alpha function's minimum), with the jump.
+    balance_miss_K : float or None
+        How far the outlet would move were that jump smooth, [K].
+    """
+
+    enthalpy_J: float
+    entropy_J_per_K: float
+    feed_temperatures_K: Mapping[str, float | None] | None = None
+    feed_enthalpy_J: float | None = None
+    duty_W: float | None = None
+    balance_residual: float | None = None
+    T_evaluations: int | None = None
+    balance_path: str | None = None
+    phase_boundary: Mapping[str, object] | None = None
+    enthalpy_kink: Mapping[str, object] | None = None
+    balance_miss_K: float | None = None
+
+
+@dataclass(frozen=True)
+class GasModelState:
+    """What a cubic gas model found at the answer's gas (an ideal-gas answer has none).
+
+    Attributes
+    ----------
+    fugacity_coefficients : mapping
+        Gas species to phi [-] at the answer's composition.
+    compressibility_factor : float
+        Z [-].
+    residual_enthalpy_J, residual_entropy_J_per_K : float
+        Departures from the ideal gas.
+    iterations : int
+        Frozen-phi solves of the outer loop.
+    ln_phi_change : float
+        The loop's last change of ln phi [-].
+    note : str
+        The model, its kij and the species it treats as ideal.
+    binary_interactions : mapping
+        "A-B" to the non-zero kij in use.
+    stability : mapping or None
+        The one-phase stability record (tested, stable, distance, would_form, note).
+    """
+
+    fugacity_coefficients: Mapping[str, float]
+    compressibility_factor: float
+    residual_enthalpy_J: float
+    residual_entropy_J_per_K: float
+    iterations: int
+    ln_phi_change: float
+    note: str
+    binary_interactions: Mapping[str, float]
+    stability: Mapping[str, object] | None = None
+
+
+@dataclass(frozen=True)
+class Restriction:
+    """What a restricted answer held: reactions at an approach, species frozen.
+
+    Attributes
+    ----------
+    approach_K : mapping
+        Held reaction to its approach, [K] (positive: short of equilibrium).
+    settling_temperature_K : mapping
+        Held reaction to the temperature whose K it settled at, [K].
+    reactions_at_equilibrium : tuple of str
+        The other reactions of the complete independent set, as equations.
+    frozen_mol : mapping
+        Frozen species to the amount it was held at, [mol].
+    """
+
+    approach_K: Mapping[str, float]
+    settling_temperature_K: Mapping[str, float]
+    reactions_at_equilibrium: tuple[str, ...]
+    frozen_mol: Mapping[str, float]
+
+
+@dataclass(frozen=True)
 class Equilibrium:
     """The equilibrium state of one problem.
 
@@ -44,8 +144,18 @@ class Equilibrium:
     omitted : dict
         Species of the default set left out, with the reason.
     extras : dict
-        Further results by name (duty, approach temperatures, ...) filled in by
-        the layers above the core.
+        Every further result by name, as JSON-ready values (duty, approach
+        temperatures, ...): the typed fields below flattened, and the notes
+        of the layers above the core (a case stage's scope, say).
+    data_set : str
+        The thermochemical data set the answer was computed with.
+    energy : EnergyFigures or None
+        Outlet enthalpy and entropy; with feed temperatures the duty and the
+        energy balance.
+    gas : GasModelState or None
+        What a cubic gas model found (None for the ideal gas).
+    restriction : Restriction or None
+        What a restricted equilibrium held (``equilibrate_with_approach``).
     uncertainty : dict or None
         Species name to the standard uncertainty of its amount [mol] from the
         data set's formation-enthalpy uncertainties (``equilibrate(...,
@@ -76,6 +186,10 @@ class Equilibrium:
     mole_fraction_uncertainty: Mapping[str, float] | None = None
     dry_mole_fraction_uncertainty: Mapping[str, float] | None = None
     T_uncertainty: float | None = None
+    data_set: str = ""
+    energy: EnergyFigures | None = None
+    gas: GasModelState | None = None
+    restriction: Restriction | None = None
 
     @property
     def species(self) -> tuple[str, ...]:

@@ -33,17 +33,18 @@ from numpy.typing import NDArray
 
 from . import energy, nonideal, sensitivity
 from .eos.interactions import InteractionTable
-from .equilibrium import Equilibrium
+from .equilibrium import Equilibrium, Restriction
 from .errors import InputError
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
-from .settle import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
+from .fixed_step import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
                      positive_number, setup_on, solve_fixed)
 from .solve import CertificateBatch, SolverResult, solve
 from .system import Problem
 from .streams import Stream
 from .thermo.database import SpeciesDatabase
+from .thermo.datasets import choose_database
 from .thermo.nasa7 import R
 from .uncertainty import Uncertainties, energy_balance_uncertainty, point_uncertainties
 
@@ -325,29 +326,32 @@ class Prepared:
             eq = dataclasses.replace(eq, specification=text)
         else:
             eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)
-        extras = energy.energy_extras(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
-                                      residual_enthalpy=residual)
-        extras["data_set"] = db.data_set
-        if not phase.is_ideal:
-            extras["gas_phase_stability"] = nonideal.stability_checked(phase, eq, stacklevel=4)
+        figures = energy.energy_figures(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
+                                        residual_enthalpy=residual)
+        extras = {**energy.energy_extras(figures), "data_set": db.data_set}
+        stability = None if phase.is_ideal else nonideal.stability_checked(phase, eq, stacklevel=4)
         if sensitivities:
             extras["sensitivities"] = self._sensitivities(setup, phase, problem, result, eq.T, P)
         if uncertainty:
             eq = self._with_uncertainties(eq, setup, problem, result, phase, complete, offsets_at,
                                           inlet.total if energy_balance else None)
-        eq = checked(energy.with_extras(eq, extras), stacklevel=4)
+        eq = checked(dataclasses.replace(eq, energy=figures, data_set=db.data_set, extras={**eq.extras, **extras}),
+                     stacklevel=4)
         if held:
             check_approaches_met(eq, held, self.ln_phi, db, spec.allow_extrapolation)
         if spec.restricted or held:
-            eq = energy.with_extras(eq, {
-                "approach K": {rx.name: dT for rx, dT in held},
-                "settling temperature K": {rx.name: settling_temperature(rx, eq.T, dT) for rx, dT in held},
-                "reactions at equilibrium": [r.equation for r in complete
-                                             if r.name not in {rx.name for rx, _ in held}],
-                "frozen mol": dict(frozen_mol),
-            })
-        # The stability verdict enters the certificate after the precision check, which judges the residuals alone.
-        return nonideal.with_stability_verdict(eq), (_start_key(setup), result)
+            restriction = Restriction(
+                approach_K={rx.name: dT for rx, dT in held},
+                settling_temperature_K={rx.name: settling_temperature(rx, eq.T, dT) for rx, dT in held},
+                reactions_at_equilibrium=tuple(r.equation for r in complete
+                                               if r.name not in {rx.name for rx, _ in held}),
+                frozen_mol=dict(frozen_mol))
+            eq = dataclasses.replace(eq, restriction=restriction, extras={**eq.extras, **restriction_extras(
+                restriction)})
+        if stability is not None:
+            # The verdict enters the certificate after the precision check, which judges the residuals alone.
+            eq = nonideal.with_stability_verdict(eq, stability)
+        return eq, (_start_key(setup), result)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:
@@ -487,6 +491,13 @@ class Prepared:
             setup, problem, result, T, data_set, amounts_at=amounts_at, offset_map=offset_map))
 
 
+def restriction_extras(restriction: Restriction) -> dict[str, object]:
+    """A restricted answer's figures by the names ``Equilibrium.extras`` has always used."""
+    return {"approach K": dict(restriction.approach_K), "settling temperature K": dict(restriction.settling_temperature_K),
+            "reactions at equilibrium": list(restriction.reactions_at_equilibrium),
+            "frozen mol": dict(restriction.frozen_mol)}
+
+
 def _start_key(setup: Setup) -> tuple[int, bytes]:
     """What a warm start must share with the point it starts: the System, and which elements are present."""
     return id(setup.system), (setup.b > 1e-14 * max(float(setup.b.max()), 1e-300)).tobytes()
@@ -518,8 +529,6 @@ def prepare(*, species: Sequence[str] | None = None, exclude: Sequence[str] = ()
     >>> round(eq.mole_fractions["H2"], 3) > 0.4
     True
     """
-    from .thermo.datasets import choose_database
-
     restricted = bool(approach) or frozen is not None or bool(reactions) or ln_phi is not None
     specification = Specification.of(
         species=species, exclude=exclude, inert=inert, frozen=frozen, approach=approach, reactions=reactions,

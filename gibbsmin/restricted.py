@@ -46,7 +46,7 @@ from numpy.typing import NDArray
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError
 from .reactions import Reaction, approach_temperatures, gas_state
-from .settle import Setup, finite_number
+from .fixed_step import Setup, finite_number
 from .system import System
 from .thermo.database import SpeciesDatabase
 from .thermo.nasa7 import R
@@ -78,7 +78,7 @@ def reaction_offsets(system: System, reactions: Sequence[Reaction], ln_K_shift: 
     Returns
     -------
     ndarray, shape (S,)
-        Offsets in the system's species order, for ``settle.solve_fixed(..., offsets=...)``.
+        Offsets in the system's species order, for ``fixed_step.solve_fixed(..., offsets=...)``.
     """
     if not reactions:
         return np.zeros(len(system.names))

@@ -189,13 +189,18 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     out once per System and kept (``System.reductions``).
     """
     b = np.atleast_2d(np.asarray(b, dtype=float))
-    scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
-    present = (b / scale) > 1e-14
-    if present.shape[0] > 1 and not np.all(present == present[0]):
-        raise InputError("every point of a batch must contain the same elements; split the batch by element set")
-    present = present[0]
     allowed = np.atleast_2d(allowed)
-    key = (present.tobytes(), allowed.any(axis=0).tobytes())
+    if b.shape[0] == 1:
+        present = b[0] > 1e-14 * max(float(np.abs(b[0]).max()), 1e-300)
+        key = (present.tobytes(), allowed[0].tobytes())
+    else:
+        scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
+        every = (b / scale) > 1e-14
+        if not np.all(every == every[0]):
+            raise InputError("every point of a batch must contain the same elements; split the batch by element "
+                             "set")
+        present = every[0]
+        key = (present.tobytes(), allowed.any(axis=0).tobytes())
     reduction = system.reductions.get(key)
     if reduction is None:
         reduction = _Reduction.of(system, present, allowed)
@@ -206,7 +211,7 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     keep = reduction.keep
     return Problem(
         A=reduction.A,
-        b=b @ reduction.selector.T,
+        b=b[:, reduction.element_rows],
         mu0=np.atleast_2d(mu0)[:, keep],
         n_gas=reduction.n_gas,
         allowed=allowed[:, keep],
@@ -226,6 +231,7 @@ class _Reduction:
     selector: NDArray[np.float64]
     carried_usable: NDArray[np.float64]
     dropped_rows: bool
+    element_rows: NDArray[np.int_]      # the System's element rows the solve keeps (``selector``'s ones)
 
     @classmethod
     def of(cls, system: System, present: NDArray[np.bool_], allowed: NDArray[np.bool_]) -> _Reduction:
@@ -250,7 +256,7 @@ class _Reduction:
         selector = np.zeros((len(rows), A.shape[0]))
         selector[np.arange(len(rows)), np.flatnonzero(present)[rows]] = 1.0
         return cls(keep, n_gas, rows, carried[rows], selector, carried[:, usable],
-                   not usable.all() and len(rows) < carried.shape[0])
+                   not usable.all() and len(rows) < carried.shape[0], np.flatnonzero(present)[rows])
 
 
 def _check_balance_possible(system: System, carried: NDArray[np.float64], rows: NDArray[np.int_],

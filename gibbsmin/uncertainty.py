@@ -21,8 +21,10 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from .equilibrium import WATER
 from .errors import InputError
-from .settle import Setup
+from .sensitivity import equilibrium_sensitivities, formation_enthalpy_sensitivities
+from .fixed_step import Setup
 from .solve import SolverResult
 from .system import Problem
 from .thermo.database import SpeciesRecord
@@ -113,8 +115,6 @@ def fraction_jacobian(jacobian: NDArray[np.float64], n: NDArray[np.float64],
 def described(system, jacobian: NDArray[np.float64], covariance: NDArray[np.float64], n: NDArray[np.float64],
               T_row: NDArray[np.float64] | None = None) -> Uncertainties:
     """The uncertainties of amounts n [mol] (system order) that move by ``jacobian`` [mol per J/mol]."""
-    from .equilibrium import WATER
-
     gas = np.arange(system.n_gas)
     dry = np.array([j for j in gas if system.names[j] != WATER], dtype=int)
 
@@ -149,8 +149,6 @@ def point_uncertainties(setup: Setup, problem: Problem, result: SolverResult, T:
     g0/RT itself; with ``amounts_at`` the caller's solves carry it.
     NaN everywhere where the present phases fix T (the derivatives do not exist).
     """
-    from .sensitivity import formation_enthalpy_sensitivities  # sensitivity builds on settle, as this module
-
     system = setup.system
     covariance = input_covariance(system.records, data_set)
     if amounts_at is None:
@@ -202,8 +200,6 @@ def energy_balance_uncertainty(setup: Setup, problem: Problem, result: SolverRes
     ``feed`` is the inlet's amounts by species name [mol]; the heat input and
     the feed temperatures do not enter (dH shifts h at every T alike).
     """
-    from .sensitivity import equilibrium_sensitivities, formation_enthalpy_sensitivities
-
     system = setup.system
     covariance = input_covariance(system.records, data_set)
     n_out = _system_amounts(system, problem, result)
@@ -254,8 +250,6 @@ def batch_uncertainty(setup: Setup, problem: Problem, result: SolverResult, T: N
     :func:`~gibbsmin.sensitivity.formation_enthalpy_sensitivities`.  NaN where
     the present phases fix T.
     """
-    from .sensitivity import formation_enthalpy_sensitivities
-
     system = setup.system
     covariance = input_covariance(system.records, data_set)
     G = system.n_gas

@@ -83,3 +83,12 @@ def test_data_uncertainty_is_far_below_the_misses(table):
         assert 0.0 < u < 0.06
         if P_atm == 300.0 and T_C != 400.0:
             assert abs(pr_new - measured) > 10.0 * u
+
+
+@pytest.mark.parametrize("point", LOW_PRESSURE, ids=[f"{t:.0f}C-{p:.0f}atm" for t, p, _ in LOW_PRESSURE])
+def test_default_data_with_peng_robinson_within_0_15_mol_percent(point):
+    # The check as a user meets it: no data set named (the default is "atct-anchored").
+    T_C, P_atm, measured = point
+    eq = gibbsmin.equilibrate(FEED, T_C + 273.15, P_atm * ATM, gas="peng-robinson")
+    assert eq.extras["data_set"] == "atct-anchored"
+    assert abs(100.0 * eq.mole_fractions["NH3"] - measured) < TOLERANCE

@@ -17,7 +17,6 @@ from pathlib import Path
 import pytest
 
 from gibbsmin.audit import audit_plant, read_plant, read_stream_table
-from gibbsmin.case import FEATURES
 from gibbsmin.cli import main
 
 PLANT = Path(__file__).resolve().parents[1] / "examples" / "plant"
@@ -66,13 +65,9 @@ def find(result, where, name):
 
 
 def test_flags_exactly_the_planted_errors(result):
-    expected_fails = set(PLANTED_FAILS)
-    if not FEATURES["energy"].available():
-        expected_fails.discard(("R-101 primary reformer", "energy balance"))
-    assert by_verdict(result, "fail") == expected_fails
+    assert by_verdict(result, "fail") == set(PLANTED_FAILS)
     assert by_verdict(result, "warn") == CONSEQUENTIAL_WARNINGS
-    if FEATURES["energy"].available():
-        assert by_verdict(result, "n/a") == NOT_CHECKED
+    assert by_verdict(result, "n/a") == NOT_CHECKED
     assert result.count("pass") >= 60
     assert result.worst == "fail"
 
@@ -118,8 +113,6 @@ def test_hand_calculation_stated_total(result, cells):
 
 
 def test_hand_calculation_reformer_energy_balance_with_cantera(result, cells):
-    if not FEATURES["energy"].available():
-        pytest.skip("the energy balance has not landed")
     cantera_reference = pytest.importorskip("cantera_reference")
     species = ["CH4", "C2H6", "C3H8", "CO", "CO2", "H2", "N2", "H2O"]
     gas = cantera_reference.cantera_gas(species)

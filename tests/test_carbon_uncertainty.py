@@ -15,7 +15,7 @@ import pytest
 import gibbsmin
 from gibbsmin.carbon import carbon_limit
 from gibbsmin.carbon.activity import _g0_graphite
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import solve
 from gibbsmin.system import Problem
 from gibbsmin.thermo import R, data_set

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import pytest
 
-from gibbsmin.case import CASE_KEYS, FEATURES, KEY_NEEDS, CaseError, NotAvailableError, TomlSource, parse_case
+from gibbsmin.case import CASE_KEYS, CaseError, TomlSource, parse_case
 from gibbsmin.case.values import read_power, read_temperature_difference
 
 KMOL_H = 1000.0 / 3600.0
@@ -66,10 +66,6 @@ def test_stages_in_order_with_intercooling():
     text = ('[feed]\nunit = "kmol/h"\nSO2 = 10.0\nO2 = 10.0\nN2 = 80.0\nT = "420 degC"\nP = "1.3 bar"\n'
             '[[stage]]\nname = "bed 1"\nadiabatic = true\nP = "1.3 bar"\n'
             '[[stage]]\nname = "bed 2"\nT_in = "440 degC"\nadiabatic = true\nheat_loss = "0.25 MW"\nP = "1.28 bar"\n')
-    if not FEATURES["energy"].available():
-        with pytest.raises(NotAvailableError):
-            parse_case(text)
-        return
     case = parse_case(text)
     assert [s.name for s in case.stages] == ["bed 1", "bed 2"]
     assert case.stages[1].T_in == pytest.approx(713.15)
@@ -114,30 +110,10 @@ def test_error_names_file_line_and_key():
     assert str(error).startswith("plant.toml, line 8: conditions.TT: unknown key")
 
 
-def test_every_feature_key_is_documented_and_says_not_available_when_missing(monkeypatch):
-    for dotted in KEY_NEEDS:
-        table, _, key = dotted.partition(".")
-        assert table in CASE_KEYS and (not key or key in CASE_KEYS[table])
-    monkeypatch.setitem(FEATURES, "approach", type(FEATURES["approach"])("restricted equilibrium (test)",
-                                                                          lambda: False))
-    text = ('[feed]\nunit = "kmol/h"\nCH4 = 1.0\nH2O = 3.0\n' + CONDITIONS
-            + '[conditions.approach]\n"water-gas shift" = "10 K"\n')
-    with pytest.raises(NotAvailableError, match="not have yet"):
-        parse_case(text)
-
-
 def test_cubic_stage_takes_the_kij_choice():
     base = '[feed]\nunit = "kmol/h"\nN2 = 1.0\nH2 = 3.0\n[conditions]\nT = "450 degC"\nP = "200 bar"\n'
     assert parse_case(base + 'gas = "peng-robinson"\n').stages[0].kij == "shipped"
     assert parse_case(base + 'gas = "peng-robinson"\nkij = "none"\n').stages[0].kij == "none"
-
-
-def test_gas_model_waits_on_the_solver(monkeypatch):
-    monkeypatch.setitem(FEATURES, "gas", type(FEATURES["gas"])("gas models (test)", lambda: False))
-    base = '[feed]\nunit = "kmol/h"\nN2 = 1.0\nH2 = 3.0\n[conditions]\nT = "450 degC"\nP = "200 bar"\n'
-    assert parse_case(base + 'gas = "ideal"\n').stages[0].gas == "ideal"  # the ideal gas needs nothing
-    with pytest.raises(NotAvailableError, match="line 8"):
-        parse_case(base + 'gas = "peng-robinson"\n')
 
 
 @pytest.mark.parametrize("text, kelvin", [

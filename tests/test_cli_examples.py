@@ -12,12 +12,10 @@ from pathlib import Path
 
 import pytest
 
-from gibbsmin.case import FEATURES
 from gibbsmin.cli import main
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 cantera_reference = pytest.importorskip("cantera_reference")
-needs_energy = pytest.mark.skipif(not FEATURES["energy"].available(), reason="the energy balance has not landed")
 
 
 def settle_json(name, capsys):
@@ -56,7 +54,6 @@ def test_n2o4_kp_in_atm(capsys):
     assert q_shown == pytest.approx(kp_shown, rel=1e-5)  # at equilibrium the quotient equals Kp
 
 
-@needs_energy
 def test_ammonia_bed_adiabatic_outlet_and_curve(capsys):
     doc = settle_json("ammonia_bed.toml", capsys)
     species = ["N2", "H2", "NH3", "CH4", "Ar"]  # CH4 and Ar cannot react in this set: frozen either way
@@ -70,7 +67,6 @@ def test_ammonia_bed_adiabatic_outlet_and_curve(capsys):
     assert line["T_K"][0] == pytest.approx(380 + 273.15, abs=1e-3) and line["T_K"][-1] == pytest.approx(doc["T_K"], abs=1e-3)
 
 
-@needs_energy
 def test_so2_converter_beds_with_intercooling(capsys):
     doc = settle_json("so2_converter.toml", capsys)
     species = ["SO2", "O2", "SO3", "N2"]
@@ -106,7 +102,6 @@ def test_shift_held_at_its_approach(capsys):
     assert "carbon possible" in table  # shift gas at 430 degC is beyond graphite saturation by Boudouard
 
 
-@needs_energy
 def test_adiabatic_shift_bed_held_at_its_approach(tmp_path, capsys):
     # The shipped shift case made adiabatic: the outlet must hold the inlet's enthalpy (Cantera's, from the
     # same NASA data) and still read back its 12 K approach.
@@ -133,7 +128,6 @@ def test_adiabatic_shift_bed_held_at_its_approach(tmp_path, capsys):
     assert code == 0 and "12.00" in row
 
 
-@needs_energy
 def test_html_of_a_curve_case_is_written(tmp_path, capsys):
     out = tmp_path / "ammonia.html"
     assert main(["settle", str(EXAMPLES / "ammonia_bed.toml"), "--html", str(out), "--csv",

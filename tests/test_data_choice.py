@@ -27,10 +27,11 @@ def _ammonia_quotient(eq):
     return y["NH3"] ** 2 / (y["N2"] * y["H2"] ** 3) * (1e5 / eq.P) ** 2
 
 
-def test_default_is_the_shipped_nasa_set():
+def test_default_is_the_anchored_set():
     eq = equilibrate(LOOP, T=723.15, P=30e5, species=LOOP_SET)
-    assert eq.extras["data_set"] == "nasa-1993"
-    assert eq.to_dict()["data_set"] == "nasa-1993"
+    assert eq.extras["data_set"] == "atct-anchored"
+    assert eq.to_dict()["data_set"] == "atct-anchored"
+    assert gibbsmin.default_database() is data_set("atct-anchored")
 
 
 def test_anchored_set_moves_the_ammonia_constant_by_the_anchor_shift():
@@ -65,9 +66,9 @@ def test_adiabatic_balance_uses_the_chosen_set():
 
 def test_approach_solve_takes_the_data_set():
     feed = {"CH4": 1.0, "H2O": 3.0}
-    raw = equilibrate_with_approach(feed, 1100.0, 30e5, approach={"steam methane reforming": 10.0})
-    new = equilibrate_with_approach(feed, 1100.0, 30e5, approach={"steam methane reforming": 10.0},
-                                    data="atct-anchored")
+    raw = equilibrate_with_approach(feed, 1100.0, 30e5, approach={"steam methane reforming": 10.0},
+                                    data="nasa-1993")
+    new = equilibrate_with_approach(feed, 1100.0, 30e5, approach={"steam methane reforming": 10.0})
     assert raw.extras["data_set"] == "nasa-1993" and new.extras["data_set"] == "atct-anchored"
     # CH4 moves by +66 J/mol, CO by +4, H2O by +3 (ATcT - NASA): methane conversion changes a little.
     assert new.amounts["CH4"] != pytest.approx(raw.amounts["CH4"], rel=1e-6)
@@ -76,10 +77,14 @@ def test_approach_solve_takes_the_data_set():
 
 def test_sweep_takes_the_data_set_and_keeps_old_fingerprints():
     axes = (grid("T", [650.0, 700.0, 750.0]),)
-    raw = SweepSpec(feed=LOOP, T=700.0, P=100e5, axes=axes, species=tuple(LOOP_SET))
-    new = SweepSpec(feed=LOOP, T=700.0, P=100e5, axes=axes, species=tuple(LOOP_SET), data="atct-anchored")
+    raw = SweepSpec(feed=LOOP, T=700.0, P=100e5, axes=axes, species=tuple(LOOP_SET), data="nasa-1993")
+    new = SweepSpec(feed=LOOP, T=700.0, P=100e5, axes=axes, species=tuple(LOOP_SET))
+    assert new.data == "atct-anchored"  # the default
+    # A spec written without a data set was made with the NASA data (the default until the switch):
+    # that meaning is kept, and the new default is written out by name, so an old sweep is never
+    # resumed with other data.
     assert "data" not in json.loads(raw.to_json()) and json.loads(new.to_json())["data"] == "atct-anchored"
-    assert SweepSpec.from_json(new.to_json()) == new
+    assert SweepSpec.from_json(raw.to_json()) == raw and SweepSpec.from_json(new.to_json()) == new
     y_raw = solve_points(raw, 0, 3)["y_NH3"].to_numpy()
     y_new = solve_points(new, 0, 3)["y_NH3"].to_numpy()
     for k, T in enumerate((650.0, 700.0, 750.0)):
@@ -106,8 +111,8 @@ P = "30 atm"
 
 
 def test_case_file_names_the_data_set_in_report_and_json():
-    raw = settle_case(parse_case(CASE))
-    new = settle_case(parse_case(CASE + 'data = "atct-anchored"\n'))
+    raw = settle_case(parse_case(CASE + 'data = "nasa-1993"\n'))
+    new = settle_case(parse_case(CASE))  # the default set
     assert new.outlet.amounts["NH3"] < raw.outlet.amounts["NH3"]
     text = render_text(settle_report(new))
     assert "thermochemical data" in text and "atct-anchored: NASA TM-4513 polynomials re-anchored" in text
@@ -128,4 +133,5 @@ def test_sweep_of_a_case_takes_its_data_set():
 
     axes = (grid("T", [700.0, 750.0]),)
     assert spec_from_case(parse_case(CASE + 'data = "atct-anchored"\n'), axes).data == "atct-anchored"
-    assert spec_from_case(parse_case(CASE), axes).data == "nasa-1993"
+    assert spec_from_case(parse_case(CASE + 'data = "nasa-1993"\n'), axes).data == "nasa-1993"
+    assert spec_from_case(parse_case(CASE), axes).data == "atct-anchored"  # the default

@@ -10,7 +10,7 @@ import pytest
 
 import gibbsmin
 from checksums import assert_unchanged
-from gibbsmin.thermo import default_database, load_database
+from gibbsmin.thermo import DATA_SETS, data_set, default_database, load_database
 
 SPECIES_DIR = Path(__file__).resolve().parent.parent / "species"
 
@@ -38,7 +38,9 @@ def test_sources_file_lists_keys():
 
 def test_every_species_source_is_listed():
     keys = _listed_source_keys()
-    unlisted = sorted({r.source for r in default_database()} - keys)
+    # Every data set's records; a compound key (a/b) names one source per part.
+    sources = {part for name in DATA_SETS for r in data_set(name) for part in r.source.split("/")}
+    unlisted = sorted(sources - keys)
     assert not unlisted, f"source keys missing from species/SOURCES.md: {unlisted}"
 
 
@@ -282,6 +284,15 @@ def test_environment_variable_selects_the_species_folder(tmp_path, methane_entry
     assert load_database().names == ("CH4",)
 
 
+def test_a_species_folder_without_the_default_set_says_how_to_proceed(tmp_path, methane_entry, monkeypatch):
+    # The default set lives in a subfolder; a folder of one's own files lacks it: the error names both ways on.
+    _write_species(tmp_path, [methane_entry])
+    monkeypatch.setenv("GIBBSMIN_SPECIES", str(tmp_path))
+    with pytest.raises(gibbsmin.DataError, match="no folder 'atct-anchored' .* pass data='nasa-1993'"):
+        default_database()
+    assert data_set("nasa-1993").names == ("CH4",)
+
+
 # ---------------------------------------------------------------- speed
 
 
@@ -322,4 +333,5 @@ def test_shipped_file_shape(filename):
 
 
 def test_database_holds_every_shipped_species():
-    assert len(default_database()) == sum(SHIPPED_COUNTS.values())
+    # The shipped files at the top of species/ are the data set "nasa-1993", named.
+    assert len(data_set("nasa-1993")) == sum(SHIPPED_COUNTS.values())

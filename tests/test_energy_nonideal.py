@@ -1,7 +1,7 @@
 """The energy balance with a cubic gas where a condensed phase appears between two trial temperatures.
 
 The answer there comes from the phase-boundary solve with T unknown
-(``sensitivity.settle_on_phase_set``), which must hold the gas model's ln phi
+(``energy.phase_boundary.solve_on_phase_boundary``), which must hold the gas model's ln phi
 and residual enthalpy as every fixed-T step does.  Each answer is checked here
 from its amounts alone: the optimality conditions with ln phi evaluated afresh
 at the answer's composition (condensed species included), and the energy
@@ -16,7 +16,7 @@ import warnings
 import pytest
 
 import gibbsmin
-from gibbsmin import sensitivity
+from gibbsmin.energy import phase_boundary
 from gibbsmin.energy import mixture_enthalpy
 from gibbsmin.nonideal import residual_enthalpy_of_gas
 from test_properties_nonideal import _stationarity
@@ -41,7 +41,7 @@ def _energy_miss(eq: gibbsmin.Equilibrium, feed: dict[str, float], T_feed: float
 
 def _settled(feed, T_feed, P, heat, method="auto"):
     calls = []
-    solve = sensitivity.settle_on_phase_set
+    solve = phase_boundary.solve_on_phase_boundary
 
     def spy(*args, **kwargs):
         answer = solve(*args, **kwargs)
@@ -49,7 +49,7 @@ def _settled(feed, T_feed, P, heat, method="auto"):
         return answer
 
     with pytest.MonkeyPatch.context() as patch, warnings.catch_warnings():
-        patch.setattr(sensitivity, "settle_on_phase_set", spy)
+        patch.setattr(phase_boundary, "solve_on_phase_boundary", spy)
         warnings.simplefilter("ignore", RuntimeWarning)
         eq = gibbsmin.equilibrate(feed, P=P, T_feed=T_feed, heat_input=heat, gas=GAS, method=method)
     return eq, calls

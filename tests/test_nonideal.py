@@ -18,7 +18,7 @@ import pytest
 import gibbsmin
 from gibbsmin.eos import gas_model_for_species
 from gibbsmin.nonideal import OuterLoopOptions, gas_phase, solve_nonideal
-from gibbsmin.settle import prepare, solve_fixed
+from gibbsmin.fixed_step import prepare, solve_fixed
 from gibbsmin.system import P_REF
 from gibbsmin.thermo.nasa7 import R
 

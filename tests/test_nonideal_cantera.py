@@ -22,7 +22,7 @@ import pytest
 import gibbsmin
 from gibbsmin.eos import PENG_ROBINSON, CubicModel
 from gibbsmin.nonideal import GasPhase, gas_phase, solve_nonideal
-from gibbsmin.settle import prepare
+from gibbsmin.fixed_step import prepare
 
 _DB = gibbsmin.default_database()
 

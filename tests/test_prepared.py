@@ -181,3 +181,22 @@ def test_a_specification_is_checked_when_prepared(options, message):
         return
     with pytest.raises(InputError, match=message):
         prepare(**options)
+
+
+def test_results_above_the_core_are_typed():
+    # The typed fields and the flattened extras say the same (the extras keep their old names for JSON and scripts).
+    duty = equilibrate(REFORMER_FEED, T=1100.0, P=25e5, species=REFORMER, T_feed=773.15)
+    assert duty.energy.duty_W == duty.extras["duty_W"] and duty.energy.duty_W > 0.0  # reforming takes heat
+    assert duty.energy.enthalpy_J == duty.extras["enthalpy_J"] and duty.data_set == duty.extras["data_set"]
+    assert duty.gas is None and duty.restriction is None
+    hot = equilibrate({"CH4": 1.0, "H2O": 3.0, "C2H6": 0.04}, P=25e5, T_feed=773.15, adiabatic=True,
+                      species=REFORMER)
+    assert hot.energy.T_evaluations == hot.extras["T_evaluations"] >= 1 and hot.energy.duty_W == 0.0
+    cubic = equilibrate(LOOP_FEED, T=700.0, P=200e5, gas="peng-robinson")
+    assert cubic.gas.fugacity_coefficients == cubic.extras["fugacity_coefficients"]
+    assert cubic.gas.fugacity_coefficients["H2"] > 1.0 > cubic.gas.fugacity_coefficients["NH3"]
+    assert cubic.gas.stability == cubic.extras["gas_phase_stability"]
+    held = equilibrate_with_approach(SHIFT_FEED, 700.0, 33e5, {"water-gas shift": 10.0}, frozen=["CH4", "N2"],
+                                     species=list(SHIFT_FEED))
+    assert held.restriction.approach_K == {"water-gas shift": 10.0} == held.extras["approach K"]
+    assert held.restriction.frozen_mol == {"CH4": 0.7, "N2": 13.5}

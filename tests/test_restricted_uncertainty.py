@@ -17,7 +17,7 @@ import gibbsmin
 from gibbsmin import equilibrate_with_approach
 from gibbsmin.reactions import independent_reactions, reaction
 from gibbsmin.restricted import reaction_offsets, settling_temperature
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import solve
 from gibbsmin.system import Problem
 from gibbsmin.thermo import R, data_set

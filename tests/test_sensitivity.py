@@ -137,7 +137,7 @@ def test_difference_path_equals_implicit_differentiation_on_the_ideal_gas(solver
     # and the implicit differentiation of the optimality conditions agree to 1e-6 relative.
     from gibbsmin import energy
     from gibbsmin.sensitivity import difference_sensitivities, equilibrium_sensitivities
-    from gibbsmin.settle import prepare, solve_fixed
+    from gibbsmin.fixed_step import prepare, solve_fixed
 
     T, P = 723.15, 200e5
     setup = prepare(LOOP, inert=["CH4", "Ar"], T_span=(T, T))

@@ -14,7 +14,7 @@ import pandas as pd
 import pytest
 
 import gibbsmin
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import certify, solve_newton
 from gibbsmin.sweep import Axis, SweepSpec, axis_from_text, grid, run_sweep, solve_points
 

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 import gibbsmin
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import solve
 from gibbsmin.sweep import SweepSpec, grid, solve_points
 from gibbsmin.system import Problem

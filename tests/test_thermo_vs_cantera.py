@@ -16,7 +16,10 @@ import pytest
 
 ct = pytest.importorskip("cantera")
 
-from gibbsmin.thermo import R, default_database  # noqa: E402
+from gibbsmin.thermo import R, data_set  # noqa: E402
+
+#: Cantera evaluates the NASA polynomials as published: the data set "nasa-1993", named.
+NASA = data_set("nasa-1993")
 
 SPECIES_DIR = Path(__file__).resolve().parent.parent / "species"
 POINTS_PER_RANGE = 20
@@ -70,7 +73,7 @@ def _temperature_grid(species) -> np.ndarray:
 
 
 def test_every_shipped_species_is_compared():
-    db = default_database()
+    db = NASA
     assert set(NASA_NAMES) == set(db.names)
     assert len(NASA_NAMES) == len(db)
 
@@ -79,7 +82,7 @@ def _ours_and_cantera(name, cantera_species):
     """Temperatures, and our and Cantera's dimensionless properties at them."""
     reference = _reference_species(cantera_species, name)
     T = _temperature_grid(reference)
-    table = default_database().nasa7([name])
+    table = NASA.nasa7([name])
     # Cantera returns per kmol: J/(kmol K) and J/kmol; its gas constant is per kmol.
     R_kmol = ct.gas_constant
     thermo = reference.thermo
@@ -111,9 +114,9 @@ def test_nasa7_properties_equal_cantera(name, cantera_species):
 @pytest.mark.parametrize("name", sorted(NASA_NAMES))
 def test_ranges_composition_and_hf298_equal_cantera(name, cantera_species):
     reference = _reference_species(cantera_species, name)
-    record = default_database()[name]
+    record = NASA[name]
     assert record.T_ranges == tuple(_fitted_ranges(reference))
-    table = default_database().nasa7([name])
+    table = NASA.nasa7([name])
     assert table.T_min[0] == reference.thermo.min_temp
     assert table.T_max[0] == reference.thermo.max_temp
     # The formula field must give the composition Cantera holds for the species.

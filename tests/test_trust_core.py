@@ -201,7 +201,7 @@ def test_pure_water_below_its_boiling_point_is_all_liquid_with_no_gas_compositio
 def test_a_vanishing_gas_beside_liquid_water_still_starts_a_warm_started_batch():
     # A batch warm-starts each point from the one before; an answer with the gas absent must not
     # poison the next point (300 K all liquid, then 400 K all steam, then 300 K again).
-    from gibbsmin.settle import build_problem, prepare
+    from gibbsmin.fixed_step import build_problem, prepare
     from gibbsmin.solve import solve
 
     setup = prepare({"H2O": 1.0}, T_span=(300.0, 400.0))
@@ -215,7 +215,7 @@ def test_a_vanishing_gas_beside_liquid_water_still_starts_a_warm_started_batch()
 def test_the_cone_solver_gives_the_same_answer_whatever_ran_before():
     # The cached cvxpy problem kept Clarabel's solver object between solves (cvxpy's default warm
     # start), and the same point came out different (ln n apart by 6e-4) as the first or second solve.
-    from gibbsmin.settle import fixed_problem, prepare
+    from gibbsmin.fixed_step import fixed_problem, prepare
     from gibbsmin.solve import convex
 
     setup = prepare({"CH4": 1.0, "H2O": 1.0}, T_span=(800.0, 900.0))
@@ -269,7 +269,7 @@ def test_a_feed_the_species_that_can_appear_cannot_balance_is_refused():
 
 def test_a_refused_answer_says_which_solvers_were_tried():
     from gibbsmin.errors import ConvergenceError
-    from gibbsmin.settle import checked, prepare, solve_fixed
+    from gibbsmin.fixed_step import checked, prepare, solve_fixed
 
     setup = prepare({"CH4": 1.0, "H2O": 2.0}, T_span=(1000.0, 1000.0))
     eq = solve_fixed(setup, 1000.0, 20e5, method="newton")[0]

@@ -16,7 +16,7 @@ import pytest
 
 import gibbsmin
 from gibbsmin import equilibrate
-from gibbsmin.settle import build_problem, prepare
+from gibbsmin.fixed_step import build_problem, prepare
 from gibbsmin.solve import solve
 from gibbsmin.system import Problem
 from gibbsmin.thermo import R, data_set
@@ -101,7 +101,7 @@ def test_outlet_temperature_uncertainty_by_hand_for_ammonia():
     # changes the reaction heat released by (n_out - n_in) dH and K at fixed T; the outlet T moves by
     # dT = -dF/dH / Cp_eq.  The formula's own parts, computed apart, must add up to the result.
     from gibbsmin.sensitivity import equilibrium_sensitivities, formation_enthalpy_sensitivities
-    from gibbsmin.settle import solve_fixed
+    from gibbsmin.fixed_step import solve_fixed
 
     feed, T_feed, P, species = CASES["ammonia bed"]
     eq = equilibrate(feed, P=P, T_feed=T_feed, adiabatic=True, species=species, data="atct-anchored",

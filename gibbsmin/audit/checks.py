@@ -21,7 +21,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..case.features import FEATURES
 from ..api import prepared_for
 from ..carbon import carbon_activity
 from ..energy import mixture_enthalpy
@@ -219,9 +218,6 @@ def _enthalpy(stream: TableStream, T: float | None = None, gas: str = "ideal") -
 
 def _energy_check(where: str, spec: UnitSpec, inlets: Sequence[TableStream], outlets: Sequence[TableStream],
                   limit: Limit) -> Check:
-    if not FEATURES["energy"].available():
-        return Check(where, "energy balance", None, "K", "n/a",
-                     f"needs {FEATURES['energy'].module}, which this version of gibbsmin does not have yet")
     if spec.duty is None:
         return Check(where, "energy balance", None, "K", "n/a", "no duty stated (give duty = '... MW' or "
                      "adiabatic = true)")
@@ -406,10 +402,9 @@ def audit_unit(plant: Plant, spec: UnitSpec, db: SpeciesDatabase) -> UnitAudit:
         outlet = outlets[0]
         check, eq, stated = _equilibrium_check(where, spec, plant, inlets, outlet, db)
         checks.append(check)
-        if FEATURES["reactions"].available():
-            approach, findings = _approach_checks(where, spec, plant, inlets, outlet, db)
-            checks += approach
-        if spec.carbon and FEATURES["carbon"].available():
+        approach, findings = _approach_checks(where, spec, plant, inlets, outlet, db)
+        checks += approach
+        if spec.carbon:
             checks.append(_carbon_check(where, outlet, plant.limits["carbon_activity"], db))
     return UnitAudit(spec, tuple(checks), elements, tuple(findings), eq, stated)
 

@@ -42,6 +42,7 @@ from ..case.values import (
     read_text,
 )
 from ..errors import InputError, UnknownSpeciesError
+from ..reactions import reaction
 from ..thermo import DATA_SETS, SpeciesDatabase, choose_database
 from ..units import NORMAL_DIN_1343
 from .table import ROW_LABELS, StreamTable, read_stream_table
@@ -159,8 +160,8 @@ AUDIT_KEYS: dict[str, dict[str, str]] = {
     "plant": {"title": "a title for the report", "stream_table": "the stream table (CSV or XLSX), relative to "
               "this file; the command line's table argument overrides it",
               "normal_conditions": "what Nm3 means in the table: 'DIN 1343' (default), 'ISO 13443', 'US gas'",
-              "data": "thermochemical data set of every check: 'nasa-1993' or 'atct-anchored' (its stated "
-                      "uncertainties give each approach temperature's data uncertainty)"},
+              "data": "thermochemical data set of every check: 'atct-anchored' (default; its stated "
+                      "uncertainties give each approach temperature's data uncertainty) or 'nasa-1993'"},
     "thresholds": {name: f"{{ warn = ..., fail = ... }} in {limit.unit}: {meaning} (default warn {limit.warn:g}, "
                    f"fail {'never' if limit.fail is None else f'{limit.fail:g}'})"
                    for name, (limit, meaning) in THRESHOLDS.items()},
@@ -328,8 +329,6 @@ def _read_unit(section: Section, unit_id: str, table: StreamTable, db: SpeciesDa
 
 
 def _check_reactions(section: Section, key: str, texts: tuple[str, ...]) -> None:
-    from ..reactions import reaction
-
     for text in texts:
         try:
             reaction(text)

@@ -10,7 +10,8 @@ import numpy as np
 
 from ..equilibrium import Equilibrium
 from ..reactions import Composition, gas_state, reaction
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 
 
 #: The carbon-depositing reactions a gas is judged by.
@@ -148,7 +149,8 @@ def carbon_activity(
     if isinstance(composition, Equilibrium):
         graphite = graphite_held(composition, db)
         lam = composition.element_potentials.get("C", math.nan)
-        if math.isfinite(lam) and not composition.extras.get("approach K"):
+        held = composition.restriction is not None and composition.restriction.approach_K
+        if math.isfinite(lam) and not held:
             potential = float(np.exp(lam - _g0_graphite(state.T, db)))
     return CarbonActivity(state.T, state.P, by_reaction, potential, graphite)
 

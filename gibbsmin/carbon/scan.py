@@ -5,9 +5,9 @@ from __future__ import annotations
 import dataclasses
 from collections.abc import Mapping, Sequence
 
-
 from ..errors import InputError
-from ..settle import checked, prepare, solve_fixed
+from ..nonideal import gas_phase, solve_nonideal
+from ..fixed_step import checked, prepare, solve_fixed
 from ..thermo.database import SpeciesDatabase
 from .activity import GRAPHITE, _g0_graphite
 
@@ -31,8 +31,6 @@ class GasOnlyEquilibria:
         self.evaluations = 0
         self.phase = None
         if gas != "ideal":
-            from ..nonideal import gas_phase  # the cubic's outer loop builds on the ideal-gas solve
-
             self.phase = gas_phase(self.setup.system, gas, kij=kij)
 
     def ln_activity(self, T: float, added=None, offsets=None) -> float:
@@ -42,8 +40,6 @@ class GasOnlyEquilibria:
         if self.phase is None:
             eq, _, result = solve_fixed(setup, T, self.P, method=self.method, start=self.start, offsets=offsets)
         else:
-            from ..nonideal import solve_nonideal
-
             eq, _, result = solve_nonideal(setup, T, self.P, self.phase, method=self.method, start=self.start,
                                            offsets=offsets)
         eq = checked(eq, stacklevel=5)

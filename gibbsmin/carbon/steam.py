@@ -9,10 +9,11 @@ from dataclasses import dataclass
 import scipy.optimize
 
 from ..errors import InputError
-from ..settle import check_feed, check_method
+from ..fixed_step import check_feed, check_method
 from ..streams import CARBON_BASES, Stream
 from ..thermo.database import SpeciesDatabase
 from ..thermo.datasets import choose_database
+from ..uncertainty import carbon_limit_uncertainty, formation_uncertainties
 from ..units import to_kelvin, to_pascal
 from .activity import GRAPHITE, STEAM
 from .scan import GasOnlyEquilibria
@@ -87,8 +88,6 @@ class _SteamScan:
 
     def uncertainty(self, steam_to_carbon: float, db: SpeciesDatabase) -> float:
         """Standard uncertainty [-] of the limit found at ``steam_to_carbon``."""
-        from ..uncertainty import carbon_limit_uncertainty
-
         return carbon_limit_uncertainty(self.ln_activity, steam_to_carbon, self.T,
                                         self.equilibria.setup.system.records, db[GRAPHITE], db.data_set)
 
@@ -164,8 +163,6 @@ def carbon_limit(
     scan = _SteamScan(feed.feed_mol() if isinstance(feed, Stream) else feed, T, P, carbon_basis,
                       species, exclude, method, db, gas=gas, kij=kij)
     if uncertainty:
-        from ..uncertainty import formation_uncertainties
-
         # A data set without uncertainties is refused before the search, not after it.
         formation_uncertainties([*scan.equilibria.setup.system.records, db[GRAPHITE]], db.data_set)
     not_found = math.nan if uncertainty else None

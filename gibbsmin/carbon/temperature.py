@@ -16,9 +16,10 @@ import numpy as np
 import scipy.optimize
 
 from ..errors import InputError
-from ..settle import check_feed, check_method
+from ..fixed_step import check_feed, check_method
 from ..streams import Stream
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..units import to_kelvin, to_pascal
 from .scan import GasOnlyEquilibria
 
@@ -92,9 +93,9 @@ def carbon_limit_temperatures(
     --------
     >>> limits = carbon_limit_temperatures({"CH4": 1.0, "H2O": 0.5}, "25 bar")
     >>> [round(T - 273.15) for T in limits.boundaries]
-    [504]
+    [502]
     >>> limits.describe()
-    'graphite stable from 504.12 to 1000.00 degC at 25 bar'
+    'graphite stable from 501.58 to 1000.00 degC at 25 bar'
     """
     db = db or default_database()
     P = to_pascal(P)

@@ -5,8 +5,6 @@ flow, wet or dry, optionally with steam by S/C ratio), the conditions of each
 stage, the species set and what to report.  Every key is checked: an unknown
 key, a value of the wrong kind or a quantity in the wrong unit is a
 :class:`CaseError` naming the file, the line and the key, with the fix.
-Keys whose computation has not landed in this version give a
-:class:`NotAvailableError` instead of being ignored.
 
 A minimal case::
 
@@ -27,13 +25,11 @@ amounts in mol; equilibrium composition is intensive, so the answer's amounts
 read as mol/s and are shown in the report's flow unit.
 """
 
-from .features import FEATURES as FEATURES
-from .features import KEY_NEEDS as KEY_NEEDS
 from .reader import parse_case as parse_case
 from .reader import read_case as read_case
 from .run import CaseResult as CaseResult
 from .run import Curve as Curve
-from .run import Inlet as Inlet
+from .run import StageInlet as StageInlet
 from .run import StageResult as StageResult
 from .run import settle_case as settle_case
 from .spec import CASE_KEYS as CASE_KEYS
@@ -44,6 +40,5 @@ from .spec import ReportSpec as ReportSpec
 from .spec import SpeciesSpec as SpeciesSpec
 from .spec import Stage as Stage
 from .toml import CaseError as CaseError
-from .toml import NotAvailableError as NotAvailableError
 from .toml import Section as Section
 from .toml import TomlSource as TomlSource

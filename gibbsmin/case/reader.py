@@ -9,13 +9,13 @@ from collections.abc import Callable, Mapping
 from pathlib import Path
 
 from ..errors import InputError, UnknownSpeciesError
+from ..reactions import reaction
 from ..streams import CARBON_BASES, Stream
 from ..thermo import DATA_SETS, SpeciesDatabase, default_database
 from ..units import NORMAL_DIN_1343, ReferenceConditions, from_kelvin, from_mol_s, from_pascal, to_fraction
-from .features import missing
 from .services import SERVICES
 from .spec import CASE_KEYS, Case, CurveSpec, Feed, ReportSpec, SpeciesSpec, Stage
-from .toml import CaseError, NotAvailableError, Section, TomlSource, kind
+from .toml import CaseError, Section, TomlSource, kind
 from .values import (
     choice,
     flow_unit,
@@ -78,12 +78,6 @@ def _check_frozen(root: Section, case: Case) -> None:
             assert section is not None
             raise section.error("frozen", f"{name} is not in the feed; a frozen species keeps its feed amount, "
                                 "so it must be fed (or leave it out of the species set with exclude)")
-
-
-def _need(section: Section, key: str, feature: str) -> None:
-    problem = missing(feature)
-    if problem is not None:
-        raise section.error(key, problem, NotAvailableError)
 
 
 # --- feeds ------------------------------------------------------------------------------------------
@@ -249,17 +243,12 @@ def _read_stages(root: Section, db: SpeciesDatabase) -> tuple[Stage, ...]:
 
 
 def _read_stage(section: Section, index: int, count: int, db: SpeciesDatabase) -> Stage:
-    for key in ("adiabatic", "heat_loss", "heat_input", "T_in", "duty"):
-        if key in section:
-            _need(section, key, "energy")
     kind = section.get("type", choice(*STAGE_TYPES), "reactor")
     if kind != "reactor":
         return _read_exchanger(section, index, count, kind)
     if "duty" in section:
         raise section.error("duty", "goes with type = 'heater', 'cooler' or 'knock-out'; a reactor takes "
                             "adiabatic = true with heat_input or heat_loss")
-    if "approach" in section:
-        _need(section, "approach", "approach")
     gas_model = _read_gas_model(section)
     adiabatic = section.get("adiabatic", read_bool, False)
     if adiabatic and "T" in section:
@@ -353,8 +342,6 @@ def _read_exchanger(section: Section, index: int, count: int, kind: str) -> Stag
 def _read_gas_model(section: Section) -> dict[str, object]:
     """The stage's gas model, kij choice and own kij pairs, as Stage's keyword arguments."""
     gas = section.get("gas", choice(*_GAS_MODELS), "ideal")
-    if gas != "ideal":
-        _need(section, "gas", "gas")
     kij = section.get("kij", choice("shipped", "none"), "shipped")
     for key in ("kij", "kij_pairs"):
         if key in section and gas == "ideal":
@@ -407,8 +394,6 @@ def read_kij_value(value: object) -> float:
 
 def _check_reaction(section: Section, key: str, text: str) -> None:
     """A reaction named or written in the case must be one the reactions module can read."""
-    from ..reactions import reaction
-
     try:
         reaction(text)
     except (InputError, UnknownSpeciesError) as exc:
@@ -419,7 +404,6 @@ def _read_curve(root: Section, db: SpeciesDatabase) -> CurveSpec | None:
     section = root.section("curve")
     if section is None:
         return None
-    _need(root, "curve", "energy")
     if ("y" in section) == ("conversion" in section):
         raise section.error(None, "needs either y = 'NH3' (mol% drawn) or conversion = 'SO2' (conversion drawn)")
     key = "y" if "y" in section else "conversion"
@@ -449,9 +433,6 @@ def _unit_checked(convert: Callable[[float, str], float]) -> Callable[[object], 
 def _read_report(section: Section | None, db: SpeciesDatabase) -> ReportSpec:
     if section is None:
         return ReportSpec()
-    for key, feature in (("kp", "reactions"), ("approach", "reactions"), ("carbon", "carbon")):
-        if key in section:
-            _need(section, key, feature)
     kp = section.get("kp", read_names, ())
     approach = section.get("approach", read_names, ())
     for key, reactions in (("kp", kp), ("approach", approach)):

@@ -11,11 +11,15 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.optimize
 
+from ..carbon import CarbonActivity, CarbonLimit, carbon_activity, carbon_limit
+from ..energy import mixture_enthalpy
+from ..eos.phase import residual_enthalpy_of_gas
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, GibbsminError, InputError, UnknownSpeciesError
 from ..api import equilibrate, prepared_for
 from ..prepared import Specification
 from ..thermo import SpeciesDatabase, choose_database, default_database
+from ..streams import Stream
 from ..units import from_mol_s
 from .scope import LIQUID_WATER, StageScope, possible_condensates, stage_scope
 from .spec import Case, CurveSpec, Stage
@@ -28,7 +32,7 @@ _NEGLIGIBLE = 1e-14
 
 
 @dataclass(frozen=True)
-class Inlet:
+class StageInlet:
     """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given)."""
 
     streams: Mapping[str, Mapping[str, float]]
@@ -49,13 +53,14 @@ class Inlet:
 
 @dataclass(frozen=True)
 class StageResult:
-    """One stage: its specification, its inlet, its equilibrium (``extras`` hold duty and approaches) and what
+    """One stage: its specification, its inlet, its equilibrium (with its energy figures and restriction) and what
     it let change (``scope``: the species set, the species held, the reactions allowed)."""
 
     stage: Stage
-    inlet: Inlet
+    inlet: StageInlet
     equilibrium: Equilibrium
     scope: StageScope | None = None
+    carbon: StageCarbon | None = None
 
     @property
     def outlet(self) -> dict[str, float]:
@@ -67,8 +72,52 @@ class StageResult:
     @property
     def duty_W(self) -> float | None:
         """Heat added to the stage, [W], when the energy balance was computed."""
-        duty = self.equilibrium.extras.get("duty_W")
-        return None if duty is None else float(duty)
+        energy = self.equilibrium.energy
+        return None if energy is None or energy.duty_W is None else float(energy.duty_W)
+
+
+@dataclass(frozen=True)
+class StageCarbon:
+    """The carbon check of a stage (``[report] carbon``): its outlet against graphite, and the S/C limit of its
+    inlet at the outlet's T and P.
+
+    Attributes
+    ----------
+    activity : CarbonActivity
+        The outlet's carbon activity by reaction and its verdict.
+    steam_to_carbon : float or None
+        S/C of the inlet; None where the inlet has no carbon the ratio counts.
+    limit : CarbonLimit or None
+        The lowest S/C without graphite; None where there is no ratio or the search failed.
+    failure : str or None
+        Why a limit that should have been found was not.
+    """
+
+    activity: CarbonActivity
+    steam_to_carbon: float | None
+    limit: CarbonLimit | None
+    failure: str | None
+
+
+def stage_carbon(case: Case, stage: Stage, inlet: StageInlet, eq: Equilibrium, db: SpeciesDatabase) -> StageCarbon:
+    """The carbon check of one stage (the limit is searched from the inlet's gas without its water, so that it
+    may lie below the S/C fed)."""
+    basis = case.feeds[0].stream.carbon_basis
+    mixed = inlet.mixed
+    stream = Stream(tuple(mixed), tuple(mixed.values()), eq.T, eq.P, carbon_basis=basis,
+                    database=case.feeds[0].stream.database)
+    activity = carbon_activity(eq)
+    if stream.carbon_flow() == 0.0:
+        return StageCarbon(activity, None, None, None)
+    ratio = stream.steam_to_carbon()
+    dry = {name: n for name, n in mixed.items() if name != "H2O"}
+    try:
+        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=case.species.only,
+                             exclude=case.species.exclude, gas=eq.gas_model, kij=stage.interactions, db=db,
+                             uncertainty=stage.uncertainty)
+    except (GibbsminError, ValueError) as exc:  # shown in the report's notes, not dropped
+        return StageCarbon(activity, ratio, None, " ".join(str(exc).split()))
+    return StageCarbon(activity, ratio, limit, None)
 
 
 @dataclass(frozen=True)
@@ -113,14 +162,14 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
     for stage in case.stages:
         if stage.uncertainty:
             check_uncertainty(case, stage, choose_database(stage.data, given))
-    inlet = Inlet({f.name: f.stream.feed_mol() for f in case.feeds},
+    inlet = StageInlet({f.name: f.stream.feed_mol() for f in case.feeds},
                   {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
     results = []
     for stage in case.stages:
         if progress is not None:
             progress(stage.name)
         if stage.T_in is not None:
-            inlet = Inlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
+            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
@@ -129,9 +178,10 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
             raise CaseError(case.source, stage.line, stage.name, str(exc)) from None
-        result = StageResult(stage, inlet, eq, scope)
+        carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
+        result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
-        inlet = Inlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
+        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -168,7 +218,7 @@ def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specific
                             allow_extrapolation=case.species.allow_extrapolation, **cubic)
 
 
-def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db: SpeciesDatabase) -> Equilibrium:
+def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
     if not stage.reacts:
         _check_heat_direction(stage, inlet)
     balance = {}
@@ -191,7 +241,7 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: Inlet, db:
     return dataclasses.replace(eq, extras=extras)
 
 
-def _check_heat_direction(stage: Stage, inlet: Inlet) -> None:
+def _check_heat_direction(stage: Stage, inlet: StageInlet) -> None:
     """A cooler (or knock-out) whose outlet is hotter than its inlet, or a heater that cools, is a typing slip."""
     if stage.T is None or not inlet.temperatures_known:
         return
@@ -226,14 +276,10 @@ def _enthalpy(amounts: Mapping[str, float], T: float, P: float, db: SpeciesDatab
               kij="shipped") -> float:
     """Enthalpy [J, or W for mol/s] of a mixture, leaving out species too scarce to matter; with a cubic gas
     model its gas's residual enthalpy is included."""
-    from ..energy import mixture_enthalpy
-
     total = sum(amounts.values())
     kept = {s: n for s, n in amounts.items() if n > _NEGLIGIBLE * total}
     H = mixture_enthalpy(kept, T, P, db=db)
     if gas != "ideal":
-        from ..nonideal import residual_enthalpy_of_gas
-
         H += residual_enthalpy_of_gas({s: n for s, n in kept.items() if db[s].is_gas}, T, P, gas, kij=kij, db=db)
     return H
 
@@ -269,12 +315,11 @@ def equilibrium_curve(case: Case, results: list[StageResult], db: SpeciesDatabas
     # The curve takes the first stage's gas model, as its operating lines' enthalpies do.
     model = {} if first.gas == "ideal" else {"gas": first.gas, "kij": first.interactions}
     temperatures = np.linspace(spec.T_from, spec.T_to, spec.points)
-    values = []
     species = case.species
-    for T in temperatures:
-        eq = equilibrate(feed, float(T), P, species=species.only, exclude=species.exclude, inert=species.frozen,
-                         db=db, allow_extrapolation=species.allow_extrapolation, **model)
-        values.append(_curve_value(spec, eq.amounts, feed, db))
+    # One specification for the whole curve, each point warm-started from the one before.
+    prepared = prepared_for(Specification.of(species=species.only, exclude=species.exclude, inert=species.frozen,
+                                             allow_extrapolation=species.allow_extrapolation, **model), db)
+    values = [_curve_value(spec, eq.amounts, feed, db) for eq in prepared.equilibrate_many(feed, temperatures, P)]
     lines = []
     for k, result in enumerate(results):
         if not result.stage.reacts:

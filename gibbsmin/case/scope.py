@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError
+from ..reactions import independent_reactions, reaction
 from ..thermo import SpeciesDatabase
 from .services import SERVICES
 from .spec import Case, Stage
@@ -125,8 +126,6 @@ def _non_reacting(stage: Stage, present: list[str], db: SpeciesDatabase) -> Stag
 
 def _reacting(case: Case, stage: Stage, names: tuple[str, ...], present: list[str], wanted: tuple[str, ...],
               db: SpeciesDatabase) -> StageScope:
-    from ..reactions import reaction
-
     reactions = [reaction(name, db=db) for name in names]
     reacting = list(dict.fromkeys(s for rx in reactions for s in rx.species))
     clash = [s for s in reacting if s in wanted]
@@ -156,8 +155,6 @@ def _reacting(case: Case, stage: Stage, names: tuple[str, ...], present: list[st
 
 def _check_complete(reactions, reacting: list[str], db: SpeciesDatabase) -> None:
     """Refuse a list of reactions whose species admit a reaction outside their span (it would run too)."""
-    from ..reactions import independent_reactions
-
     listed = np.array([rx.vector(reacting) for rx in reactions])
     rank = np.linalg.matrix_rank(listed)
     for candidate in independent_reactions(reacting, db=db):

@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
+from ..eos import InteractionTable, default_interactions
 from ..streams import Stream
 
 
@@ -116,7 +117,6 @@ class Stage:
         """What the engine's ``kij=`` takes for this stage: the choice, or the table with the own pairs."""
         if not self.kij_pairs:
             return self.kij
-        from ..eos import InteractionTable, default_interactions
 
         base = default_interactions() if self.kij == "shipped" else InteractionTable([])
         return base.updated(dict(self.kij_pairs), model=self.gas, source="case file")  # "given table" in notes
@@ -244,8 +244,8 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "kij_pairs": "with a cubic gas model: your own kij over that table, e.g. [conditions.kij_pairs] "
                      "\"H2 NH3\" = 0.05 (two species names and a value between -1 and 1)",
         "method": "solver: 'auto' (default), 'newton', 'convex'",
-        "data": "thermochemical data set: 'nasa-1993' (default) or 'atct-anchored' (NASA polynomials "
-                "re-anchored to the Active Thermochemical Tables at 298.15 K)",
+        "data": "thermochemical data set: 'atct-anchored' (default: NASA polynomials re-anchored to the "
+                "Active Thermochemical Tables at 298.15 K, with uncertainties) or 'nasa-1993' (as published)",
         "uncertainty": "true: the report shows the standard uncertainty from the data set's formation enthalpies "
                        "beside each flow, mol%, outlet temperature, approach and carbon limit (needs a data set "
                        "that states them, 'atct-anchored'; `settle --uncertainty` asks for it in every stage)",

@@ -15,7 +15,7 @@ from pathlib import Path
 
 from ..errors import InputError, UnknownSpeciesError
 
-__all__ = ["CaseError", "NotAvailableError", "Section", "TomlSource"]
+__all__ = ["CaseError", "Section", "TomlSource"]
 
 
 class CaseError(InputError):
@@ -34,10 +34,6 @@ class CaseError(InputError):
         self.file, self.line, self.key, self.problem = file, line, key, problem
         where = f"{file}, line {line}" if line else file
         super().__init__(f"{where}: {key}: {problem}" if key else f"{where}: {problem}")
-
-
-class NotAvailableError(CaseError):
-    """A key whose computation this version of gibbsmin does not have yet."""
 
 
 # --- TOML with line numbers -------------------------------------------------------------------------

@@ -6,15 +6,14 @@ import difflib
 import math
 import numbers
 from collections.abc import Callable
+from typing import TYPE_CHECKING
 
-import pint
-
+from .. import units
 from ..errors import InputError
 from ..units import (
     NORMAL_DIN_1343,
     STANDARD_ISO_13443,
     STANDARD_US_GAS,
-    Quantity,
     ReferenceConditions,
     from_mol_s,
     parse_pressure,
@@ -22,6 +21,9 @@ from ..units import (
     to_fraction,
 )
 from .toml import kind
+
+if TYPE_CHECKING:
+    import pint
 
 
 def read_text(value: object) -> str:
@@ -69,12 +71,14 @@ def choice(*options: str) -> Callable[[object], str]:
 
 
 def _quantity(value: object, what: str, example: str) -> pint.Quantity:
+    import pint  # loaded with the unit registry (units._registry), not on import
+
     if isinstance(value, bool) or not isinstance(value, (str, numbers.Real)):
         raise InputError(f"must be {what} such as {example}, not {kind(value)}")
     if not isinstance(value, str):
         raise InputError(f"{value!r} has no unit; write {what} with one, e.g. {example}")
     try:
-        quantity = Quantity(value.replace("°", "deg"))
+        quantity = units.Quantity(value.replace("°", "deg"))
     except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError):
         raise InputError(f"cannot read {what} {value!r}; write e.g. {example}") from None
     if not isinstance(quantity, pint.Quantity) or not math.isfinite(float(quantity.magnitude)):
@@ -112,7 +116,7 @@ def read_temperature_difference(value: object) -> float:
         unit = unit.strip() or "K"
     if unit not in _DIFFERENCE_UNITS or not math.isfinite(magnitude):
         raise InputError(f"cannot read the temperature difference {value!r}; write e.g. '10 K', '10 degC' or '18 degF'")
-    return float(Quantity(magnitude, _DIFFERENCE_UNITS[unit]).to("kelvin").magnitude)
+    return float(units.Quantity(magnitude, _DIFFERENCE_UNITS[unit]).to("kelvin").magnitude)
 
 
 def read_power(value: object) -> float:
@@ -125,6 +129,8 @@ def read_power(value: object) -> float:
     if isinstance(value, str):
         value = (value.replace("MMBtu", "(1055.05585262e6 * J)").replace("Gcal", "(4.1868e9 * J)"))
     quantity = _quantity(value, "a heat flow", "'85 MW', '1500 kW' or '290 MMBtu/h'")
+    import pint  # already loaded by _quantity
+
     try:
         return float(quantity.to("W").magnitude)
     except pint.DimensionalityError:

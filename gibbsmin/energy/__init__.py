@@ -30,7 +30,7 @@ one-component feed) make H_eq(T) jump: every H inside the jump belongs to the
 boundary temperature, and only the split between the phases changes.  Both
 cases are solved exactly by Newton on the optimality conditions with the union
 of the two phase sets present and T as an unknown closed by the energy balance
-(``sensitivity.settle_on_phase_set``); its answer is accepted when every
+(``phase_boundary.solve_on_phase_boundary``); its answer is accepted when every
 condensed amount is non-negative and it certifies.
 
 For the ideal gas with the plain standard potentials this search is the
@@ -77,4 +77,5 @@ from .properties import mixture_entropy as mixture_entropy
 from .properties import state_amounts as state_amounts
 from .results import SIGN_CONVENTION as SIGN_CONVENTION
 from .results import energy_extras as energy_extras
+from .results import energy_figures as energy_figures
 from .results import with_extras as with_extras

@@ -11,9 +11,10 @@ import numpy as np
 from numpy.typing import NDArray
 
 from .. import sensitivity
+from . import phase_boundary
 from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, InputError
-from ..settle import Setup, checked, solve_fixed
+from ..fixed_step import Setup, checked, solve_fixed
 from ..solve import SolverResult
 from ..solve import _enthalpy_kernel as enthalpy_kernel
 from ..system import Problem
@@ -104,15 +105,15 @@ def solve_energy_balance(
     residual_enthalpy : callable, optional
         Gas-phase residual enthalpy (ideal gas when omitted).
     step : callable, optional
-        The fixed-T solve to iterate on; ``settle.solve_fixed`` on the ideal
+        The fixed-T solve to iterate on; ``fixed_step.solve_fixed`` on the ideal
         gas by default.  A non-ideal gas model passes its own.
     phase_set_solve : bool
         Where the bracket's ends differ in phases, solve on their union with T
-        unknown (``sensitivity.settle_on_phase_set``).  That solve knows only
+        unknown (``phase_boundary.solve_on_phase_boundary``).  That solve knows only
         the plain standard potentials: a step that shifts them (a reaction
         held at an approach) passes False and is bisected instead.
     phase_set_step : callable, optional
-        That solve; ``sensitivity.settle_on_phase_set`` on the ideal gas by
+        That solve; ``phase_boundary.solve_on_phase_boundary`` on the ideal gas by
         default.  A non-ideal gas model passes its own, which holds the same
         ln phi and residual enthalpy as ``step``.
     enthalpy_kinks : mapping, optional
@@ -330,7 +331,7 @@ class _Search:
         if self.phase_set_tries >= _PHASE_SET_TRIES and not narrow:
             return None
         self.phase_set_tries += 1
-        solve = self.phase_set_step or sensitivity.settle_on_phase_set
+        solve = self.phase_set_step or phase_boundary.solve_on_phase_boundary
         settled = solve(
             self.setup, low.problem, low.result, high.result, low.T, high.T, low.f, high.f,
             self.H_target, self.P, self.residual_enthalpy, self.allow_extrapolation)
@@ -344,8 +345,8 @@ class _Search:
                        enthalpy(system.table, system.n_gas, state_amounts(self.setup, eq), eq.T, self.P,
                                 self.residual_enthalpy), math.nan, math.nan)
         point = replace(point, f=point.H - self.H_target)
-        if not self.converged(point) or not low.T - sensitivity.PHASE_BOUNDARY_SLACK <= eq.T \
-                <= high.T + sensitivity.PHASE_BOUNDARY_SLACK:
+        if not self.converged(point) or not low.T - phase_boundary.PHASE_BOUNDARY_SLACK <= eq.T \
+                <= high.T + phase_boundary.PHASE_BOUNDARY_SLACK:
             return None
         extras = {}
         if sensitivity.fixes_temperature(self.setup, problem, result):

@@ -26,7 +26,7 @@ import numpy as np
 
 from .. import sensitivity
 from ..equilibrium import Equilibrium
-from ..settle import Setup, fixed_problem, to_equilibrium
+from ..fixed_step import Setup, fixed_problem, to_equilibrium
 from ..solve import SolverResult, certify
 from ..solve import _enthalpy_kernel as kernel
 from ..solve.newton import NewtonOptions, _same_composition

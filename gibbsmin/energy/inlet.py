@@ -10,7 +10,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError
-from ..settle import check_feed
+from ..fixed_step import check_feed
 from ..thermo.database import SpeciesDatabase
 from .properties import _temperature, mixture_enthalpy, species_enthalpies
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Mapping
 
 import numpy as np
@@ -9,22 +10,24 @@ from numpy.typing import NDArray
 
 from ..equilibrium import Equilibrium
 from ..errors import TemperatureRangeError
-from ..settle import Setup, positive_number, check_feed
+from ..fixed_step import Setup, positive_number, check_feed
 from ..solve import SolverResult
 from ..system import P_REF, Problem
-from ..thermo.database import SpeciesDatabase, default_database
-from ..thermo.nasa7 import Nasa7Table, R
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
+from ..compiled import compiled
+from ..thermo.nasa7 import ENTHALPY, ENTROPY, Nasa7Table, R, polynomials
 
 
 #: Gas-phase residual enthalpy h(T, P, n_gas) - h_ideal, [J], for the gas amounts [mol] in the
 #: System's gas order.  None means an ideal gas; a cubic equation of state supplies its own.
 ResidualEnthalpy = Callable[[float, float, NDArray[np.float64]], float]
 
-#: A fixed-T step: (T [K], warm start) -> (Equilibrium, Problem, SolverResult), as ``settle.solve_fixed``.
+#: A fixed-T step: (T [K], warm start) -> (Equilibrium, Problem, SolverResult), as ``fixed_step.solve_fixed``.
 FixedTStep = Callable[[float, "SolverResult | None"], tuple[Equilibrium, Problem, SolverResult]]
 
 #: The solve with T unknown on the union of two phase sets, with the arguments of
-#: ``sensitivity.settle_on_phase_set`` and its returns (None where that phase set is not the answer).
+#: ``phase_boundary.solve_on_phase_boundary`` and its returns (None where that phase set is not the answer).
 PhaseSetStep = Callable[..., "tuple[Equilibrium, Problem, SolverResult] | None"]
 
 
@@ -48,8 +51,8 @@ def enthalpy(table: Nasa7Table, n_gas: int, n: NDArray[np.float64], T: float, P:
     residual_enthalpy : callable, optional
         The gas's departure from the ideal gas, [J]; zero when omitted.
     """
-    n = np.asarray(n, dtype=float)
-    H = float(n @ (table.h_RT(T) * (R * T)))
+    n = np.ascontiguousarray(n, dtype=float)
+    H = _state_function(table.low, table.high, table.T_mid, n_gas, n, float(T), float(P), ENTHALPY)
     if residual_enthalpy is not None and n_gas:
         H += float(residual_enthalpy(T, P, n[:n_gas]))
     return H
@@ -60,17 +63,35 @@ def entropy(table: Nasa7Table, n_gas: int, n: NDArray[np.float64], T: float, P: 
 
     The parameters are those of :func:`enthalpy`.
     """
-    n = np.asarray(n, dtype=float)
-    s = table.s_R(T)
-    gas = n[:n_gas]
-    S = float(n[n_gas:] @ s[n_gas:])
-    N = gas.sum()
-    if N > 0.0:
-        present = gas > 0.0
-        # n ln y vanishes for a species that is not there, so absent ones are skipped rather than logged.
-        # Logs of the amounts, not of y P / P0, which underflows for species near the smallest float.
-        S += float(gas[present] @ (s[:n_gas][present] - np.log(gas[present]) + np.log(N) - np.log(P / P_REF)))
-    return R * S
+    n = np.ascontiguousarray(n, dtype=float)
+    return _state_function(table.low, table.high, table.T_mid, n_gas, n, float(T), float(P), ENTROPY)
+
+
+@compiled()
+def _state_function(low, high, T_mid, n_gas, n, T, P, quantity):
+    """H [J] or S [J/K] of amounts n at T and P: ideal mixing in the gas, pure condensed phases.
+
+    For S, n ln y vanishes for a species that is not there, so absent ones are
+    skipped rather than logged; the logs are of the amounts, not of y P/P0,
+    which underflows for species near the smallest float.
+    """
+    values = np.empty((1, low.shape[0]))
+    polynomials(low, high, T_mid, np.array([T]), quantity, values)
+    total = 0.0
+    if quantity == ENTHALPY:
+        for j in range(n.shape[0]):
+            total += n[j] * values[0, j]
+        return total * R * T
+    N = 0.0
+    for j in range(n_gas):
+        N += n[j]
+    ln_N_p = math.log(N) - math.log(P / P_REF) if N > 0.0 else 0.0
+    for j in range(n.shape[0]):
+        if j >= n_gas:
+            total += n[j] * values[0, j]
+        elif n[j] > 0.0:
+            total += n[j] * (values[0, j] - math.log(n[j]) + ln_N_p)
+    return R * total
 
 
 def heat_capacity(table: Nasa7Table, n: NDArray[np.float64], T: float) -> float:

@@ -245,12 +245,20 @@ class CubicModel:
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         if not single:
             raise InputError("ln_phi_least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
+        return self.least_gibbs_root(T, P, y)[:2]
+
+    def least_gibbs_root(self, T: float, P: float, y: ArrayLike) -> tuple[NDArray[np.float64], float, float]:
+        """ln phi [-], G_res/RT [-] and Z [-] at the real root of least Gibbs energy, for one condition
+        (a liquid-solution phase takes this root: ``nonideal.fluid_phases``)."""
+        T, P, y, single = check_conditions(T, P, y, self.n_species)
+        if not single:
+            raise InputError("least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
         *_, A, B, beta, abar = self._mixture(T, P, y)
         best = None
         for Z in real_roots(*self.family.cubic_coefficients(A, B), B):
             ln_phi, g, _, _ = self._at_root(Z, A, B, beta, abar, math.log)
             if best is None or g < best[1]:
-                best = (ln_phi, g)
+                best = (ln_phi, g, float(Z))
         return best
 
     def wilson_ratios(self, T: float, P: float) -> NDArray[np.float64]:

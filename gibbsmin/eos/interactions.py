@@ -21,7 +21,8 @@ from numpy.typing import NDArray
 
 from ..errors import DataError, InputError
 from ..thermo.database import species_directory
-from .registry import GAS_MODELS, canonical_model_name
+from ..thermo.datasets import default_database
+from .names import GAS_MODELS, canonical_model_name
 
 FILE_NAME = "interactions.toml"
 
@@ -147,8 +148,6 @@ def load_interactions(path: str | os.PathLike[str] | None = None,
 @functools.cache
 def default_interactions() -> InteractionTable:
     """The shipped table, read once."""
-    from ..thermo.database import default_database
-
     return load_interactions(gas_species=[r.name for r in default_database() if r.is_gas])
 
 

@@ -2,17 +2,20 @@
 
 from __future__ import annotations
 
-import difflib
 from collections.abc import Mapping, Sequence
 from typing import Protocol
 
 from numpy.typing import ArrayLike, NDArray
 
 from ..errors import InputError
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from .cubic import CubicModel
 from .families import PENG_ROBINSON, SOAVE_REDLICH_KWONG, CubicFamily
 from .ideal import IdealGasModel
+from .interactions import shipped_kij_matrix
+from .names import GAS_MODELS as GAS_MODELS
+from .names import canonical_model_name as canonical_model_name
 from .quantum import QuantumGas
 from .result import GasProperties
 
@@ -32,21 +35,6 @@ _FAMILIES: dict[str, CubicFamily] = {
     PENG_ROBINSON.name: PENG_ROBINSON,
     SOAVE_REDLICH_KWONG.name: SOAVE_REDLICH_KWONG,
 }
-_ALIASES = {"pr": PENG_ROBINSON.name, "soave-redlich-kwong": SOAVE_REDLICH_KWONG.name, "ideal-gas": "ideal"}
-
-#: Names accepted by :func:`gas_model`.
-GAS_MODELS: tuple[str, ...] = ("ideal", *_FAMILIES)
-
-
-def canonical_model_name(name: str) -> str:
-    """The canonical name of a gas model ("pr" -> "peng-robinson"); InputError for an unknown one."""
-    key = str(name).strip().lower().replace("_", "-").replace(" ", "-")
-    key = _ALIASES.get(key, key)
-    if key not in GAS_MODELS:
-        close = difflib.get_close_matches(key, [*GAS_MODELS, *_ALIASES], n=3, cutoff=0.5)
-        hint = f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""
-        raise InputError(f"unknown gas model {name!r}: choose one of {', '.join(GAS_MODELS)}{hint}")
-    return key
 
 
 def gas_model(
@@ -146,8 +134,6 @@ def gas_model_for_species(
     if isinstance(kij, str):
         if kij not in ("shipped", "none"):
             raise InputError(f"kij={kij!r} is not understood: give 'shipped', 'none' or a square matrix")
-        from .interactions import shipped_kij_matrix  # the table module builds on this one
-
         kij = shipped_kij_matrix(key, names) if kij == "shipped" else None
     return gas_model(
         key,

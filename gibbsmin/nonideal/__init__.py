@@ -7,7 +7,7 @@ In a non-ideal gas the potentials are
 With phi held fixed, ln phi_j only shifts g0_j/RT, and the problem is the
 convex one every solver of the package takes.  The non-ideal equilibrium is
 therefore the fixed point  ln phi = F(ln phi),  where F solves the frozen-phi
-problem (``settle.solve_fixed`` builds it once; each later pass only shifts
+problem (``fixed_step.solve_fixed`` builds it once; each later pass only shifts
 the gas potentials and re-solves, warm-started from the previous answer) and
 evaluates the equation of state at the composition it returns.  The plain
 iteration converges linearly (each pass cuts the change in ln phi by about ten
@@ -36,21 +36,21 @@ measurable.  The result names them in ``extras["gas_model_note"]``, and a
 warning is given if together they exceed ``IDEAL_SPECIES_WARNING`` of the gas.
 """
 
-from .hooks import STABILITY_SCREEN as STABILITY_SCREEN
-from .hooks import energy_hooks as energy_hooks
-from .hooks import gas_stability as gas_stability
-from .hooks import inlet_enthalpies as inlet_enthalpies
-from .hooks import inlet_residual_enthalpy as inlet_residual_enthalpy
-from .hooks import nonideal_sensitivities as nonideal_sensitivities
-from .hooks import phase_set_step as phase_set_step
-from .hooks import stability_checked as stability_checked
-from .hooks import with_stability_verdict as with_stability_verdict
+from ..eos.phase import KIJ_CHOICES as KIJ_CHOICES
+from ..eos.phase import GasPhase as GasPhase
+from ..eos.phase import gas_phase as gas_phase
+from ..eos.phase import ln_phi_of_gas as ln_phi_of_gas
+from ..eos.phase import residual_enthalpy_of_gas as residual_enthalpy_of_gas
+from .energy_balance import energy_hooks as energy_hooks
+from .energy_balance import inlet_enthalpies as inlet_enthalpies
+from .energy_balance import inlet_residual_enthalpy as inlet_residual_enthalpy
+from .energy_balance import phase_set_step as phase_set_step
 from .loop import IDEAL_SPECIES_WARNING as IDEAL_SPECIES_WARNING
 from .loop import OuterLoopOptions as OuterLoopOptions
 from .loop import solve_batch_nonideal as solve_batch_nonideal
 from .loop import solve_nonideal as solve_nonideal
-from .phase import KIJ_CHOICES as KIJ_CHOICES
-from .phase import GasPhase as GasPhase
-from .phase import gas_phase as gas_phase
-from .phase import ln_phi_of_gas as ln_phi_of_gas
-from .phase import residual_enthalpy_of_gas as residual_enthalpy_of_gas
+from .sensitivities import nonideal_sensitivities as nonideal_sensitivities
+from .stability import STABILITY_SCREEN as STABILITY_SCREEN
+from .stability import gas_stability as gas_stability
+from .stability import stability_checked as stability_checked
+from .stability import with_stability_verdict as with_stability_verdict

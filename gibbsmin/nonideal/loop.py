@@ -8,13 +8,13 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import NDArray
 
-from ..equilibrium import Equilibrium
+from ..eos.phase import GasPhase
+from ..equilibrium import Equilibrium, GasModelState
 from ..errors import ConvergenceError
-from ..settle import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
+from ..fixed_step import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from ..solve import CertificateBatch, SolverResult, certify, solve
 from ..system import Problem
 from ..thermo.nasa7 import R
-from .phase import GasPhase
 
 
 #: Above this total mole fraction of species treated as ideal for lack of critical constants, warn.
@@ -88,7 +88,7 @@ def solve_nonideal(
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium of a prepared setup at T [K] and P [Pa] with the gas described by ``phase``.
 
-    The counterpart of ``settle.solve_fixed`` for a non-ideal gas, with the
+    The counterpart of ``fixed_step.solve_fixed`` for a non-ideal gas, with the
     same arguments and returns; for the ideal gas it is ``solve_fixed`` itself.
 
     Parameters
@@ -116,7 +116,7 @@ def solve_nonideal(
         ``fugacity_coefficients`` (species to phi [-]), ``compressibility_factor``
         Z [-], ``residual_enthalpy_J`` [J], ``gas_model_iterations`` (frozen-phi
         solves), ``ln_phi_change`` (the last change [-]) and ``gas_model_note``.
-        The answer is not checked here: see ``settle.checked``.
+        The answer is not checked here: see ``fixed_step.checked``.
 
     Raises
     ------
@@ -278,17 +278,34 @@ def _finish(setup: Setup, phase: GasPhase, eq: Equilibrium, problem: Problem, re
             f"{', '.join(phase.ideal_species)} have no critical constants and were treated as ideal gases, but "
             f"make up {ideal_fraction:.2g} of the gas; the {phase.name} answer is approximate there",
             RuntimeWarning, stacklevel=4)
-    return replace(eq, certificate=certificate, extras={
-        **eq.extras,
-        "fugacity_coefficients": {s: float(np.exp(v)) for s, v in zip(phase.gas_names, final)},
-        "compressibility_factor": float(properties.Z),
-        "residual_enthalpy_J": float(total * R * eq.T * properties.H_res_RT),
-        "residual_entropy_J_per_K": float(total * R * properties.S_res_R),
-        "gas_model_iterations": iterations,
-        "ln_phi_change": change,
-        "gas_model_note": _note(phase, ideal_fraction),
-        "binary_interactions": {f"{a}-{b}": v for (a, b), v in phase.kij.items()},
-    })
+    state = GasModelState(
+        fugacity_coefficients={s: float(np.exp(v)) for s, v in zip(phase.gas_names, final)},
+        compressibility_factor=float(properties.Z),
+        residual_enthalpy_J=float(total * R * eq.T * properties.H_res_RT),
+        residual_entropy_J_per_K=float(total * R * properties.S_res_R),
+        iterations=iterations,
+        ln_phi_change=change,
+        note=_note(phase, ideal_fraction),
+        binary_interactions={f"{a}-{b}": v for (a, b), v in phase.kij.items()},
+    )
+    return replace(eq, certificate=certificate, gas=state, extras={**eq.extras, **gas_model_extras(state)})
+
+
+def gas_model_extras(state: GasModelState) -> dict[str, object]:
+    """The gas model's figures by the names ``Equilibrium.extras`` has always used."""
+    extras: dict[str, object] = {
+        "fugacity_coefficients": dict(state.fugacity_coefficients),
+        "compressibility_factor": state.compressibility_factor,
+        "residual_enthalpy_J": state.residual_enthalpy_J,
+        "residual_entropy_J_per_K": state.residual_entropy_J_per_K,
+        "gas_model_iterations": state.iterations,
+        "ln_phi_change": state.ln_phi_change,
+        "gas_model_note": state.note,
+        "binary_interactions": dict(state.binary_interactions),
+    }
+    if state.stability is not None:
+        extras["gas_phase_stability"] = state.stability
+    return extras
 
 
 def _kij_note(phase: GasPhase) -> str:

@@ -9,7 +9,8 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.optimize
 
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..thermo.nasa7 import R
 from .equations import Reaction, reaction
 from .sets import independent_reactions

@@ -18,9 +18,9 @@ from ..system import P_REF
 from ..thermo.database import (
     SpeciesDatabase,
     SpeciesRecord,
-    default_database,
     nasa7_table,
 )
+from ..thermo.datasets import default_database
 from ..thermo.nasa7 import Nasa7Table, R
 from ..units import from_pascal
 

@@ -11,7 +11,8 @@ from numpy.typing import NDArray
 
 from ..errors import InputError
 from ..system import System
-from ..thermo.database import SpeciesDatabase, SpeciesRecord, default_database
+from ..thermo.database import SpeciesDatabase, SpeciesRecord
+from ..thermo.datasets import default_database
 from .equations import (
     NAMED_REACTIONS,
     Reaction,

@@ -10,11 +10,13 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..eos import canonical_model_name
+from ..eos.phase import ln_phi_of_gas
 from ..equilibrium import Equilibrium
 from ..errors import InputError
 from ..streams import Stream
 from ..system import P_REF
-from ..thermo.database import SpeciesDatabase, default_database
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..units import to_kelvin, to_pascal
 
 #: What a quotient can be taken of: species to amount (with T and P given), an Equilibrium or a Stream.
@@ -72,7 +74,7 @@ def gas_state(
     ln_phi : mapping, optional
         Gas species to ln of its fugacity coefficient.  For an Equilibrium of
         a non-ideal gas model the default is its
-        ``extras["fugacity_coefficients"]``.
+        ``Equilibrium.gas.fugacity_coefficients``.
     gas : {"ideal", "peng-robinson", "srk"}, optional
         For a mapping or a Stream (a measured gas): take ln phi from this gas
         model at the gas's own T, P and composition, with ``kij`` as in
@@ -106,8 +108,6 @@ def gas_state(
             f"composition must be a mapping of species to amount, an Equilibrium or a Stream, not {type(composition).__name__}"
         )
     if gas is not None:
-        from ..nonideal import ln_phi_of_gas  # the equilibrium machinery is only needed for a non-ideal gas
-
         ln_phi = ln_phi_of_gas({s: math.exp(v) for s, v in ln_y.items()}, T, P, gas, kij=kij, db=db)
     return GasState(T, P, ln_y, _checked_ln_phi(ln_phi, db))
 
@@ -130,9 +130,9 @@ def _equilibrium_ln_y(eq: Equilibrium) -> dict[str, float]:
 
 
 def _equilibrium_ln_phi(eq: Equilibrium) -> dict[str, float]:
-    """ln phi of a non-ideal answer, from the fugacity coefficients its gas model left in ``extras``."""
-    phi = eq.extras.get("fugacity_coefficients")
-    if not isinstance(phi, Mapping):
+    """ln phi of a non-ideal answer, from the fugacity coefficients its gas model found (``Equilibrium.gas``)."""
+    phi = None if eq.gas is None else eq.gas.fugacity_coefficients
+    if phi is None:
         raise InputError(
             f"this equilibrium used the gas model {eq.gas_model!r} but carries no fugacity coefficients; "
             f"pass ln_phi=... (ln of each species' fugacity coefficient) so that quotients use fugacities"

@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
-from .. import __version__
 from ..audit.checks import SEVERITY, AuditResult, UnitAudit
+from ..thermo import data_set
+from ..version import __version__
 from .caution import CAUTION
 from .document import Column, Plot, Report, Table
 from .numbers import format_cell
@@ -111,8 +112,6 @@ def _uncertainty_note(result: AuditResult) -> str:
 
 
 def _data_set_name(result: AuditResult) -> str:
-    from ..thermo import data_set
-
     return result.data_set or data_set(result.plant.data).data_set
 
 

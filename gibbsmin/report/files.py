@@ -15,6 +15,8 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 
 from ..errors import InputError
+from .html import render_html
+from .spreadsheet import render_csv, render_xlsx
 
 
 def _umask() -> int:
@@ -107,8 +109,5 @@ def write_all(outputs: Sequence[tuple[str | os.PathLike[str], Callable[[], bytes
 def write_report_files(report, csv: str | None = None, xlsx: str | None = None,
                        html: str | None = None) -> list[Path]:
     """Write a :class:`~gibbsmin.report.document.Report` as CSV, XLSX and HTML where paths are given, all or none."""
-    from .html import render_html
-    from .spreadsheet import render_csv, render_xlsx
-
     renderers = [(csv, render_csv), (xlsx, render_xlsx), (html, render_html)]
     return write_all([(path, lambda render=render: render(report)) for path, render in renderers if path])

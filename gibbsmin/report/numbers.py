@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+from ..units import from_fraction
+
 #: Decimals of the fixed-point styles.
 _FIXED = {"fixed1": 1, "fixed2": 2, "fixed3": 3}
 
@@ -55,3 +57,12 @@ def _fixed_or_exp(x: float, decimals: int, smallest_fixed: float) -> str:
     if x == 0.0 or abs(x) >= smallest_fixed:
         return _unsigned_zero(f"{x:.{decimals}f}")
     return f"{x:.3g}"
+
+
+def cutoff_text(cutoff: float) -> str:
+    """A mole-fraction cutoff in the unit that writes it shortest: mol%, ppmv or ppbv."""
+    if cutoff >= 1e-4:
+        return f"{from_fraction(cutoff, 'mol%'):g} mol%"
+    if cutoff >= 1e-7:
+        return f"{from_fraction(cutoff, 'ppmv'):g} ppmv"
+    return f"{from_fraction(cutoff, 'ppbv'):g} ppbv"

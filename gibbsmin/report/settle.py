@@ -7,15 +7,18 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from .. import __version__
+from ..carbon import CARBON_REACTIONS
 from ..case import CaseResult, ReportSpec, StageResult
-from ..case.features import FEATURES
 from ..equilibrium import Equilibrium
-from ..thermo import default_database
-from ..units import from_fraction, from_kelvin, from_mol_s, from_pascal
+from ..reactions import approach_temperatures, quotients, reaction
+from ..thermo import DATA_SETS, data_set, database_holding, default_database
+from ..uncertainty import approach_uncertainty
+from ..units import from_kelvin, from_mol_s, from_pascal
+from ..version import __version__
 from .caution import CAUTION
 from .document import Column, Plot, Report, Series, Table
 from .feeds import flow_text, meets_steam, mixed_steam_to_carbon, steam_to_carbon_text
+from .numbers import cutoff_text
 from .stream_table import stream_table
 
 
@@ -37,15 +40,7 @@ def pressure_text(P: float, unit: str) -> str:
 
 def flow_in(species: str, mol_s: float, unit: str) -> float:
     """A species flow [mol/s] in ``unit`` (molar, normal-volume or mass)."""
-    return from_mol_s(mol_s, unit, molar_mass=default_database()[species].molar_mass)
-
-
-def cutoff_text(cutoff: float) -> str:
-    if cutoff >= 1e-4:
-        return f"{from_fraction(cutoff, 'mol%'):g} mol%"
-    if cutoff >= 1e-7:
-        return f"{from_fraction(cutoff, 'ppmv'):g} ppmv"
-    return f"{from_fraction(cutoff, 'ppbv'):g} ppbv"
+    return from_mol_s(mol_s, unit, molar_mass=database_holding([species], default_database())[species].molar_mass)
 
 
 def _absolute(unit: str) -> str:
@@ -147,9 +142,7 @@ def stages_table(result: CaseResult) -> Table:
                      None if duty is None else duty / 1e6, "pass" if eq.certificate.certified else "fail"))
     notes = ["duty: heat added to the stage (negative: removed), from the feeds at their stated temperatures "
              f"to the outlet; {_enthalpies_text(result)}"]
-    if not FEATURES["energy"].available():
-        notes = ["duty: not computed (the energy balance is not available in this version)"]
-    elif not result.case.feed_temperatures_known:
+    if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
@@ -218,8 +211,6 @@ def certificate_table(result: CaseResult) -> Table:
 
 def approach_table(result: CaseResult) -> Table | None:
     """Approach temperatures at each outlet: the reactions the report asks for and those a stage held."""
-    from ..reactions import approach_temperatures
-
     spec = result.case.report
     asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
@@ -248,16 +239,12 @@ def approach_table(result: CaseResult) -> Table | None:
 
 
 def _approach_uncertainty(approach) -> float | None:
-    from ..uncertainty import approach_uncertainty
-
     value = approach_uncertainty(approach)
     return value if math.isfinite(value) else None
 
 
 def kp_table(result: CaseResult) -> Table | None:
     """Kp of each reaction asked for at each outlet temperature, with its units, and the outlet's quotient."""
-    from ..reactions import quotients, reaction
-
     spec = result.case.report
     if not spec.kp:
         return None
@@ -287,18 +274,15 @@ def kp_table(result: CaseResult) -> Table | None:
 
 
 def carbon_table(result: CaseResult) -> Table | None:
-    from ..carbon import CARBON_REACTIONS, carbon_activity
-
     if not result.case.report.carbon:
         return None
     asked = any(stage.stage.uncertainty for stage in result.stages)
     rows = []
     failures = []
     for stage in result.stages:
-        eq = stage.equilibrium
-        activity = carbon_activity(eq)
+        activity, feed_ratio, limit, failure = (stage.carbon.activity, stage.carbon.steam_to_carbon,
+                                                stage.carbon.limit, stage.carbon.failure)
         verdict = activity.status  # "fail" whenever the outlet holds graphite
-        feed_ratio, limit, failure = _steam_to_carbon_limit(result, stage)
         if failure:
             failures.append(f"{stage.stage.name}: min S/C not found ({failure})")
         found = limit is not None and limit.status == "found"
@@ -321,39 +305,10 @@ def carbon_table(result: CaseResult) -> Table | None:
                  (*notes, *failures), key="carbon")
 
 
-def _steam_to_carbon_limit(result: CaseResult, stage):
-    """The S/C of a stage's inlet, the ``CarbonLimit`` at its outlet's T and P (None where undefined), and why
-    a limit that should have been found was not (None when it was, or when there is none to find)."""
-    from ..carbon import carbon_limit
-    from ..errors import GibbsminError
-    from ..streams import Stream
-
-    inlet = stage.inlet.mixed
-    eq = stage.equilibrium
-    basis = result.case.feeds[0].stream.carbon_basis
-    db = result.case.feeds[0].stream.database
-    stream = Stream(tuple(inlet), tuple(inlet.values()), eq.T, eq.P, carbon_basis=basis, database=db)
-    if stream.carbon_flow() == 0.0:
-        return None, None, None  # no carbon the ratio counts: neither a ratio nor a limit
-    ratio = stream.steam_to_carbon()
-    # The limit is searched from the inlet's gas without its water, so that it may lie below the S/C fed.
-    dry = {name: n for name, n in inlet.items() if name != "H2O"}
-    try:
-        limit = carbon_limit(dry, eq.T, eq.P, carbon_basis=basis, species=result.case.species.only,
-                             exclude=result.case.species.exclude, gas=eq.gas_model,
-                             kij=stage.stage.interactions, db=_stage_database(stage, db),
-                             uncertainty=stage.stage.uncertainty)
-    except (GibbsminError, ValueError) as exc:  # shown in the table's notes, not dropped
-        return ratio, None, " ".join(str(exc).split())
-    return ratio, limit, None
-
-
 def _stage_database(stage, fallback):
     """The database of the data set a stage's answer was computed with."""
-    from ..thermo import data_set
-
-    name = stage.equilibrium.extras.get("data_set")
-    return data_set(str(name)) if name else fallback
+    name = stage.equilibrium.data_set
+    return data_set(name) if name else fallback
 
 
 def curve_plot(result: CaseResult) -> Plot | None:
@@ -387,15 +342,15 @@ def composition_plot(result: CaseResult) -> Plot:
 
 def _gas_model_text(eq) -> str:
     """The model's name and, for a cubic, where its kij come from and those of the main species."""
-    if eq.gas_model == "ideal":
-        return "ideal"
-    pairs = eq.extras.get("binary_interactions", {})
+    if eq.gas_model == "ideal" or eq.gas is None:
+        return eq.gas_model
+    pairs = eq.gas.binary_interactions
     if not pairs:
         return f"{eq.gas_model}, van der Waals mixing, kij = 0"
     y = eq.mole_fractions
     main = {pair: v for pair, v in pairs.items()
             if all(y.get(s, 0.0) >= MAIN_SPECIES_FRACTION for s in _pair_species(pair, y))}
-    note = eq.extras.get("gas_model_note", "")
+    note = eq.gas.note
     origin = "shipped kij" if "shipped" in note else "kij of the given table" if "given table" in note else "kij given"
     listed = ", ".join(f"{pair} {value:+.4g}" for pair, value in main.items()) or "none between main species"
     return (f"{eq.gas_model}, van der Waals mixing, {origin}: {listed} "
@@ -408,9 +363,7 @@ MAIN_SPECIES_FRACTION = 1e-3
 
 def _data_set_text(result: CaseResult) -> str:
     """The data set(s) the stages used, each with what it is."""
-    from ..thermo import DATA_SETS
-
-    names = dict.fromkeys(str(s.equilibrium.extras.get("data_set", "")) for s in result.stages)
+    names = dict.fromkeys(s.equilibrium.data_set for s in result.stages)
     return "; ".join(f"{n}: {DATA_SETS[n].description}" if n in DATA_SETS else n for n in names)
 
 
@@ -442,7 +395,8 @@ def settle_report(result: CaseResult) -> Report:
              ("thermochemical data", _data_set_text(result)),
              ("amounts", "flows; the feed's flows are taken as amounts per second")]
     for stage in result.stages:
-        stability = stage.equilibrium.extras.get("gas_phase_stability")
+        gas = stage.equilibrium.gas
+        stability = None if gas is None else gas.stability
         if stability and stability.get("tested"):
             facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
@@ -462,9 +416,9 @@ def settle_report(result: CaseResult) -> Report:
     tables = [stages_table(result), *_optional(scope_table(result)), stream_table(result),
               *(stage_table(s, spec) for s in result.stages)]
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
     tables += [t for t in optional if t is not None]
     tables.append(certificate_table(result))
@@ -514,9 +468,9 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
 def _table_documents(result: CaseResult) -> dict[str, list[dict[str, object]]]:
     """The approach, Kp and carbon tables as lists of rows keyed by column heading (NaN written as None)."""
     optional = [
-        approach_table(result) if FEATURES["reactions"].available() else None,
-        kp_table(result) if FEATURES["reactions"].available() else None,
-        carbon_table(result) if FEATURES["carbon"].available() else None,
+        approach_table(result),
+        kp_table(result),
+        carbon_table(result),
     ]
 
     def plain(value):

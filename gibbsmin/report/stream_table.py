@@ -18,9 +18,10 @@ from dataclasses import dataclass
 from ..case import CaseResult, ReportSpec
 from ..errors import InputError
 from ..streams import Stream
-from ..thermo import SpeciesDatabase
+from ..thermo import SpeciesDatabase, database_holding
 from ..units import ReferenceConditions, from_kelvin
 from .document import Column, Table
+from .numbers import cutoff_text
 
 #: The flow unit of the species rows and the total, as the trade's stream tables give it.
 _FLOW = "kmol/h"
@@ -36,16 +37,18 @@ class _Column:
     T_given: bool = True  # a feed typed without a temperature has none to show
 
 
-def _stream(amounts: Mapping[str, float], T: float, P: float, like: Stream) -> Stream:
+def _stream(amounts: Mapping[str, float], T: float, P: float, like: Stream, db: SpeciesDatabase) -> Stream:
     return Stream(tuple(amounts), tuple(amounts.values()), T, P, normal=like.normal, carbon_basis=like.carbon_basis,
-                  database=like.database)
+                  database=db)
 
 
 def _column(title: str, amounts: Mapping[str, float], T: float, P: float, like: Stream) -> _Column:
-    db: SpeciesDatabase = like.database
+    # A stage may use another data set than the feeds were read with, holding species theirs lacks.
+    db = database_holding(amounts, like.database)
     present = {s: n for s, n in amounts.items() if n > 0.0 or db[s].is_gas}
     gas = {s: n for s, n in present.items() if db[s].is_gas}
-    return _Column(title, _stream(present, T, P, like), _stream(gas, T, P, like) if sum(gas.values()) > 0 else None)
+    return _Column(title, _stream(present, T, P, like, db),
+                   _stream(gas, T, P, like, db) if sum(gas.values()) > 0 else None)
 
 
 def _outlet_title(name: str) -> str:
@@ -60,7 +63,7 @@ def stream_columns(result: CaseResult) -> list[_Column]:
     for feed in case.feeds:
         stream = feed.stream
         gas = {s: n for s, n in stream.feed_mol().items() if stream.database[s].is_gas}
-        columns.append(_Column(feed.name, stream, _stream(gas, stream.T, stream.P, stream) if sum(gas.values()) > 0
+        columns.append(_Column(feed.name, stream, _stream(gas, stream.T, stream.P, stream, stream.database) if sum(gas.values()) > 0
                                else None, feed.T_given))
     previous = None
     for stage in result.stages:
@@ -151,13 +154,7 @@ def stream_table(result: CaseResult) -> Table:
         notes.append(f"{', '.join(condensed)}: condensed, in the total flows (Nm3 counted as ideal gas, as the "
                      "trade states it) but not in the gas flows or the gas mol%")
     if hidden:
-        why = "not listed in [report] show" if spec.show else f"below {_cutoff_text(spec.cutoff)} in every stream"
+        why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)} in every stream"
         notes.append(f"({hidden} gas species {why} not shown; the totals include them)")
     table_columns = (Column("item", "text"), Column("unit", "text"), *(Column(c.title, "number") for c in columns))
     return Table("Stream table", table_columns, tuple(rows), tuple(notes), key="streams", row_styles=tuple(styles))
-
-
-def _cutoff_text(cutoff: float) -> str:
-    from .settle import cutoff_text
-
-    return cutoff_text(cutoff)

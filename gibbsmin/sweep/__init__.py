@@ -6,18 +6,8 @@ from .grid import grid as grid
 from .grid import axis_from_text as axis_from_text
 from .grid import axis_size as axis_size
 
-# The solving and writing halves import pandas (about 0.3 s); they load on first use, so that the command line
-# (which reads this package for the `sweep` subcommand's arguments) and `settle` do not pay for them.
-_LAZY = {"solve_points": ".chunk", "SweepOutput": ".run", "run_sweep": ".run"}
+from .chunk import solve_points as solve_points
+from .run import SweepOutput as SweepOutput
+from .run import run_sweep as run_sweep
 
-__all__ = ["Axis", "SweepSpec", "grid", "axis_from_text", "axis_size", *_LAZY]
-
-
-def __getattr__(name: str) -> object:
-    if name not in _LAZY:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    import importlib
-
-    value = getattr(importlib.import_module(_LAZY[name], __name__), name)
-    globals()[name] = value
-    return value
+__all__ = ["Axis", "SweepSpec", "grid", "axis_from_text", "axis_size", "solve_points", "SweepOutput", "run_sweep"]

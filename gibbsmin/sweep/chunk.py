@@ -7,12 +7,17 @@ else, so a chunk solved twice gives the same table.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import numpy as np
-import pandas as pd
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 from ..api import prepared_for
 from ..prepared import Prepared
-from ..settle import Setup
+from ..fixed_step import Setup
+from ..uncertainty import batch_uncertainty
 from ..thermo.datasets import data_set
 from .grid import SweepSpec
 
@@ -36,6 +41,8 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     any point Newton cannot certify), marked by its ``solver``; a point no
     solver certifies keeps ``certified = False``.  No point is dropped.
     """
+    import pandas as pd  # optional heavy dependency: loaded where a table is made
+
     db = data_set(spec.data)
     prepared, setup = prepared_sweep(spec)
     system = setup.system
@@ -69,8 +76,6 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
         summary["stationarity"][group] = certificates.stationarity
         summary["condensed_margin"][group] = certificates.complementarity
         if spec.uncertainty:
-            from ..uncertainty import batch_uncertainty
-
             u_y[group], u_condensed[group] = batch_uncertainty(setup, problem, result, T[group], spec.data)
     columns: dict[str, object] = {"point": np.arange(first, last)}
     columns.update(shown)

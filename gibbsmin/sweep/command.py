@@ -7,9 +7,12 @@ import io
 import math
 import sys
 
+from ..case import read_case
 from ..errors import InputError
 from ..report.files import write_atomic
 from .grid import SweepSpec, axis_from_text, axis_size, check_axis_names
+from .plots import carbon_map
+from .run import run_sweep
 
 #: Above this many points a sweep runs only with --yes (at the 79,000 to 255,000 points/s of DEVELOPERS.md a
 #: million points take seconds; far larger grids are usually a typing slip in a step).
@@ -68,9 +71,6 @@ def spec_from_case(case, axes, uncertainty: bool = False) -> SweepSpec:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..case import read_case
-    from .run import run_sweep
-
     sizes = [axis_size(text) for text in args.vary]
     total = math.prod(sizes)
     size_text = f"{total:,} points ({' x '.join(f'{n:,}' for n in sizes)})"
@@ -95,7 +95,6 @@ def run(args: argparse.Namespace) -> int:
             raise InputError(f"--map takes X,Y,COLUMN (e.g. T,S/C,y_CH4), not {args.map!r}")
         x, y, column = parts
         labels = {a.name: a.label for a in spec.axes}
-        from .plots import carbon_map
         figure = carbon_map(table, labels.get(x, x), labels.get(y, y), column, title=case.title)
         picture = io.BytesIO()
         figure.savefig(picture, format="png", dpi=120)

@@ -8,6 +8,7 @@ writes anything; it only says what point i is.
 
 from __future__ import annotations
 
+import difflib
 import hashlib
 import json
 import math
@@ -18,12 +19,13 @@ from dataclasses import dataclass, field
 import numpy as np
 from numpy.typing import NDArray
 
-from ..eos import InteractionTable, default_interactions
-from ..errors import InputError
+from ..eos import InteractionTable, canonical_model_name, default_interactions
+from ..errors import InputError, UnknownSpeciesError
 from ..prepared import Specification
 from ..streams import CARBON_BASES, counted_carbon
-from ..thermo.database import SpeciesDatabase, default_database
-from ..thermo.datasets import DEFAULT_DATA, check_data_name
+from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import DEFAULT_DATA, UNNAMED_DATA, check_data_name, data_set, default_database
+from ..units import to_kelvin, to_pascal
 
 #: Axis names with a meaning of their own; any other name is a feed species.
 SPECIAL_AXES = ("T", "P", "S/C")
@@ -126,8 +128,6 @@ class SweepSpec:
                 raise InputError(f"axis {axis.name} must hold positive values in K or Pa")
             if axis.name not in ("T", "P") and min(axis.values) < 0:
                 raise InputError(f"axis {axis.name} must not hold negative values")
-        from ..eos import canonical_model_name
-
         object.__setattr__(self, "gas", canonical_model_name(self.gas))
         check_data_name(self.data)
         if self.uncertainty:
@@ -138,8 +138,6 @@ class SweepSpec:
 
     def _check_uncertainty(self) -> None:
         """Uncertainty columns need the ideal gas and a data set that states uncertainties: refused up front."""
-        from ..thermo.datasets import data_set
-
         if self.gas != "ideal":
             raise InputError(f"a sweep's uncertainty columns are propagated for the ideal gas only, not {self.gas!r}: "
                              "drop the uncertainty, or compute the points you need with equilibrate(..., "
@@ -222,7 +220,7 @@ class SweepSpec:
             data.update(gas=self.gas, kij=self.kij)
             if self.kij_pairs:
                 data["kij_pairs"] = [list(p) for p in self.kij_pairs]
-        if self.data != DEFAULT_DATA:  # likewise: the default set keeps the old fingerprints
+        if self.data != UNNAMED_DATA:  # likewise: the NASA set keeps the old fingerprints
             data["data"] = self.data
         if self.uncertainty:  # and a sweep without uncertainty columns
             data["uncertainty"] = True
@@ -239,7 +237,7 @@ class SweepSpec:
             carbon_basis=data["carbon_basis"], method=data["method"],
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
             kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
-            data=data.get("data", DEFAULT_DATA), uncertainty=data.get("uncertainty", False),
+            data=data.get("data", UNNAMED_DATA), uncertainty=data.get("uncertainty", False),
         )
 
     def fingerprint(self) -> str:
@@ -304,8 +302,6 @@ def axis_from_text(text: str) -> Axis:
     The stop value is included when the steps reach it.  T and P need their
     unit: a bare number is refused, as in a case file.
     """
-    from ..units import to_kelvin, to_pascal
-
     name, unit, ranged, shown = _read_axis(text)
     if ranged:
         start, _, step = ranged
@@ -323,10 +319,6 @@ def axis_from_text(text: str) -> Axis:
 
 def check_axis_names(names: Sequence[str], feed: Sequence[str], db: SpeciesDatabase | None = None) -> None:
     """Refuse an axis that is neither T, P, S/C nor a species, naming the axes there are and the closest."""
-    import difflib
-
-    from ..errors import UnknownSpeciesError
-
     db = db or default_database()
     for name in names:
         if name in SPECIAL_AXES:

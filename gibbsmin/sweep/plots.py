@@ -7,17 +7,27 @@ Figure; saving it is the caller's business (the report layer writes files).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from collections.abc import Sequence
 
-import matplotlib
+import numpy as np
 
-matplotlib.use("Agg")  # no screen on the machines this runs on; files only
+if TYPE_CHECKING:
+    import pandas as pd
 
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-import pandas as pd  # noqa: E402
+from ..errors import InputError
 
-from ..errors import InputError  # noqa: E402
+
+def _pyplot():
+    """matplotlib's pyplot on the file-only backend (no screen on the machines this runs on), loaded on first
+    use: an optional heavy dependency the sweep command needs only for --map and --plot."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt
 
 CAUTION = "Thermodynamic limits, not designs: check against local codes and licensed engineering practice."
 
@@ -34,7 +44,7 @@ def carbon_map(table: pd.DataFrame, x: str, y: str, value: str, carbon: str = "n
     _need(table, x, y, value)
     grid = table.pivot_table(index=y, columns=x, values=value, aggfunc="first").sort_index()
     xs, ys = grid.columns.to_numpy(float), grid.index.to_numpy(float)
-    figure, axes = plt.subplots(figsize=(7, 5))
+    figure, axes = _pyplot().subplots(figsize=(7, 5))
     mesh = axes.pcolormesh(xs, ys, grid.to_numpy(float), shading="nearest", cmap="viridis")
     figure.colorbar(mesh, ax=axes, label=value)
     if carbon in table.columns:
@@ -55,7 +65,7 @@ def carbon_map(table: pd.DataFrame, x: str, y: str, value: str, carbon: str = "n
 def lines(table: pd.DataFrame, x: str, columns: Sequence[str], by: str | None = None, title: str = ""):
     """Result columns against one axis, one line per value of ``by`` when given."""
     _need(table, x, *columns, *([by] if by else []))
-    figure, axes = plt.subplots(figsize=(7, 5))
+    figure, axes = _pyplot().subplots(figsize=(7, 5))
     groups = table.groupby(by) if by else [(None, table)]
     for key, part in groups:
         part = part.sort_values(x)
@@ -78,7 +88,7 @@ def equilibrium_curve(table: pd.DataFrame, x: str, y: str, operating_line: pd.Da
     """
     _need(table, x, y)
     part = table.sort_values(x)
-    figure, axes = plt.subplots(figsize=(7, 5))
+    figure, axes = _pyplot().subplots(figsize=(7, 5))
     axes.plot(part[x], scale * part[y], color="black", label="equilibrium")
     if operating_line is not None:
         _need(operating_line, x, y)

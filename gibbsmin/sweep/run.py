@@ -13,6 +13,8 @@ writes the same table twice: nothing is lost or duplicated.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import io
 import json
 import multiprocessing
@@ -22,7 +24,8 @@ from concurrent.futures import ProcessPoolExecutor, as_completed
 from dataclasses import dataclass
 from pathlib import Path
 
-import pandas as pd
+if TYPE_CHECKING:
+    import pandas as pd
 
 from ..errors import InputError
 from ..report.files import write_atomic
@@ -73,6 +76,8 @@ class SweepOutput:
 
     def frame(self, columns: list[str] | None = None) -> pd.DataFrame:
         """All points as one table, in point order (reads every chunk: mind the memory on huge sweeps)."""
+        import pandas as pd  # optional heavy dependency: loaded where a table is made
+
         parts = [pd.read_parquet(chunk_path(self.folder, i), columns=columns) for i in range(self.chunks)]
         return pd.concat(parts, ignore_index=True)
 
@@ -131,6 +136,8 @@ def run_sweep(
     -------
     DataFrame (no ``out``) or SweepOutput
     """
+    import pandas as pd  # optional heavy dependency: loaded where a table is made
+
     if chunk_size < 1 or workers < 1:
         raise InputError("chunk_size and workers must be positive whole numbers")
     n_chunks = -(-spec.n_points // chunk_size)

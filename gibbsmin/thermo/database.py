@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import difflib
 import functools
 import os
 import tomllib
@@ -91,7 +92,7 @@ class SpeciesDatabase:
                 self._by_alias[key] = i
         self._table = nasa7_table(self._records)
         #: Objects derived from these records alone (species sets and their Systems), kept for reuse
-        #: by ``settle.feed_species_set``; the records never change, so nothing in it goes stale.
+        #: by ``fixed_step.feed_species_set``; the records never change, so nothing in it goes stale.
         self.memo: dict[object, object] = {}
 
     def __len__(self) -> int:
@@ -146,11 +147,8 @@ class SpeciesDatabase:
             found.append(record)
         return found
 
-
     def close_matches(self, text: str, n: int = 4) -> list[str]:
         """Species whose name or an alias is spelled close to ``text`` (any case), as "NH3 (ammonia)" or "NH3"."""
-        import difflib
-
         spellings: dict[str, str] = {}
         for record in self:
             spellings.setdefault(record.name.casefold(), record.name)
@@ -290,6 +288,6 @@ def load_database(directory: str | os.PathLike[str] | None = None, data_set: str
 
 
 @functools.lru_cache(maxsize=1)
-def default_database() -> SpeciesDatabase:
-    """The shipped database, loaded once per process."""
+def shipped_database() -> SpeciesDatabase:
+    """The species files at the top of the species folder, the data set "nasa-1993" (loaded once per process)."""
     return load_database()

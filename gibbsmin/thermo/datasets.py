@@ -9,10 +9,11 @@ from __future__ import annotations
 
 import functools
 import os
+from collections.abc import Iterable
 from dataclasses import dataclass
 
-from ..errors import InputError
-from .database import SpeciesDatabase, default_database, load_database, species_directory
+from ..errors import DataError, InputError
+from .database import SpeciesDatabase, load_database, shipped_database, species_directory
 
 
 @dataclass(frozen=True)
@@ -34,8 +35,16 @@ DATA_SETS: dict[str, DataSet] = {
     )
 }
 
-#: The data set used when none is named.
-DEFAULT_DATA = "nasa-1993"
+#: The data set used when none is named: the better-checked one (ATcT's enthalpies of formation, with
+#: their uncertainties; see README "Which thermochemical data").  Name "nasa-1993" for the NASA values
+#: as published (the comparisons with Cantera's NASA evaluation do).
+DEFAULT_DATA = "atct-anchored"
+
+
+#: The data set of anything recorded without a data-set name (a sweep's spec written before the data
+#: sets, or with the NASA data): the default until "atct-anchored" became it.  Such records keep their
+#: meaning; the new default is written out by name.
+UNNAMED_DATA = "nasa-1993"
 
 
 def check_data_name(data: object) -> str:
@@ -47,9 +56,13 @@ def check_data_name(data: object) -> str:
 
 @functools.lru_cache(maxsize=None)
 def _load(name: str, directory: str, override: str) -> SpeciesDatabase:
-    if name == DEFAULT_DATA and not override:
-        return default_database()
+    if name == "nasa-1993" and not override:
+        return shipped_database()
     folder = os.path.join(directory, DATA_SETS[name].folder)
+    if override and not os.path.isdir(folder):
+        raise DataError(f"GIBBSMIN_SPECIES={override} has no folder {DATA_SETS[name].folder!r} for the data set "
+                        f"{name!r}; copy species/{DATA_SETS[name].folder} into it, or pass data='nasa-1993' to use "
+                        "the files at its top")
     return load_database(folder, data_set=name if not override else f"{name} (files in {folder})")
 
 
@@ -59,6 +72,11 @@ def data_set(data: str | None = None) -> SpeciesDatabase:
     return _load(name, str(species_directory()), os.environ.get("GIBBSMIN_SPECIES", ""))
 
 
+def default_database() -> SpeciesDatabase:
+    """The database of the default data set (``DEFAULT_DATA``), loaded once per process."""
+    return data_set()
+
+
 def choose_database(data: str | None, db: SpeciesDatabase | None) -> SpeciesDatabase:
     """The database of ``data=``, or ``db`` as given; naming both is an error unless they agree."""
     if db is None:
@@ -66,3 +84,22 @@ def choose_database(data: str | None, db: SpeciesDatabase | None) -> SpeciesData
     if data is not None and check_data_name(data) != db.data_set:
         raise InputError(f"data={data!r} and db= (data set {db.data_set!r}) disagree; pass one of them")
     return db
+
+
+def database_holding(names: Iterable[str], preferred: SpeciesDatabase | None = None) -> SpeciesDatabase:
+    """``preferred`` (the default set's when None) if it knows every name, else the first shipped set that does.
+
+    For what does not depend on the data set (formula, phase, molar mass): a stream table whose feeds
+    were read with one set can then show an outlet of another that holds a species the first lacks
+    (liquid methanol is in "atct-anchored" only).  Raises the preferred set's error where none does.
+    """
+    names = list(names)
+    preferred = preferred if preferred is not None else data_set()
+    if all(name in preferred for name in names):
+        return preferred
+    for name in DATA_SETS:
+        candidate = data_set(name)
+        if all(n in candidate for n in names):
+            return candidate
+    preferred.resolve(names)  # raises UnknownSpeciesError naming the first unknown species
+    return preferred

@@ -16,7 +16,8 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ..errors import InputError
-from .database import SpeciesDatabase, default_database
+from .database import SpeciesDatabase
+from .datasets import default_database
 from .nasa7 import R
 
 REFERENCE_FORMS: dict[str, tuple[str, ...]] = {

@@ -22,8 +22,10 @@ from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .compiled import compiled
 from .solve import SOLVERS, SolverResult, solve
-from .system import Problem, System, reduce, select_species, standard_mu0
-from .thermo.database import SpeciesDatabase, SpeciesRecord, default_database
+from .system import P_REF, Problem, System, reduce, select_species
+from .thermo.database import SpeciesDatabase, SpeciesRecord
+from .thermo.datasets import default_database
+from .thermo.nasa7 import GIBBS, polynomials
 from .thermo.datasets import choose_database
 
 #: The total feed amounts accepted, [mol].  The answer does not depend on the total, and far beyond
@@ -220,19 +222,48 @@ def build_problem(setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64],
                   allow_extrapolation: bool = False) -> Problem:
     """The dimensionless problem of a setup at temperatures T [K] and pressures P [Pa] (batches)."""
     system = setup.system
-    T = np.atleast_1d(np.asarray(T, dtype=float))
-    outside = system.table.outside_range(T)
-    if not allow_extrapolation:
-        gas_outside = outside[:, : system.n_gas]
-        if np.any(gas_outside):
-            point, j = np.argwhere(gas_outside)[0]
-            record = system.records[j]
-            raise TemperatureRangeError(record.name, float(T[point]), record.T_min, record.T_max)
-    allowed = ~outside if not allow_extrapolation else np.ones_like(outside)
-    allowed[:, : system.n_gas] = True
-    b = setup.b if b is None else b
-    b = np.broadcast_to(np.atleast_2d(b), (T.size, system.A.shape[0]))
-    return reduce(system, b, standard_mu0(system, T, P, ln_phi), allowed)
+    table = system.table
+    T = np.ascontiguousarray(np.atleast_1d(np.asarray(T, dtype=float)))
+    P = np.atleast_1d(np.asarray(P, dtype=float))
+    if P.shape != T.shape:
+        P = np.ascontiguousarray(np.broadcast_to(P, T.shape))
+    mu0 = np.empty((T.size, len(system.records)))
+    allowed = np.empty((T.size, len(system.records)), dtype=bool)
+    point, j = _conditions(table.low, table.high, table.T_mid, table.T_min, table.T_max, system.n_gas, T, P,
+                           allow_extrapolation, mu0, allowed)
+    if point >= 0:
+        record = system.records[j]
+        raise TemperatureRangeError(record.name, float(T[point]), record.T_min, record.T_max)
+    if ln_phi is not None:
+        mu0[:, : system.n_gas] += ln_phi
+    b = np.atleast_2d(setup.b if b is None else b)
+    if b.shape[0] != T.size:
+        b = np.broadcast_to(b, (T.size, system.A.shape[0]))
+    return reduce(system, b, mu0, allowed)
+
+
+@compiled()
+def _conditions(low, high, T_mid, T_min, T_max, n_gas, T, P, extrapolate, mu0, allowed):
+    """g0/RT (with ln(P/P0) on the gas) and which condensed species may appear, at every (T, P).
+
+    Returns the point and species of the first gas species outside its data
+    range (an error unless extrapolating), or (-1, -1).  Compiled with the
+    polynomials: one point of ten species is the common case, where array
+    operations would cost more than the sums.
+    """
+    polynomials(low, high, T_mid, T, GIBBS, mu0)
+    for p in range(T.shape[0]):
+        ln_p = math.log(P[p] / P_REF)
+        for j in range(mu0.shape[1]):
+            inside = T_min[j] <= T[p] <= T_max[j]
+            if j < n_gas:
+                mu0[p, j] += ln_p
+                allowed[p, j] = True
+                if not inside and not extrapolate:
+                    return p, j
+            else:
+                allowed[p, j] = inside or extrapolate
+    return -1, -1
 
 
 def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certificates, i: int,

@@ -13,11 +13,15 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..errors import InputError
-from ..eos import (GasModel, GasProperties, IdealGasModel, InteractionTable, canonical_model_name,
-                   default_interactions, gas_model_for_species)
 from ..system import System
 from ..thermo.database import SpeciesDatabase
+from ..thermo.datasets import default_database
 from ..thermo.nasa7 import R
+from .ideal import IdealGasModel
+from .interactions import InteractionTable, default_interactions
+from .names import canonical_model_name
+from .registry import GasModel, gas_model_for_species
+from .result import GasProperties
 
 
 @dataclass(frozen=True, eq=False)
@@ -41,6 +45,10 @@ class GasPhase:
         The non-zero binary interaction parameters in use, ``{(a, b): kij}``.
     kij_origin : str
         Where they come from: "shipped table", "none" (all zero) or "given".
+    condensed_forms : mapping
+        Gas species to the System's condensed species of the same elements
+        (``{"H2O": ("H2O(l)", "H2O(s)")}``), so a would-be liquid can be told
+        from a condensate the answer already holds.
     """
 
     name: str
@@ -50,6 +58,7 @@ class GasPhase:
     ideal_species: tuple[str, ...]
     kij: Mapping[tuple[str, str], float] = field(default_factory=dict)
     kij_origin: str = "none"
+    condensed_forms: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
 
     @property
     def is_ideal(self) -> bool:
@@ -170,7 +179,15 @@ def gas_phase(system: System, gas: str = "peng-robinson", *,
         return GasPhase("ideal", IdealGasModel(len(gas_names)), np.arange(len(gas_names)), gas_names, ())
     ideal = tuple(name for name in gas_names if name not in names)
     used = {pair: float(value) for pair, value in pairs.items() if value != 0.0}
-    return GasPhase(model.name, model, described, gas_names, ideal, used, origin if used else "none")
+    return GasPhase(model.name, model, described, gas_names, ideal, used, origin if used else "none",
+                    _condensed_forms(system, records))
+
+
+def _condensed_forms(system: System, gas_records) -> dict[str, tuple[str, ...]]:
+    """Each gas record's condensed species in the System with the same elements."""
+    condensed = system.records[system.n_gas:]
+    forms = {r.name: tuple(c.name for c in condensed if dict(c.elements) == dict(r.elements)) for r in gas_records}
+    return {name: names for name, names in forms.items() if names}
 
 
 KIJ_CHOICES = ("shipped", "none")
@@ -223,8 +240,6 @@ def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
 
 def _model_of_gas(fractions: Mapping[str, float], gas: str, kij, db: SpeciesDatabase | None):
     """The cubic over the species of a composition that have critical constants, their fractions, and all names."""
-    from ..thermo.database import default_database
-
     db = db or default_database()
     names = [s for s, v in fractions.items() if v > 0.0]
     records = db.resolve(names)
