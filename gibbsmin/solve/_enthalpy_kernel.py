@@ -31,7 +31,7 @@ import numpy as np
 from ..compiled import compiled
 from ..system import P_REF
 from ..thermo.nasa7 import ENTHALPY, GIBBS, HEAT_CAPACITY, R, polynomials
-from ._newton_kernel import CONVERGED, _lu_solve, iterate_point, step_limits
+from ._newton_kernel import CONVERGED, _lu_solve, iterate_point, step_limits, take_step
 
 # Outcomes of ``run`` beyond the Newton kernel's CONVERGED, NOT_CONVERGED, SINGULAR and CYCLING.
 START_FAILED = 10       # the fixed-T solve at the starting temperature did not converge
@@ -342,22 +342,11 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
         biggest, lam2, worst = step_limits(ln_n, ln_N, d_ln_n, d_ln_N, 5.0 * max(abs(d_ln_N), abs(d_ln_T)))
         if not (math.isfinite(worst) and math.isfinite(d_ln_T)):
             return T, iteration, HP_NOT_CONVERGED
-        lam = 1.0
-        if biggest > 2.0:
-            lam = 2.0 / biggest
-        lam = min(lam, lam2)
-        if lam <= 0.0:
-            lam = 1.0
-        worst_c = 0.0
-        for j in range(G):
-            ln_n[j] += lam * d_ln_n[j]
+        lam, worst_c = take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2)
         ln_N += lam * d_ln_N
         for c in range(C):
-            if active[c]:
-                n_c[c] += lam * x[M + c]
-                worst_c = max(worst_c, abs(x[M + c]))
-                if n_c[c] < 0.0:
-                    return T, iteration, PHASE_CHANGED
+            if active[c] and n_c[c] < 0.0:
+                return T, iteration, PHASE_CHANGED
         T_new = T * math.exp(lam * d_ln_T)
         if not T_low <= T_new <= T_high:
             # The bracketed search names the bound and the species that set it; it takes over here.

@@ -432,6 +432,26 @@ def step_limits(ln_n, ln_N, d_ln_n, d_ln_N, biggest):
 
 
 @compiled()
+def take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2):
+    """The step length from ``step_limits`` (at most e^2 on a major unknown, the traces' lift) and the step on
+    the gas and the present condensed amounts (their changes at x[M:]); returns (lam, largest condensed change)."""
+    lam = 1.0
+    if biggest > 2.0:
+        lam = 2.0 / biggest
+    lam = min(lam, lam2)
+    if lam <= 0.0:
+        lam = 1.0
+    for j in range(ln_n.size):
+        ln_n[j] += lam * d_ln_n[j]
+    worst_c = 0.0
+    for c in range(n_c.size):
+        if active[c]:
+            n_c[c] += lam * x[M + c]
+            worst_c = max(worst_c, abs(x[M + c]))
+    return lam, worst_c
+
+
+@compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place.
@@ -585,22 +605,10 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
         biggest, lam2, worst = step_limits(ln_n, ln_N, d_ln_n, d_ln_N, 5.0 * abs(d_ln_N))
         if not math.isfinite(worst):
             return iteration, NOT_CONVERGED
-        lam = 1.0
-        if biggest > 2.0:
-            lam = 2.0 / biggest
-        lam = min(lam, lam2)
-        if lam <= 0.0:
-            lam = 1.0
+        lam, worst_c = take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2)
+        ln_N += lam * d_ln_N
         rechoose = False
         full_step = lam == 1.0
-        worst_c = 0.0
-        for j in range(G):
-            ln_n[j] += lam * d_ln_n[j]
-        ln_N += lam * d_ln_N
-        for c in range(C):
-            if active[c]:
-                n_c[c] += lam * x[M + c]
-                worst_c = max(worst_c, abs(x[M + c]))
         # A phase set with no solution shows itself as a condensed amount
         # driven below zero: drop that phase now rather than iterate in vain.
         dropped = -1
