@@ -33,6 +33,10 @@ class EnergyFigures:
         |H_out - H_in - duty| over the gross enthalpy.
     T_evaluations : int or None
         Fixed-T solves the energy balance took (None at a fixed T).
+    balance_path : str or None
+        How the energy balance was solved: "enthalpy-pressure Newton" (T among the Newton's unknowns, the
+        plain ideal gas on one phase set) or "temperature search" (bracketed, phase changes and plateaus
+        included); None at a fixed T.
     phase_boundary : mapping or None
         Where coexisting phases fix the outlet T (a plateau), as the energy balance reports it.
     enthalpy_kink : mapping or None
@@ -48,6 +52,7 @@ class EnergyFigures:
     duty_W: float | None = None
     balance_residual: float | None = None
     T_evaluations: int | None = None
+    balance_path: str | None = None
     phase_boundary: Mapping[str, object] | None = None
     enthalpy_kink: Mapping[str, object] | None = None
     balance_miss_K: float | None = None

@@ -338,7 +338,8 @@ class Prepared:
                 allow_extrapolation=spec.allow_extrapolation, residual_enthalpy=residual, step=step,
                 phase_set_solve=not held,
                 phase_set_step=None if phase.is_ideal else functools.partial(nonideal.phase_set_step, phase),
-                enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks)
+                enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks,
+                plain_ideal_gas=phase.is_ideal and not held)
             eq = dataclasses.replace(eq, specification=text)
         else:
             eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)

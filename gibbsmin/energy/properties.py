@@ -140,6 +140,13 @@ def mixture_enthalpy(amounts: Mapping[str, float], T: float, P: float = P_REF, *
     return enthalpy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
 
 
+def species_enthalpies(amounts: Mapping[str, float], T: float, *, db: SpeciesDatabase | None = None,
+                       allow_extrapolation: bool = False) -> NDArray[np.float64]:
+    """n_j h_j of each species of a mixture on the formation basis, [J] (gas species first, as in ``_mixture``)."""
+    table, _, n, T = _mixture(amounts, T, db, allow_extrapolation)
+    return n * (table.h_RT(T) * (R * T))
+
+
 def mixture_entropy(amounts: Mapping[str, float], T: float, P: float = P_REF, *,
                     db: SpeciesDatabase | None = None, allow_extrapolation: bool = False) -> float:
     """Entropy of a mixture, [J/K]: ideal gas mixture plus pure condensed phases (see ``mixture_enthalpy``)."""

@@ -53,7 +53,8 @@ def energy_figures(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None,
 
 
 #: EnergyFigures' fields the energy balance's search reports, and its names for them.
-_SEARCH_FIGURES = {"T_evaluations": "T_evaluations", "phase_boundary": "phase_boundary",
+_SEARCH_FIGURES = {"T_evaluations": "T_evaluations", "balance_path": "energy_balance_path",
+                   "phase_boundary": "phase_boundary",
                    "enthalpy_kink": "enthalpy_kink", "balance_miss_K": "energy_balance_miss_K"}
 
 
