@@ -270,15 +270,21 @@ class CubicModel:
             raise InputError("least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
         return self.single_condition(T, P, y, _LEAST_GIBBS)
 
+    def mixing_parameters(self, T: float) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], bool]:
+        """sqrt(a_i) and b_i at T, the (1 - k_ij) matrix and whether it is there: what the compiled
+        single-condition evaluation (``_single_ln_phi``) takes."""
+        sqrt_a, _, b_i, _ = self._pure(float(T))
+        k = self._one_minus_k
+        return (np.ascontiguousarray(sqrt_a, dtype=float), np.ascontiguousarray(b_i, dtype=float),
+                _NO_K if k is None else k, k is not None)
+
     def single_condition(self, T: float, P: float, y: NDArray[np.float64],
                          choice: int) -> tuple[NDArray[np.float64], float, float]:
         """ln phi [-], G_res/RT [-] and Z [-] of one checked condition (T, P floats; y of shape (S,), summing to
         one) at the root ``choice`` (0 vapour, 1 liquid, 2 least Gibbs energy), by the compiled evaluation."""
-        sqrt_a, _, b_i, _ = self._pure(float(T))
-        k = self._one_minus_k
+        sqrt_a, b_i, one_minus_k, has_k = self.mixing_parameters(T)
         fam = self.family
-        ln_phi, g, Z = _single_ln_phi(np.ascontiguousarray(sqrt_a, dtype=float), np.ascontiguousarray(b_i, dtype=float),
-                                      _NO_K if k is None else k, k is not None, np.ascontiguousarray(y, dtype=float),
+        ln_phi, g, Z = _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, np.ascontiguousarray(y, dtype=float),
                                       float(T), float(P), fam.delta1, fam.delta2, choice)
         return ln_phi, float(g), float(Z)
 

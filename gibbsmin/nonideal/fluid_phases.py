@@ -34,6 +34,7 @@ cubic has nothing to say of them in a liquid.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -44,7 +45,9 @@ from ..eos.stability import tangent_plane_test
 from .stability import stability_and_trial
 from ..equilibrium import Equilibrium, FluidPhase
 from ..errors import ConvergenceError
+from ..compiled import compiled
 from ..fixed_step import Setup, fixed_problem
+from ..solve._newton_kernel import _lu_solve
 from ..solve import SolverResult
 from ..solve.certificate import Certificate, Tolerances
 from ..system import Problem
@@ -210,45 +213,104 @@ def _frozen_phi_split(problem: Problem, phases: list[_Phase], pi: NDArray[np.flo
     Returns the potentials, the condensed amounts and whether the iteration converged; the phases' ``ln_N``
     are updated in place.
     """
-    A = problem.A
-    M, G = A.shape[0], problem.n_gas
-    A_g, A_c = A[:, :G], A[:, G:]
-    b = problem.b[0]
-    scale = max(float(np.abs(b).max()), 1e-300)
-    mu0_c = problem.mu0[0, G:]
-    F = len(phases)
-    cond = np.flatnonzero(present_c)
+    G = problem.n_gas
+    A = np.ascontiguousarray(problem.A, dtype=float)
+    ln_N = np.array([p.ln_N for p in phases])
     pi, n_c = pi.copy(), n_c.copy()
-    for _ in range(_INNER_ITERATIONS):
-        ln_x = _compositions(problem, phases, pi)
-        x = np.exp(ln_x)                                        # (F, G)
-        N = np.exp([p.ln_N for p in phases])                    # (F,)
-        n = N[:, None] * x
-        r_elements = A_g @ n.sum(axis=0) + A_c[:, cond] @ n_c[cond] - b
-        r_phases = x.sum(axis=1) - 1.0
-        r_condensed = mu0_c[cond] - pi @ A_c[:, cond]
-        size = M + F + cond.size
-        J = np.zeros((size, size))
-        J[:M, :M] = (A_g * n.sum(axis=0)) @ A_g.T
-        J[:M, M:M + F] = (A_g @ n.T)
-        J[:M, M + F:] = A_c[:, cond]
-        J[M:M + F, :M] = x @ A_g.T
-        J[M + F:, :M] = -A_c[:, cond].T
-        residual = np.concatenate([r_elements, r_phases, r_condensed])
-        if (np.max(np.abs(r_elements)) <= _INNER_TOLERANCE * scale and np.max(np.abs(r_phases), initial=0.0)
-                <= _INNER_TOLERANCE and np.max(np.abs(r_condensed), initial=0.0) <= _INNER_TOLERANCE):
-            return pi, n_c, True
-        try:
-            step = np.linalg.solve(J, -residual)
-        except np.linalg.LinAlgError:
-            step = np.linalg.lstsq(J, -residual, rcond=None)[0]
-        biggest = float(np.max(np.abs(step[: M + F])))
-        damping = min(1.0, _MAX_STEP / biggest) if biggest > 0.0 else 1.0
-        pi = pi + damping * step[:M]
-        for k, p in enumerate(phases):
-            p.ln_N += damping * step[M + k]
-        n_c[cond] = np.maximum(n_c[cond] + damping * step[M + F:], 0.0)
-    return pi, n_c, False
+    converged = _split_newton(np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:]), problem.b[0],
+                              np.ascontiguousarray(problem.mu0[0, :G]), np.ascontiguousarray(problem.mu0[0, G:]),
+                              np.array([p.ln_phi for p in phases]), np.array([p.allowed for p in phases]),
+                              np.ascontiguousarray(present_c), ln_N, pi, n_c, _INNER_TOLERANCE, _INNER_ITERATIONS,
+                              _MAX_STEP)
+    for p, value in zip(phases, ln_N):
+        p.ln_N = float(value)
+    return pi, n_c, bool(converged)
+
+
+@compiled()
+def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, pi, n_c, tolerance, max_iterations,
+                  max_step):
+    """The frozen-phi split in compiled loops (ln_N, pi, n_c updated in place); True when converged.
+
+    Unknowns pi (M), ln N_a (F), the present condensed amounts; equations: the element balance, each phase's
+    mole fractions summing to one, each present condensed species at mu0_c = a_c . pi.
+    """
+    M, G = A_g.shape
+    F = ln_N.shape[0]
+    C = A_c.shape[1]
+    cond = np.flatnonzero(present_c)
+    K = M + F + cond.shape[0]
+    scale = 0.0
+    for k in range(M):
+        scale = max(scale, abs(b[k]))
+    x = np.zeros((F, G))
+    J = np.empty((K, K))
+    rhs = np.empty(K)
+    step = np.empty(K)
+    for _ in range(max_iterations):
+        worst_e = 0.0
+        worst_p = 0.0
+        worst_c = 0.0
+        for a in range(F):
+            total = 0.0
+            for j in range(G):
+                if allowed[a, j]:
+                    potential = 0.0
+                    for k in range(M):
+                        potential += A_g[k, j] * pi[k]
+                    x[a, j] = math.exp(potential - mu0_g[j] - ln_phi[a, j])
+                else:
+                    x[a, j] = 0.0
+                total += x[a, j]
+            rhs[M + a] = -(total - 1.0)
+            worst_p = max(worst_p, abs(total - 1.0))
+        J[:, :] = 0.0
+        for k in range(M):
+            r = -b[k]
+            for a in range(F):
+                N = math.exp(ln_N[a])
+                s_kn = 0.0
+                for j in range(G):
+                    n = N * x[a, j]
+                    r += A_g[k, j] * n
+                    s_kn += A_g[k, j] * n
+                    for l in range(M):
+                        J[k, l] += A_g[k, j] * A_g[l, j] * n
+                J[k, M + a] = s_kn
+            for i in range(cond.shape[0]):
+                r += A_c[k, cond[i]] * n_c[cond[i]]
+                J[k, M + F + i] = A_c[k, cond[i]]
+                J[M + F + i, k] = -A_c[k, cond[i]]
+            rhs[k] = -r
+            worst_e = max(worst_e, abs(r))
+        for a in range(F):
+            for l in range(M):
+                s_x = 0.0
+                for j in range(G):
+                    s_x += x[a, j] * A_g[l, j]
+                J[M + a, l] = s_x
+        for i in range(cond.shape[0]):
+            c = cond[i]
+            potential = 0.0
+            for k in range(M):
+                potential += A_c[k, c] * pi[k]
+            rhs[M + F + i] = -(mu0_c[c] - potential)
+            worst_c = max(worst_c, abs(mu0_c[c] - potential))
+        if worst_e <= tolerance * scale and worst_p <= tolerance and worst_c <= tolerance:
+            return True
+        if not _lu_solve(J, rhs, step):
+            return False
+        biggest = 0.0
+        for i in range(M + F):
+            biggest = max(biggest, abs(step[i]))
+        damping = min(1.0, max_step / biggest) if biggest > 0.0 else 1.0
+        for k in range(M):
+            pi[k] += damping * step[k]
+        for a in range(F):
+            ln_N[a] += damping * step[M + a]
+        for i in range(cond.shape[0]):
+            n_c[cond[i]] = max(n_c[cond[i]] + damping * step[M + F + i], 0.0)
+    return False
 
 
 def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, passes):
