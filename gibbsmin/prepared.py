@@ -326,11 +326,10 @@ class Prepared:
         complete = self._complete_reactions(setup, known) if spec.restricted or held else None
         text = self._specification_text(energy_balance, frozen_mol)
         offsets_at = self._offsets(setup, complete) if held else None
-        step = functools.partial(self._step, setup, P, phase, offsets_at, text,
-                                 self.liquids and not energy_balance)
+        step = functools.partial(self._step, setup, P, phase, offsets_at, text, self.liquids)
         residual = None if phase.is_ideal else phase.residual_enthalpy
         H_in, gross_in = nonideal.inlet_enthalpies(None if phase.is_ideal else phase, inlet, P, db,
-                                                   spec.allow_extrapolation)
+                                                   spec.allow_extrapolation, liquids=self.liquids)
         if energy_balance:
             eq, problem, result = energy.solve_energy_balance(
                 setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),

@@ -253,3 +253,19 @@ def mole_fraction_sum_error(result: FlashResult, z: Mapping[str, float]) -> floa
         xi = result.x[name] if result.x else 0.0
         worst = max(worst, abs(beta * yi + (1.0 - beta) * xi - zi))
     return worst if math.isfinite(worst) else math.inf
+
+
+def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
+                              gas: str = "peng-robinson", quantum_correction: bool = True) -> float:
+    """thermo's residual (departure) enthalpy [J] of ``amounts`` [mol] as one phase at T [K], P [Pa]: on the
+    vapour root (``root="gas"``) or the liquid root (any other phase name), gibbsmin's constants and kij."""
+    present = {name: n for name, n in amounts.items() if n > 0.0}
+    names, zs = _split(present)
+    Tc, Pc, omega = _constants_at(names, T, quantum_correction)
+    kij = shipped_kij_matrix(gas, list(names))
+    n = len(names)
+    given = {"Tcs": Tc, "Pcs": Pc, "omegas": omega,
+             "kijs": kij.tolist() if kij is not None else [[0.0] * n for _ in range(n)]}
+    eos = THERMO_CLASSES[gas]
+    phase = (CEOSGas if root == "gas" else CEOSLiquid)(eos, given, T=T, P=P, zs=zs)
+    return float(phase.H_dep()) * sum(present.values())

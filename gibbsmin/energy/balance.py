@@ -20,7 +20,8 @@ from ..solve import _enthalpy_kernel as enthalpy_kernel
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
 from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, equilibrium_heat_capacity, solve_at_fixed_enthalpy
-from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
+from .properties import (FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts,
+                         state_enthalpy)
 
 
 #: The energy balance is solved to this fraction of the gross enthalpy (see ``enthalpy_scale``).
@@ -218,9 +219,7 @@ class _Search:
             # Only the final answer's precision matters; a usable intermediate one is fine.
             warnings.simplefilter("ignore", RuntimeWarning)
             checked(eq)
-        system = self.setup.system
-        n = state_amounts(self.setup, eq)
-        H = enthalpy(system.table, system.n_gas, n, T, self.P, self.residual_enthalpy)
+        H = state_enthalpy(self.setup, eq, self.P, self.residual_enthalpy)
         cp = equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
         point = _Point(T, eq, problem, result, H, H - self.H_target, cp)
         self.points.append(point)

@@ -154,6 +154,17 @@ def mixture_entropy(amounts: Mapping[str, float], T: float, P: float = P_REF, *,
     return entropy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
 
 
+def state_enthalpy(setup: Setup, eq: Equilibrium, P: float,
+                   residual_enthalpy: ResidualEnthalpy | None = None) -> float:
+    """Enthalpy of an answer, [J]: with liquid-solution phases, the residual parts summed over its fluid phases
+    (each on its own root: ``GasModelState.residual_enthalpy_J``); otherwise the gas's, by ``residual_enthalpy``."""
+    system = setup.system
+    n = state_amounts(setup, eq)
+    if eq.fluid_phases is not None:
+        return enthalpy(system.table, system.n_gas, n, eq.T, P) + eq.gas.residual_enthalpy_J
+    return enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
+
+
 def state_amounts(setup: Setup, eq: Equilibrium) -> NDArray[np.float64]:
     """Amounts of an equilibrium in its System's species order, [mol]."""
     return np.array([eq.amounts[name] for name in setup.system.names])

@@ -12,7 +12,7 @@ from ..equilibrium import EnergyFigures, Equilibrium
 from ..fixed_step import Setup
 from .balance import enthalpy_scale
 from .inlet import Inlet
-from .properties import ResidualEnthalpy, enthalpy, entropy, state_amounts
+from .properties import ResidualEnthalpy, entropy, state_amounts, state_enthalpy
 
 #: Written into every result that carries a heat figure.
 SIGN_CONVENTION = "positive = heat added to the reactor; J per the feed amounts given (W when they are mol/s)"
@@ -29,12 +29,11 @@ def energy_figures(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None,
     """
     system = setup.system
     n = state_amounts(setup, eq)
+    H_out = state_enthalpy(setup, eq, P, residual_enthalpy)
     if eq.fluid_phases is None:
-        H_out = enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
         S_out = entropy(system.table, system.n_gas, n, eq.T, P)
     else:
-        # Each fluid phase mixes on its own; the residual parts are the gas model's, summed over the phases.
-        H_out = enthalpy(system.table, system.n_gas, n, eq.T, P) + eq.gas.residual_enthalpy_J
+        # Each fluid phase mixes on its own (the residual entropy is the gas model's, summed over the phases).
         condensed = n.copy()
         condensed[: system.n_gas] = 0.0
         S_out = entropy(system.table, system.n_gas, condensed, eq.T, P) + sum(
