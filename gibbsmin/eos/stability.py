@@ -57,13 +57,15 @@ class Stability:
     trial: NDArray[np.float64] | None = None
 
 
-def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike) -> Stability:
-    """Whether the gas z [mole fractions, the model's order] at T [K], P [Pa] is stable as one phase."""
+def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike, *, liquid: bool = False) -> Stability:
+    """Whether the gas z [mole fractions, the model's order] at T [K], P [Pa] is stable as one phase (with
+    ``liquid``, the liquid z on its root of least Gibbs energy)."""
     z = np.asarray(z, dtype=float)
     z = z / z.sum()
     there = z > 0.0
     d = np.full(z.shape, -np.inf)
-    d[there] = np.log(z[there]) + model.ln_phi(T, P, z)[there]  # the gas as the equilibrium has it
+    ln_phi_z = model.single_condition(float(T), float(P), z, _LEAST_GIBBS)[0] if liquid else model.ln_phi(T, P, z)
+    d[there] = np.log(z[there]) + ln_phi_z[there]  # the phase as the equilibrium has it
     K = model.wilson_ratios(T, P)
     sqrt_a, b_i, one_minus_k, has_k = model.mixing_parameters(float(T))
     family = model.family
@@ -76,6 +78,13 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike) -> S
         # Back at z on the gas's own root is the trivial point; at z on another root (a pure fluid above
         # its vapour pressure, say) the distance tells.
         if float(np.max(np.abs(w - z))) < _TRIVIAL and abs(distance) < -UNSTABLE_BELOW:
+            continue
+        # Successive substitution may wander without settling in a strongly non-ideal liquid: the distance
+        # counts only where the tangent-plane distance itself, at the point reached, is negative too.
+        ln_phi_w = model.single_condition(float(T), float(P), w, _LEAST_GIBBS)[0]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            tpd = float(np.sum(np.where(there, w * (np.log(np.where(there, w, 1.0)) + ln_phi_w - d), 0.0)))
+        if not tpd < UNSTABLE_BELOW:
             continue
         if math.isfinite(distance) and distance < lowest:
             lowest, trial = distance, w

@@ -59,6 +59,8 @@ PHI_TOLERANCE = 1e-10
 MAX_PASSES = 200
 #: A phase holding less than this share of the fluid amount is dropped [-].
 VANISHED = 1e-12
+#: A phase the inner Newton has driven below this share of the fluid, without converging, is leaving [-].
+_LEAVING = 1e-8
 #: Two phases closer than this in every mole fraction are one phase [-].
 SAME_COMPOSITION = 1e-6
 #: Inner Newton: the residual tolerance (element rows relative to the totals) and its iteration limit.
@@ -320,6 +322,14 @@ def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, p
     for _ in range(MAX_PASSES):
         passes += 1
         pi, n_c, converged = _frozen_phi_split(problem, phases, pi, n_c, present_c)
+        if not converged and len(phases) > 1:
+            # A phase on its way out leaves its closure sum_j x_j = 1 as an equation no potentials can meet:
+            # drop it and solve again on the phases that hold the mixture.
+            total = sum(np.exp(p.ln_N) for p in phases)
+            remaining = [p for p in phases if np.exp(p.ln_N) > _LEAVING * total]
+            if remaining and len(remaining) < len(phases):
+                phases = remaining
+                continue
         if not converged:
             raise ConvergenceError(
                 f"the split into {len(phases)} fluid phases did not converge at T = {T:g} K, "
@@ -373,7 +383,7 @@ def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: ND
     ln_x = _compositions(problem, phases, pi)
     first = _system_gas(np.exp(ln_x[0]), keep_gas, n_gas)
     part = first[phase.described]
-    verdict = tangent_plane_test(phase.model, T, P, part / part.sum())
+    verdict = tangent_plane_test(phase.model, T, P, part / part.sum(), liquid=phases[0].liquid)
     if verdict.stable or len(phases) >= int(liquid_allowed.sum()):
         return None, verdict.distance
     trial = np.zeros(n_gas)
