@@ -33,10 +33,12 @@ _NEGLIGIBLE = 1e-14
 
 @dataclass(frozen=True)
 class StageInlet:
-    """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given)."""
+    """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given), and
+    whether it holds a liquid solution (a separator's liquid, or a two-phase outlet passed on whole)."""
 
     streams: Mapping[str, Mapping[str, float]]
     temperatures: Mapping[str, float | None]
+    holds_liquid: bool = False
 
     @property
     def mixed(self) -> dict[str, float]:
@@ -71,6 +73,14 @@ class StageResult:
             return separator_outlets(eq)[self.stage.passes_on]
         return {s: n for s, n in eq.amounts.items()
                 if n > 0.0 and (self.stage.type != "knock-out" or eq.phase_of[s] == "gas")}
+
+    @property
+    def passes_on_liquid(self) -> bool:
+        """Whether what leaves for the next stage holds a liquid solution."""
+        eq = self.equilibrium
+        if self.stage.type == "separator":
+            return self.stage.passes_on == "liquid"
+        return self.stage.type != "knock-out" and any(p.name != "gas" for p in eq.fluid_phases or ())
 
     @property
     def duty_W(self) -> float | None:
@@ -188,7 +198,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         if progress is not None:
             progress(stage.name)
         if stage.T_in is not None:
-            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
+            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams}, inlet.holds_liquid)
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
@@ -200,7 +210,8 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
         result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
-        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
+        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T},
+                           result.passes_on_liquid)
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -245,7 +256,11 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet
     if stage.type in _HEAT_CHECKED:
         _check_heat_direction(stage, inlet)
     balance = {}
-    if inlet.temperatures_known:
+    if inlet.holds_liquid and (stage.adiabatic or stage.duty is not None):
+        raise InputError("this stage's inlet holds a liquid (the outlet the stage before passes on), and the energy "
+                         "balance takes every inlet as a gas, so it cannot set this stage's temperature yet; give "
+                         "the stage its outlet T (e.g. T = '40 degC')")
+    if inlet.temperatures_known and not inlet.holds_liquid:  # a liquid inlet's enthalpy would be taken as a gas's
         balance = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
                    "heat_input": stage.heat_input if stage.duty is None else stage.duty}
     feed = dict(inlet.streams) if balance else inlet.mixed

@@ -197,6 +197,10 @@ def stages_table(result: CaseResult) -> Table:
              f"to the outlet; {_enthalpies_text(result)}"]
     if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
+    for stage in result.stages:
+        if stage.inlet.holds_liquid:
+            notes.append(f"{stage.stage.name}: no duty, as its inlet holds a liquid, whose enthalpy the energy balance "
+                         "does not yet take (it would count it as a gas)")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
                      "set's stated uncertainties of the enthalpies of formation (blank where T was given)")
@@ -218,7 +222,9 @@ def _enthalpies_text(result: CaseResult) -> str:
     if not cubic:
         return text
     everywhere = len(result.stages) == sum(len(names) for names in cubic.values())
-    parts = [f"the {model} residual enthalpy of the gas{'' if everywhere else ' in ' + ', '.join(names)}"
+    liquid = any(stage.equilibrium.fluid_phases is not None for stage in result.stages)
+    of_what = "of the gas (and of each liquid solution, on its own root)" if liquid else "of the gas"
+    parts = [f"the {model} residual enthalpy {of_what}{'' if everywhere else ' in ' + ', '.join(names)}"
              for model, names in cubic.items()]
     return (f"{text}, plus {' and '.join(parts)} (each feed at its own temperature and the stage pressure, "
             "the outlet at its own)")
