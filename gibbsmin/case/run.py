@@ -319,7 +319,7 @@ def _check_no_condensate(case: Case, stage: Stage, scope: StageScope, eq: Equili
     supersaturated gas would leave out the condensation heat)."""
     if "H2O" not in eq.amounts:
         return
-    model = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    model = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions, "liquid": False}
     probe = equilibrate(eq.amounts, eq.T, eq.P, species=[*scope.species, LIQUID_WATER],
                         inert=[s for s in scope.held if s != "H2O"], db=db,
                         allow_extrapolation=case.species.allow_extrapolation, **model)
