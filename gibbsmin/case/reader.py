@@ -36,7 +36,9 @@ _TABLES = ("case", "feed", "conditions", "stage", "species", "curve", "report")
 _FEED_SETTINGS = tuple(k for k in CASE_KEYS["feed"] if not k.startswith("<"))
 _STAGE_KEYS = tuple(CASE_KEYS["conditions"])
 _GAS_MODELS = ("ideal", "peng-robinson", "srk")
-STAGE_TYPES = ("reactor", "heater", "cooler", "knock-out")
+STAGE_TYPES = ("reactor", "heater", "cooler", "knock-out", "separator")
+#: The outlets of a separator the next stage may take.
+SEPARATOR_OUTLETS = ("vapour", "liquid")
 
 
 def read_case(path: str | os.PathLike[str], db: SpeciesDatabase | None = None) -> Case:
@@ -244,6 +246,9 @@ def _read_stages(root: Section, db: SpeciesDatabase) -> tuple[Stage, ...]:
 
 def _read_stage(section: Section, index: int, count: int, db: SpeciesDatabase) -> Stage:
     kind = section.get("type", choice(*STAGE_TYPES), "reactor")
+    if "next" in section and kind != "separator":
+        raise section.error("next", f"only goes with type = 'separator' (the outlet the next stage takes); a {kind} "
+                            "has one outlet")
     if kind != "reactor":
         return _read_exchanger(section, index, count, kind)
     if "duty" in section:
@@ -304,22 +309,24 @@ def _names_in(db: SpeciesDatabase) -> Callable[[object], tuple[str, ...]]:
     return names
 
 
-#: The one direction of heat each non-reacting stage type takes (+1 heats, -1 cools).
+#: The one direction of heat each non-reacting stage type with a duty takes (+1 heats, -1 cools).
 _HEAT_DIRECTION = {"heater": 1.0, "cooler": -1.0, "knock-out": -1.0}
 
 
 def _read_exchanger(section: Section, index: int, count: int, kind: str) -> Stage:
-    """A heater, cooler or knock-out: outlet T or duty, pressure; nothing reacts, so no reaction keys."""
+    """A heater, cooler, knock-out or separator: outlet T (or duty), pressure; nothing reacts, so no reaction keys."""
     for key in ("adiabatic", "heat_loss", "heat_input", "approach", "service", "reactions", "frozen"):
         if key in section:
             raise section.error(key, f"only goes with type = 'reactor'; nothing reacts in a {kind} (every species "
-                                "keeps its flow" + (", water may condense)" if kind == "knock-out" else ")"))
-    if ("T" in section) == ("duty" in section):
+                                "keeps its flow" + _WHAT_CHANGES.get(kind, ")"))
+    if kind == "separator":
+        _check_separator(section)
+    elif ("T" in section) == ("duty" in section):
         raise section.error(None, f"a {kind} needs either its outlet T (e.g. T = '40 degC') or its duty "
                             "(e.g. duty = '-12 MW'), not both")
     gas_model = _read_gas_model(section)
     duty = section.get("duty", read_power, None)
-    direction = _HEAT_DIRECTION[kind]
+    direction = _HEAT_DIRECTION.get(kind, 0.0)
     if duty is not None and duty * direction < 0.0:
         size = str(section.data["duty"]).strip().removeprefix("-").strip()
         fix = f"duty = '-{size}'" if direction < 0 else f"duty = '{size}'"
@@ -334,9 +341,31 @@ def _read_exchanger(section: Section, index: int, count: int, kind: str) -> Stag
         line=section.source.line(section.path), **gas_model, method=_read_method(section), type=kind, duty=duty,
         data=section.get("data", choice(*DATA_SETS), None),
         uncertainty=section.get("uncertainty", read_bool, False),
+        passes_on=section.get("next", choice(*SEPARATOR_OUTLETS), "vapour"),
     )
     section.finish(_STAGE_KEYS)
     return stage
+
+
+#: What a non-reacting stage does besides keeping every flow, closing the sentence of a refused reaction key.
+_WHAT_CHANGES = {"knock-out": ", water may condense)", "separator": ", shared between vapour and liquid)"}
+
+
+def _check_separator(section: Section) -> None:
+    """A separator is a flash at a given T and P with a cubic: refuse a duty, a missing T and the ideal gas."""
+    if "duty" in section:
+        raise section.error("duty", "a separator is flashed at its outlet T; give T (e.g. T = '40 degC') instead "
+                            "of duty (its duty is a result)")
+    if "T" not in section:
+        raise section.error(None, "a separator needs its outlet T, e.g. T = '40 degC' (its duty is a result)")
+    if section.data.get("gas", "ideal") == "ideal":
+        key = "gas" if "gas" in section else None
+        raise section.error(key, "a separator needs a cubic gas model, which describes the liquid solution as well "
+                            "as the vapour: add gas = 'peng-robinson' (or 'srk'); with the ideal gas, a type = "
+                            "'knock-out' condenses water alone")
+    if "uncertainty" in section and section.data["uncertainty"] is True:
+        raise section.error("uncertainty", "is not yet propagated through a split into vapour and liquid; remove "
+                            "uncertainty from the separator")
 
 
 def _read_gas_model(section: Section) -> dict[str, object]:

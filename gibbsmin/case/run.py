@@ -33,10 +33,12 @@ _NEGLIGIBLE = 1e-14
 
 @dataclass(frozen=True)
 class StageInlet:
-    """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given)."""
+    """What enters a stage: streams by name (species to mol/s) with their temperatures [K] (None: not given), and
+    whether it holds a liquid solution (a separator's liquid, or a two-phase outlet passed on whole)."""
 
     streams: Mapping[str, Mapping[str, float]]
     temperatures: Mapping[str, float | None]
+    holds_liquid: bool = False
 
     @property
     def mixed(self) -> dict[str, float]:
@@ -64,16 +66,43 @@ class StageResult:
 
     @property
     def outlet(self) -> dict[str, float]:
-        """What leaves for the next stage, species to mol/s: a knock-out's vapour, any other stage's whole outlet."""
+        """What leaves for the next stage, species to mol/s: a knock-out's vapour, a separator's vapour or liquid
+        (``next``), any other stage's whole outlet."""
         eq = self.equilibrium
+        if self.stage.type == "separator":
+            return separator_outlets(eq)[self.stage.passes_on]
         return {s: n for s, n in eq.amounts.items()
                 if n > 0.0 and (self.stage.type != "knock-out" or eq.phase_of[s] == "gas")}
+
+    @property
+    def passes_on_liquid(self) -> bool:
+        """Whether what leaves for the next stage holds a liquid solution."""
+        eq = self.equilibrium
+        if self.stage.type == "separator":
+            return self.stage.passes_on == "liquid"
+        return self.stage.type != "knock-out" and any(p.name != "gas" for p in eq.fluid_phases or ())
 
     @property
     def duty_W(self) -> float | None:
         """Heat added to the stage, [W], when the energy balance was computed."""
         energy = self.equilibrium.energy
         return None if energy is None or energy.duty_W is None else float(energy.duty_W)
+
+
+def separator_outlets(eq: Equilibrium) -> dict[str, dict[str, float]]:
+    """A flash's two outlets, species to mol/s: "vapour" (the gas phase) and "liquid" (every liquid-solution phase
+    and pure condensed species); either may be empty."""
+    if eq.fluid_phases is None:
+        vapour = {s: n for s, n in eq.amounts.items() if n > 0.0 and eq.phase_of[s] == "gas"}
+        return {"vapour": vapour if eq.gas_present else {}, "liquid": dict(eq.condensed)}
+    vapour: dict[str, float] = {}
+    liquid: dict[str, float] = dict(eq.condensed)
+    for phase in eq.fluid_phases:
+        into = vapour if phase.name == "gas" else liquid
+        for s, n in phase.amounts.items():
+            if n > 0.0:
+                into[s] = into.get(s, 0.0) + n
+    return {"vapour": vapour, "liquid": liquid}
 
 
 @dataclass(frozen=True)
@@ -169,7 +198,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         if progress is not None:
             progress(stage.name)
         if stage.T_in is not None:
-            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams})
+            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams}, inlet.holds_liquid)
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
@@ -181,7 +210,8 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         carbon = stage_carbon(case, stage, inlet, eq, stage_db) if case.report.carbon else None
         result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
-        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T})
+        inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T},
+                           result.passes_on_liquid)
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -209,9 +239,11 @@ def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
 
 def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specification:
     """What a stage computes, as the one specification every front door builds (``gibbsmin.prepare``)."""
-    # Liquid-solution phases stay off in case files until the reports show each phase: a stage's cubic gas that
-    # would condense is flagged not certified, as before.
-    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions, "liquid": False}
+    # With a cubic, a reactor's gas that would condense splits into liquid-solution phases and a separator is that
+    # flash; heaters and coolers keep one gas (flagged where it would condense) and a knock-out condenses water
+    # alone, as pure H2O(l).
+    liquid = {"reactor": None, "separator": True}.get(stage.type, False)
+    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions, "liquid": liquid}
     if stage.approach:
         return Specification.of(species=scope.species, exclude=scope.exclude, approach=dict(stage.approach),
                                 frozen=list(scope.held) or None, method=stage.method,
@@ -221,10 +253,14 @@ def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specific
 
 
 def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
-    if not stage.reacts:
+    if stage.type in _HEAT_CHECKED:
         _check_heat_direction(stage, inlet)
     balance = {}
-    if inlet.temperatures_known:
+    if inlet.holds_liquid and (stage.adiabatic or stage.duty is not None):
+        raise InputError("this stage's inlet holds a liquid (the outlet the stage before passes on), and the energy "
+                         "balance takes every inlet as a gas, so it cannot set this stage's temperature yet; give "
+                         "the stage its outlet T (e.g. T = '40 degC')")
+    if inlet.temperatures_known and not inlet.holds_liquid:  # a liquid inlet's enthalpy would be taken as a gas's
         balance = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
                    "heat_input": stage.heat_input if stage.duty is None else stage.duty}
     feed = dict(inlet.streams) if balance else inlet.mixed
@@ -233,14 +269,36 @@ def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet
     if stage.type in ("heater", "cooler"):
         _check_no_condensate(case, stage, scope, eq, db)
     extras = {**eq.extras, "stage": scope.to_dict()}
+    if stage.type == "separator":
+        _check_outlet_taken(stage, eq)
+        extras["next_stage_takes"] = stage.passes_on
     if stage.type == "knock-out":
         others = possible_condensates(eq.amounts, eq.T, db)
         if others:
             note = (f"{', '.join(others)} may condense in a real drum at {eq.T - 273.15:.1f} degC; this knock-out "
-                    "condenses water alone (no liquid solution is modelled), so the vapour shown holds all of it")
+                    "condenses water alone (no liquid solution is modelled), so the vapour shown holds all of it; a "
+                    "type = 'separator' with gas = 'peng-robinson' computes that liquid")
             warnings.warn(f"{stage.name}: {note}", stacklevel=3)
             extras["condensables_not_modelled"] = note
     return dataclasses.replace(eq, extras=extras)
+
+
+#: Stage types whose outlet T is checked against the direction of heat their type says (a separator may be either).
+_HEAT_CHECKED = ("heater", "cooler", "knock-out")
+
+
+def _check_outlet_taken(stage: Stage, eq: Equilibrium) -> None:
+    """The outlet a separator passes on must exist: refuse a liquid taken where nothing condenses (and a vapour
+    where everything does)."""
+    if separator_outlets(eq)[stage.passes_on]:
+        return
+    where = f"{eq.T - 273.15:.2f} degC and {eq.P / 1e5:.6g} bar"
+    if stage.passes_on == "liquid":
+        raise InputError(f"next = 'liquid', but nothing condenses: the separator's outlet is all vapour at {where} "
+                         "(the tangent-plane test finds its gas stable, so its dew point lies below that T); take "
+                         "the vapour (remove next), or give the separator a lower T or a higher P")
+    raise InputError(f"the next stage takes the vapour, but the separator's outlet is all liquid at {where} (no vapour "
+                     "forms); add next = 'liquid', or give the separator a higher T or a lower P")
 
 
 def _check_heat_direction(stage: Stage, inlet: StageInlet) -> None:
@@ -261,7 +319,7 @@ def _check_no_condensate(case: Case, stage: Stage, scope: StageScope, eq: Equili
     supersaturated gas would leave out the condensation heat)."""
     if "H2O" not in eq.amounts:
         return
-    model = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    model = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions, "liquid": False}
     probe = equilibrate(eq.amounts, eq.T, eq.P, species=[*scope.species, LIQUID_WATER],
                         inert=[s for s in scope.held if s != "H2O"], db=db,
                         allow_extrapolation=case.species.allow_extrapolation, **model)

@@ -8,7 +8,8 @@ also admit 2 CH4 = C2H6 + H2) the case is refused with the reaction to add.  Liq
 appear beside a reacting H2O (a phase change, not a reaction).
 
 A heater or cooler holds every species; a knock-out holds every species but water, which may
-condense as pure liquid H2O(l) with an ideal gas (or the stage's gas model) above it.
+condense as pure liquid H2O(l) with an ideal gas (or the stage's gas model) above it.  A separator
+holds every species too, and its cubic shares each between the vapour and a liquid solution (a flash).
 """
 
 from __future__ import annotations
@@ -37,7 +38,7 @@ class StageScope:
     Attributes
     ----------
     type : str
-        The stage's type ("reactor", "heater", "cooler", "knock-out").
+        The stage's type ("reactor", "heater", "cooler", "knock-out", "separator").
     species : tuple of str or None
         The species set handed to the engine (None: the case's set).
     exclude : tuple of str
@@ -72,6 +73,8 @@ class StageScope:
             return "none (composition unchanged)"
         if self.type == "knock-out":
             return f"water condenses ({LIQUID_WATER} drawn off)"
+        if self.type == "separator":
+            return "none (flash: vapour and liquid split)"
         if self.reactions is None:
             return "every reaction of the species set"
         return "; ".join(self.reactions)
@@ -84,6 +87,9 @@ class StageScope:
         if self.type == "knock-out":
             return ("water alone condenses, as pure liquid under the stage's gas; any other condensable stays in the "
                     "gas (no liquid solution is modelled)")
+        if self.type == "separator":
+            return ("a flash: every species keeps its flow, shared between the vapour and the liquid solution by the "
+                    "stage's cubic (equal fugacities)")
         if self.type != "reactor":
             return f"a {self.type} changes temperature only"
         listed = "reactions listed in the case file" if self.reactions is not None else "the case's species set"
@@ -112,6 +118,10 @@ def stage_scope(case: Case, stage: Stage, inlet: Mapping[str, float], db: Specie
 
 def _non_reacting(stage: Stage, present: list[str], db: SpeciesDatabase) -> StageScope:
     solids = [s for s in present if not db[s].is_gas and not (stage.type == "knock-out" and s == LIQUID_WATER)]
+    if solids and stage.type == "separator":
+        raise InputError(f"the inlet holds {', '.join(solids)} as a pure condensed species, but a separator describes "
+                         "its liquid with the cubic (a solution): leave it out of the species set of the stage before "
+                         f"(e.g. [species] exclude = {solids!r}), so that the liquid stays in the solution")
     if solids:
         raise InputError(f"the inlet holds {', '.join(solids)}, but a {stage.type} carries a gas "
                          f"{'and its water condensate ' if stage.type == 'knock-out' else ''}only; keep "

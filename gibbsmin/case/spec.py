@@ -70,7 +70,8 @@ class Stage:
         Solver.
     type : str
         "reactor" (reacts to equilibrium, or as ``service`` / ``reactions`` allow), "heater" and
-        "cooler" (composition unchanged), "knock-out" (only water condenses; the liquid is drawn off).
+        "cooler" (composition unchanged), "knock-out" (only water condenses; the liquid is drawn off),
+        "separator" (a flash at T and P with the stage's cubic: vapour and liquid outlets).
     service : str or None
         A reactor's service (:data:`gibbsmin.case.services.SERVICES`), which sets its reactions.
     reactions : tuple of str or None
@@ -85,6 +86,8 @@ class Stage:
         Propagate the data set's formation-enthalpy uncertainties to the
         stage's answer (amounts, mol%, outlet T where the energy balance sets
         it) and to the report's approach temperatures and carbon limit.
+    passes_on : str
+        A separator's outlet the next stage takes: "vapour" (default) or "liquid".
     """
 
     name: str
@@ -106,10 +109,11 @@ class Stage:
     duty: float | None = None
     data: str | None = None
     uncertainty: bool = False
+    passes_on: str = "vapour"
 
     @property
     def reacts(self) -> bool:
-        """Whether the stage is a reactor (heaters, coolers and knock-outs keep every species' amount)."""
+        """Whether the stage is a reactor (heaters, coolers, knock-outs and separators keep every species' amount)."""
         return self.type == "reactor"
 
     @property
@@ -252,7 +256,11 @@ CASE_KEYS: dict[str, dict[str, str]] = {
         "name": "a name for the stage in the report",
         "type": "what the stage is: 'reactor' (default; settles to equilibrium as its reactions allow), "
                 "'heater' or 'cooler' (composition unchanged; T or duty), 'knock-out' (cooled to T: only water "
-                "condenses, as pure liquid; the liquid is drawn off and the next stage takes the vapour)",
+                "condenses, as pure liquid; the liquid is drawn off and the next stage takes the vapour), 'separator' "
+                "(a flash at its T and P with the stage's cubic gas model, which describes the vapour and the "
+                "liquid solution alike: nothing reacts, every species keeps its flow and is shared between the two "
+                "outlets; needs gas = 'peng-robinson' or 'srk')",
+        "next": "a separator: the outlet the next stage takes, 'vapour' (default) or 'liquid'",
         "service": "a reactor's service, which sets the reactions allowed and so the species set: 'HT shift', "
                    "'LT shift', 'methanation', 'ammonia synthesis', 'methanol synthesis' (the report states "
                    "the set; not with reactions)",

@@ -9,6 +9,7 @@ import numpy as np
 
 from ..carbon import CARBON_REACTIONS
 from ..case import CaseResult, ReportSpec, StageResult
+from ..case.run import separator_outlets
 from ..equilibrium import Equilibrium
 from ..reactions import approach_temperatures, quotients, reaction
 from ..thermo import DATA_SETS, data_set, database_holding, default_database
@@ -49,34 +50,47 @@ def _absolute(unit: str) -> str:
 
 
 def stage_table(result: StageResult, spec: ReportSpec) -> Table:
-    """The outlet of one stage: species, phase, flow, mol% wet and dry (and partial pressures if asked)."""
+    """The outlet of one stage: species, phase, flow, mol% wet and dry (and partial pressures if asked); an outlet
+    with liquid-solution phases lists each phase in turn (:func:`_fluid_phase_rows`)."""
     eq = result.equilibrium
     wet, dry = eq.mole_fractions, eq.dry_mole_fractions
     partial_unit = _absolute(spec.pressure_unit)
     u = _UncertaintyCells(eq, spec.flow_unit)
+    fluid = eq.fluid_phases is not None
     columns = [Column("species", "text"), Column("phase", "text"), Column(f"flow [{spec.flow_unit}]", "flow"),
                *u.column("flow", spec.flow_unit), Column("mol% wet", "percent"), *u.column("mol% wet"),
                Column("mol% dry", "percent"), *u.column("mol% dry")]
     if spec.partial_pressures:
         columns.append(Column(f"partial pressure [{partial_unit}]", "number"))
+    if fluid:
+        columns.append(Column("mol% of outlet", "percent"))
     extra = [None] if spec.partial_pressures else []
+    share_cell = [None] if fluid else []
     gas_species = wet if eq.gas_present else {}  # no gas phase: no composition to list or hide
     shown = [s for s in sorted(gas_species, key=lambda s: -wet[s]) if _shown(s, wet[s], spec)]
+    in_gas = _gas_phase_amounts(eq)
     rows: list[tuple[object, ...]] = []
     for s in shown:
         pressure = [from_pascal(wet[s] * eq.P, partial_unit)] if spec.partial_pressures else []
-        rows.append((s, "gas", flow_in(s, eq.amounts[s], spec.flow_unit), *u.flow(s), 100 * wet[s], *u.wet(s),
-                     100 * dry[s] if s in dry else None, *u.dry(s), *pressure))
-    for s, n in eq.condensed.items():
-        rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), *u.flow(s), None, *u.blank, None, *u.blank,
-                     *extra))
-    gas_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items() if eq.phase_of[s] == "gas")
-    share = 100.0 if eq.gas_present else None
-    rows.append(("total gas", "gas", gas_flow, *u.blank, share, *u.blank, share if dry else None, *u.blank,
-                 *extra))
+        rows.append((s, "gas", flow_in(s, in_gas[s], spec.flow_unit), *u.flow(s), 100 * wet[s], *u.wet(s),
+                     100 * dry[s] if s in dry else None, *u.dry(s), *pressure, *share_cell))
     notes = [UNCERTAINTY_NOTE] if u.asked else []
+    if fluid:
+        def row(name: str, phase: str, flow: float, percent: float | None, share: float | None) -> tuple[object, ...]:
+            return (name, phase, flow, *u.blank, percent, *u.blank, None, *u.blank, *extra, share)
+
+        rows += _fluid_phase_rows(eq, spec, row, notes)
+    else:
+        for s, n in eq.condensed.items():
+            rows.append((s, "condensed", flow_in(s, n, spec.flow_unit), *u.flow(s), None, *u.blank, None, *u.blank,
+                         *extra))
+        gas_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items() if eq.phase_of[s] == "gas")
+        share = 100.0 if eq.gas_present else None
+        rows.append(("total gas", "gas", gas_flow, *u.blank, share, *u.blank, share if dry else None, *u.blank,
+                     *extra))
     if not eq.gas_present:
-        notes.append("(no gas phase: the condensed phases hold every atom)")
+        notes.append("(no gas phase: the condensed phases hold every atom)" if not fluid else
+                     "(no gas phase: the liquid holds every species)")
     hidden = len(gas_species) - len(shown)
     if hidden:
         why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)}"
@@ -84,6 +98,45 @@ def stage_table(result: StageResult, spec: ReportSpec) -> Table:
     title = (f"{result.stage.name}: {temperature_text(eq.T, spec.temperature_unit)}, "
              f"{pressure_text(eq.P, spec.pressure_unit)}; phases: {', '.join(eq.phases_present)}")
     return Table(title, tuple(columns), tuple(rows), tuple(notes), key=result.stage.name)
+
+
+def _gas_phase_amounts(eq: Equilibrium) -> dict[str, float]:
+    """Each gas species' amount in the gas phase, [mol] (the totals where the answer has one fluid phase)."""
+    if eq.fluid_phases is None:
+        return dict(eq.amounts)
+    return {s: float(np.exp(v)) if v > -np.inf else 0.0 for s, v in eq.ln_gas_amounts.items()}
+
+
+def _fluid_phase_rows(eq: Equilibrium, spec: ReportSpec, row, notes: list[str]) -> list[tuple[object, ...]]:
+    """The rows after the gas species of an outlet with liquid-solution phases: the gas's total line, then each
+    liquid's species (flow, mol% of that liquid) and total line, then the pure condensed species; every total
+    line with its share of the outlet [mol%].  ``row(species, phase, flow, mol%, share)`` lays out one row."""
+    outlet = sum(eq.amounts.values())
+    outlet_flow = sum(flow_in(s, n, spec.flow_unit) for s, n in eq.amounts.items())
+    rows: list[tuple[object, ...]] = []
+
+    def total_line(name: str, amounts: Mapping[str, float], fraction_sum: float) -> tuple[object, ...]:
+        flow = sum(flow_in(s, n, spec.flow_unit) for s, n in amounts.items())
+        share = 100.0 * sum(amounts.values()) / outlet
+        return row(f"total {name}", name, flow, fraction_sum, share)
+
+    if eq.gas_present:
+        rows.append(total_line("gas", _gas_phase_amounts(eq), 100.0))
+    for liquid in (p for p in eq.fluid_phases or () if p.name != "gas"):
+        x = liquid.mole_fractions
+        listed = [s for s in sorted(x, key=lambda s: -x[s]) if _shown(s, x[s], spec)]
+        for s in listed:
+            rows.append(row(s, liquid.name, flow_in(s, liquid.amounts[s], spec.flow_unit), 100.0 * x[s], None))
+        rows.append(total_line(liquid.name, liquid.amounts, 100.0))
+        if len(listed) < len(x):
+            why = "not listed in [report] show" if spec.show else f"below {cutoff_text(spec.cutoff)}"
+            notes.append(f"({len(x) - len(listed)} species of the {liquid.name} {why} not shown)")
+    for s, n in eq.condensed.items():
+        rows.append(row(s, "condensed", flow_in(s, n, spec.flow_unit), None, 100.0 * n / outlet))
+    notes.append(f"mol% wet of a liquid's rows: of that liquid; mol% dry and partial pressures: of the gas; "
+                 f"mol% of outlet: each phase's share of the stage's outlet ({outlet_flow:.6g} {spec.flow_unit} in "
+                 "all)")
+    return rows
 
 
 #: What a "u(...)" column holds, said once under every table that has one.
@@ -144,6 +197,10 @@ def stages_table(result: CaseResult) -> Table:
              f"to the outlet; {_enthalpies_text(result)}"]
     if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
+    for stage in result.stages:
+        if stage.inlet.holds_liquid:
+            notes.append(f"{stage.stage.name}: no duty, as its inlet holds a liquid, whose enthalpy the energy balance "
+                         "does not yet take (it would count it as a gas)")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
                      "set's stated uncertainties of the enthalpies of formation (blank where T was given)")
@@ -165,7 +222,9 @@ def _enthalpies_text(result: CaseResult) -> str:
     if not cubic:
         return text
     everywhere = len(result.stages) == sum(len(names) for names in cubic.values())
-    parts = [f"the {model} residual enthalpy of the gas{'' if everywhere else ' in ' + ', '.join(names)}"
+    liquid = any(stage.equilibrium.fluid_phases is not None for stage in result.stages)
+    of_what = "of the gas (and of each liquid solution, on its own root)" if liquid else "of the gas"
+    parts = [f"the {model} residual enthalpy {of_what}{'' if everywhere else ' in ' + ', '.join(names)}"
              for model, names in cubic.items()]
     return (f"{text}, plus {' and '.join(parts)} (each feed at its own temperature and the stage pressure, "
             "the outlet at its own)")
@@ -387,6 +446,34 @@ def _held_in_every_reactor(result: CaseResult) -> set[str]:
     return held
 
 
+#: Mole fraction in a liquid above which the liquid fact names a species.
+_MAIN_LIQUID_FRACTION = 0.01
+
+
+def liquid_fact(stage: StageResult, spec: ReportSpec) -> str | None:
+    """What a stage's outlet says of its liquid: how much of it and of what, and which outlet goes on; None for a
+    stage with no liquid solution that is no separator."""
+    eq = stage.equilibrium
+    separator = stage.stage.type == "separator"
+    liquids = [p for p in eq.fluid_phases or () if p.name != "gas"]
+    if not liquids:
+        return ("none forms: the outlet is all vapour at this T and P (the tangent-plane test finds the gas stable)"
+                if separator else None)
+    outlet = sum(eq.amounts.values())
+    parts = []
+    for liquid in liquids:
+        x = liquid.mole_fractions
+        main = ", ".join(f"{s} {100 * x[s]:.4g} mol%" for s in sorted(x, key=lambda s: -x[s])
+                         if x[s] >= _MAIN_LIQUID_FRACTION)
+        flow = sum(flow_in(s, n, spec.flow_unit) for s, n in liquid.amounts.items())
+        parts.append(f"{'a liquid solution' if liquid.name == 'liquid' else liquid.name}: {flow:.6g} "
+                     f"{spec.flow_unit} ({100 * liquid.amount / outlet:.4g} mol% of the outlet; {main}; "
+                     f"{liquid.density:.4g} kg/m3)")
+    goes_on = (f"the next stage takes the {stage.stage.passes_on}" if separator
+               else "the outlet goes on as it is, vapour and liquid together (a separator splits them)")
+    return "; ".join(parts) + f"; {goes_on}"
+
+
 def settle_report(result: CaseResult) -> Report:
     """The report of a settled case: feed, stages, each outlet, approaches, Kp, carbon, certificates, caution."""
     case, spec = result.case, result.case.report
@@ -399,6 +486,9 @@ def settle_report(result: CaseResult) -> Report:
         stability = None if gas is None else gas.stability
         if stability and stability.get("tested"):
             facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
+        liquid = liquid_fact(stage, spec)
+        if liquid is not None:
+            facts.append((f"{stage.stage.name}: liquid", liquid))
     facts.append(("normal conditions", "Nm3 at " + case.feeds[0].stream.normal.describe()))
     held = _held_in_every_reactor(result)
     for feed in case.feeds:
@@ -462,7 +552,32 @@ def _stage_document(stage: StageResult, flow_unit: str) -> dict[str, object]:
         **({} if eq.uncertainty is None else
            {"flow_uncertainty": {s: flow_in(s, u, flow_unit) for s, u in eq.uncertainty.items()}}),
         "dry_mole_fractions": eq.dry_mole_fractions,
+        **_phase_documents(stage, flow_unit),
     }
+
+
+def _phase_documents(stage: StageResult, flow_unit: str) -> dict[str, object]:
+    """Each fluid phase of a stage's outlet (flows in ``flow_unit``, amounts in mol/s, mole fractions, share of the
+    outlet) and a separator's two outlets with the one the next stage takes; nothing for a one-fluid reactor."""
+    eq = stage.equilibrium
+    separator = stage.stage.type == "separator"
+    if eq.fluid_phases is None and not separator:
+        return {}
+    total = sum(eq.amounts.values())
+    document: dict[str, object] = {}
+    if eq.fluid_phases is not None:
+        document["phases"] = {
+            p.name: {"amount_mol": p.amount, "share_of_outlet": p.amount / total,
+                     "flows": {s: flow_in(s, n, flow_unit) for s, n in p.amounts.items()},
+                     "mole_fractions": p.mole_fractions, "density_kg_per_m3": p.density}
+            for p in eq.fluid_phases}
+    if separator:
+        outlets = separator_outlets(eq)
+        document["outlets"] = {name: {"amount_mol": dict(amounts),
+                                      "flows": {s: flow_in(s, n, flow_unit) for s, n in amounts.items()}}
+                               for name, amounts in outlets.items()}
+        document["next_stage_takes"] = stage.stage.passes_on
+    return document
 
 
 def _table_documents(result: CaseResult) -> dict[str, list[dict[str, object]]]:
