@@ -58,6 +58,7 @@ def equilibrate(
     P: float | None = None,
     *,
     T_feed: float | Mapping[str, float] | None = None,
+    P_feed: float | Mapping[str, float] | None = None,
     adiabatic: bool = False,
     heat_input: float = 0.0,
     species: Sequence[str] | None = None,
@@ -92,6 +93,10 @@ def equilibrate(
         per feed species or per feed stream (each mixed in at its own
         temperature).  Needed for the energy balance; with ``T`` given it
         adds the reactor's duty to the result.
+    P_feed : float or mapping, optional
+        Inlet pressure, [Pa], as ``T_feed`` (one number, or per stream); by
+        default the reactor's.  With a cubic it sets the inlet's residual
+        enthalpy: a liquid let down from 80 bar to a 5 bar flash drum.
     adiabatic : bool
         Find the outlet temperature at which the outlet enthalpy equals the
         inlet enthalpy plus ``heat_input`` (specification "H and P").
@@ -171,9 +176,9 @@ def equilibrate(
     specification = Specification.of(species=species, exclude=exclude, inert=inert, gas=gas, kij=kij, method=method,
                                      data=data, allow_extrapolation=allow_extrapolation, T_bounds=T_bounds,
                                      liquid=liquid)
-    return prepared_for(specification, db).equilibrate(feed, T, P, T_feed=T_feed, adiabatic=adiabatic,
-                                                       heat_input=heat_input, sensitivities=sensitivities,
-                                                       uncertainty=uncertainty)
+    return prepared_for(specification, db).equilibrate(feed, T, P, T_feed=T_feed, P_feed=P_feed,
+                                                       adiabatic=adiabatic, heat_input=heat_input,
+                                                       sensitivities=sensitivities, uncertainty=uncertainty)
 
 
 def equilibrate_with_approach(
@@ -191,6 +196,7 @@ def equilibrate_with_approach(
     gas: str = "ideal",
     kij: str | Mapping[tuple[str, str], float] | None = "shipped",
     T_feed: float | Mapping[str, float] | None = None,
+    P_feed: float | Mapping[str, float] | None = None,
     adiabatic: bool = False,
     heat_input: float = 0.0,
     T_bounds: tuple[float, float] | None = None,
@@ -231,7 +237,7 @@ def equilibrate_with_approach(
         A cubic gas model instead (``gas="peng-robinson"``), iterated to
         convergence as in :func:`gibbsmin.equilibrate`; not with ``ln_phi``.
         The approach is then on the fugacity quotient: K(T_settle) = Q_f.
-    T_feed, adiabatic, heat_input, T_bounds
+    T_feed, P_feed, adiabatic, heat_input, T_bounds
         The energy balance, as for :func:`gibbsmin.equilibrate` (with T given,
         ``T_feed`` adds the duty to the result): the outlet
         temperature at which the outlet with its held reactions holds the
@@ -267,5 +273,6 @@ def equilibrate_with_approach(
         restricted=True)
     if T is not None:
         T = to_kelvin(T)
-    return prepared_for(specification, db).equilibrate(feed, T, None if P is None else to_pascal(P), T_feed=T_feed, adiabatic=adiabatic,
-                                                       heat_input=heat_input, uncertainty=uncertainty)
+    return prepared_for(specification, db).equilibrate(feed, T, None if P is None else to_pascal(P), T_feed=T_feed,
+                                                       P_feed=P_feed, adiabatic=adiabatic, heat_input=heat_input,
+                                                       uncertainty=uncertainty)

@@ -206,6 +206,7 @@ class Prepared:
 
     def equilibrate(self, feed: Mapping[str, object] | Stream, T: float | None = None,
                     P: float | None = None, *, T_feed: float | Mapping[str, float] | None = None,
+                    P_feed: float | Mapping[str, float] | None = None,
                     adiabatic: bool = False, heat_input: float = 0.0, sensitivities: bool = False,
                     uncertainty: bool = False) -> Equilibrium:
         """The equilibrium of a feed: at fixed T and P, or at the T the energy balance sets.
@@ -214,7 +215,8 @@ class Prepared:
         from call to call (T in K, P in Pa); the answer is exactly what that
         function returns for the same options.
         """
-        return self._equilibrate(feed, T, P, T_feed, adiabatic, heat_input, sensitivities, uncertainty)[0]
+        return self._equilibrate(feed, T, P, T_feed, adiabatic, heat_input, sensitivities, uncertainty,
+                                 P_feed=P_feed)[0]
 
     def equilibrate_many(self, feeds: Mapping[str, object] | Sequence[Mapping[str, object]],
                          T: float | Sequence[float] | NDArray[np.float64],
@@ -293,7 +295,7 @@ class Prepared:
         return problem, result, certificates
 
     def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
-                     uncertainty=False, start=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
+                     uncertainty=False, start=None, P_feed=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
         """The pipeline: the answer, and the warm start it offers a neighbour (its System and raw solve).
 
         ``start`` is such a warm start; it is used only at fixed T, on the same System with the same elements
@@ -305,7 +307,7 @@ class Prepared:
         P = positive_number(P, "P", "Pa")
         if isinstance(feed, Stream):
             feed = feed.feed_mol()
-        inlet = energy.read_inlet(feed, T_feed, db)
+        inlet = energy.read_inlet(feed, T_feed, db, P_feed)
         heat = energy.heat_input_of(heat_input)
         energy_balance = T is None
         self._check_energy_specification(energy_balance, adiabatic, heat, inlet, uncertainty, sensitivities)

@@ -39,6 +39,7 @@ class StageInlet:
     streams: Mapping[str, Mapping[str, float]]
     temperatures: Mapping[str, float | None]
     holds_liquid: bool = False
+    pressures: Mapping[str, float] | None = None   # each stream's own pressure [Pa] where known
 
     @property
     def mixed(self) -> dict[str, float]:
@@ -192,13 +193,15 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         if stage.uncertainty:
             check_uncertainty(case, stage, choose_database(stage.data, given))
     inlet = StageInlet({f.name: f.stream.feed_mol() for f in case.feeds},
-                  {f.name: (f.stream.T if f.T_given else None) for f in case.feeds})
+                       {f.name: (f.stream.T if f.T_given else None) for f in case.feeds},
+                       pressures={f.name: f.stream.P for f in case.feeds})
     results = []
     for stage in case.stages:
         if progress is not None:
             progress(stage.name)
         if stage.T_in is not None:
-            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams}, inlet.holds_liquid)
+            inlet = StageInlet(inlet.streams, {name: stage.T_in for name in inlet.streams}, inlet.holds_liquid,
+                               inlet.pressures)
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
@@ -211,7 +214,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         result = StageResult(stage, inlet, eq, scope, carbon)
         results.append(result)
         inlet = StageInlet({"outlet of " + stage.name: result.outlet}, {"outlet of " + stage.name: eq.T},
-                           result.passes_on_liquid)
+                           result.passes_on_liquid, {"outlet of " + stage.name: eq.P})
     curve = None
     if case.curve is not None:
         if progress is not None:
@@ -252,17 +255,26 @@ def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specific
                             allow_extrapolation=case.species.allow_extrapolation, **cubic)
 
 
+def _takes_liquids(stage: Stage) -> bool:
+    """Whether a stage's answer (and so its inlet's enthalpy) has liquid-solution phases: a reactor or separator
+    with a cubic gas model."""
+    return stage.gas != "ideal" and stage.type in ("reactor", "separator")
+
+
 def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
     if stage.type in _HEAT_CHECKED:
         _check_heat_direction(stage, inlet)
     balance = {}
-    if inlet.holds_liquid and (stage.adiabatic or stage.duty is not None):
-        raise InputError("this stage's inlet holds a liquid (the outlet the stage before passes on), and the energy "
-                         "balance takes every inlet as a gas, so it cannot set this stage's temperature yet; give "
-                         "the stage its outlet T (e.g. T = '40 degC')")
-    if inlet.temperatures_known and not inlet.holds_liquid:  # a liquid inlet's enthalpy would be taken as a gas's
+    # A liquid inlet's enthalpy needs the liquid-solution phases, which heaters, coolers and knock-outs keep off.
+    liquid_inlet_unknown = inlet.holds_liquid and not _takes_liquids(stage)
+    if liquid_inlet_unknown and (stage.adiabatic or stage.duty is not None):
+        raise InputError(f"this stage's inlet holds a liquid (the outlet the stage before passes on), and a "
+                         f"{stage.type} keeps one gas, so its energy balance cannot set the temperature; give the "
+                         "stage its outlet T (e.g. T = '40 degC')")
+    if inlet.temperatures_known and not liquid_inlet_unknown:
         balance = {"T_feed": dict(inlet.temperatures), "adiabatic": stage.adiabatic or stage.duty is not None,
-                   "heat_input": stage.heat_input if stage.duty is None else stage.duty}
+                   "heat_input": stage.heat_input if stage.duty is None else stage.duty,
+                   "P_feed": dict(inlet.pressures or {}) or None}
     feed = dict(inlet.streams) if balance else inlet.mixed
     prepared = prepared_for(stage_specification(case, stage, scope), db)
     eq = prepared.equilibrate(feed, stage.T, stage.P, uncertainty=stage.uncertainty, **balance)
@@ -404,8 +416,8 @@ def _operating_line(result: StageResult, spec: CurveSpec, feed: Mapping[str, flo
         # A fixed-temperature stage has no line from inlet to outlet that the energy balance fixes: show its outlet.
         return (eq.T,), (_curve_value(spec, eq.amounts, feed, db),)
     stage = result.stage
-    H_in = sum(_enthalpy(a, inlet.temperatures[name], eq.P, db, stage.gas, stage.interactions)
-               for name, a in inlet.streams.items())
+    # The inlet's enthalpy as the stage's own energy balance took it (each stream at its own T and P).
+    H_in = eq.energy.feed_enthalpy_J
     T_start = next(iter(inlet.temperatures.values())) if len(inlet.streams) == 1 else eq.T
     T_points, v_points = [], []
     for a in np.linspace(0.0, 1.0, _LINE_POINTS):

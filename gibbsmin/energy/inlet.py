@@ -5,12 +5,12 @@ from __future__ import annotations
 import math
 import numbers
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from ..errors import InputError
-from ..fixed_step import check_feed
+from ..fixed_step import check_feed, positive_number
 from ..thermo.database import SpeciesDatabase
 from .properties import _temperature, mixture_enthalpy, species_enthalpies
 
@@ -27,11 +27,15 @@ class InletStream:
         Canonical species name to amount, [mol] (or mol/s).
     T : float or None
         Temperature, [K]; None when it was not given.
+    P : float or None
+        Pressure, [Pa], where it differs from the reactor's (a liquid let down across a valve); None: the
+        reactor's pressure.
     """
 
     name: str
     amounts: Mapping[str, float]
     T: float | None
+    P: float | None = None
 
 
 @dataclass(frozen=True)
@@ -81,7 +85,7 @@ class Inlet:
                    for s in self.streams if (present := {name: n for name, n in s.amounts.items() if n > 0.0}))
 
 
-def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase) -> Inlet:
+def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase, P_feed: object = None) -> Inlet:
     """The inlet described by a feed and its temperatures.
 
     Parameters
@@ -93,7 +97,14 @@ def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase) 
         Temperature of the feed, [K]: one number for everything; for a feed of
         species, a mapping species to temperature (every species its own
         stream); for a feed of streams, a mapping stream name to temperature.
+    P_feed : float, mapping or None
+        Pressure of the feed, [Pa], as ``T_feed``; None (or a stream left out
+        of the mapping): the reactor's pressure.  It matters for a cubic's
+        residual enthalpy of the inlet (a liquid let down to a flash drum).
     """
+    if P_feed is not None:
+        inlet = read_inlet(feed, T_feed, db)
+        return Inlet(tuple(replace(s, P=_pressure_of(P_feed, s.name)) for s in inlet.streams))
     if isinstance(feed, Mapping) and feed and all(isinstance(v, Mapping) for v in feed.values()):
         streams = {str(name): check_feed(amounts, db) for name, amounts in feed.items()}
         temperatures = _temperatures_of(T_feed, list(streams), "stream", lambda key: str(key))
@@ -107,6 +118,14 @@ def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase) 
         return Inlet(tuple(InletStream(name, {name: amount}, temperatures[name]) for name, amount in amounts.items()))
     T = None if T_feed is None else _temperature(T_feed, "T_feed")
     return Inlet((InletStream("feed", amounts, T),))
+
+
+def _pressure_of(P_feed: object, stream: str) -> float | None:
+    """A stream's pressure from P_feed: one number for all, or a mapping by stream name (left out: None)."""
+    if isinstance(P_feed, Mapping):
+        value = P_feed.get(stream)
+        return None if value is None else positive_number(value, f"P_feed[{stream!r}]", "Pa")
+    return positive_number(P_feed, "P_feed", "Pa")
 
 
 def _temperatures_of(T_feed: object, keys: list[str], kind: str, canonical) -> dict[str, float | None]:

@@ -23,7 +23,7 @@ def inlet_residual_enthalpy(phase: GasPhase, inlet, P: float) -> float:
     ``inlet`` is an ``energy.Inlet`` with temperatures.  Feed species outside
     the set's gas phase contribute nothing.
     """
-    return sum(phase.stream_residual_enthalpy(stream.amounts, stream.T, P) for stream in inlet.streams)
+    return sum(phase.stream_residual_enthalpy(stream.amounts, stream.T, stream.P or P) for stream in inlet.streams)
 
 
 def inlet_enthalpies(phase: GasPhase | None, inlet, P: float, db: SpeciesDatabase,
@@ -31,14 +31,16 @@ def inlet_enthalpies(phase: GasPhase | None, inlet, P: float, db: SpeciesDatabas
     """The inlet's enthalpy [J] (residual enthalpy included under a cubic; None without feed temperatures)
     and its gross enthalpy [J], the scale of the energy balance's tolerance.
 
-    With ``liquids`` each stream is flashed on its own at its temperature and the reactor pressure (every
-    species held), so a liquid feed brings a liquid's residual enthalpy, not a supersaturated gas's.
+    With ``liquids`` each stream is flashed on its own at its temperature and pressure (the reactor's unless
+    the stream has its own; every species held), so a liquid feed brings a liquid's residual enthalpy, not a
+    supersaturated gas's.
     """
     if not inlet.has_temperatures:
         return None, 0.0
     H_in = inlet.enthalpy(P, db, allow_extrapolation)
     if phase is not None and liquids:
-        H_in += sum(_flashed_residual_enthalpy(phase, stream.amounts, stream.T, P, db) for stream in inlet.streams)
+        H_in += sum(_flashed_residual_enthalpy(phase, stream.amounts, stream.T, stream.P or P, db)
+                    for stream in inlet.streams)
     elif phase is not None:
         H_in += inlet_residual_enthalpy(phase, inlet, P)
     return H_in, inlet.gross_enthalpy(P, db)

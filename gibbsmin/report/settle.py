@@ -198,9 +198,9 @@ def stages_table(result: CaseResult) -> Table:
     if not result.case.feed_temperatures_known:
         notes.append("give every feed a temperature (T = ...) to have the first stage's duty")
     for stage in result.stages:
-        if stage.inlet.holds_liquid:
-            notes.append(f"{stage.stage.name}: no duty, as its inlet holds a liquid, whose enthalpy the energy balance "
-                         "does not yet take (it would count it as a gas)")
+        if stage.inlet.holds_liquid and stage.duty_W is None:
+            notes.append(f"{stage.stage.name}: no duty, as its inlet holds a liquid and a {stage.stage.type} keeps "
+                         "one gas, whose enthalpy would count the liquid as a gas")
     if balanced:
         notes.append("u(T out): standard uncertainty of the outlet temperature the energy balance set, from the data "
                      "set's stated uncertainties of the enthalpies of formation (blank where T was given)")
@@ -485,7 +485,8 @@ def settle_report(result: CaseResult) -> Report:
         gas = stage.equilibrium.gas
         stability = None if gas is None else gas.stability
         if stability and stability.get("tested"):
-            facts.append((f"{stage.stage.name}: one gas?", stability["note"]))
+            label = "phases" if stage.equilibrium.fluid_phases is not None else "one gas?"
+            facts.append((f"{stage.stage.name}: {label}", stability["note"]))
         liquid = liquid_fact(stage, spec)
         if liquid is not None:
             facts.append((f"{stage.stage.name}: liquid", liquid))
