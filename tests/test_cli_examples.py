@@ -212,3 +212,20 @@ def test_methanol_loop_separator(capsys):
     assert letdown["flows"] == pytest.approx(outlets["liquid"]["flows"], rel=1e-10)
     assert main(["settle", str(EXAMPLES / "methanol_loop_separator.toml")]) == 0
     assert "HP separator liquid" in capsys.readouterr().out
+
+
+def test_ammonia_loop_separator_splits_off_liquid_ammonia_as_thermo_does():
+    # The shipped ammonia loop cooled to -20 degC at 180 bar: a certified gas and liquid, the liquid nearly pure
+    # ammonia; outside check: thermo's PR78 flash of the separator's inlet (Caleb Bell, thermo 0.6, with
+    # gibbsmin's constants; tests/flash_reference.py), vapour fraction within 1e-7.
+    from flash_reference import thermo_flash
+
+    from gibbsmin.case import read_case, settle_case
+
+    result = settle_case(read_case(EXAMPLES / "ammonia_loop_separator.toml"))
+    separator = result.stages[-1]
+    eq = separator.equilibrium
+    assert all(stage.equilibrium.certificate.certified for stage in result.stages)
+    assert eq.phases_present == ("gas", "liquid") and eq.fluid_phases[1].mole_fractions["NH3"] > 0.97
+    reference = thermo_flash(separator.inlet.mixed, eq.T, eq.P)
+    assert eq.gas_amount / sum(eq.amounts.values()) == pytest.approx(reference.vapour_fraction, abs=1e-7)

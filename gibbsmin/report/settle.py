@@ -226,7 +226,7 @@ def _enthalpies_text(result: CaseResult) -> str:
     of_what = "of the gas (and of each liquid solution, on its own root)" if liquid else "of the gas"
     parts = [f"the {model} residual enthalpy {of_what}{'' if everywhere else ' in ' + ', '.join(names)}"
              for model, names in cubic.items()]
-    return (f"{text}, plus {' and '.join(parts)} (each feed at its own temperature and the stage pressure, "
+    return (f"{text}, plus {' and '.join(parts)} (each feed at its own temperature and pressure, "
             "the outlet at its own)")
 
 
