@@ -20,6 +20,7 @@ from numpy.typing import NDArray
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
+from .frozen import built
 from .compiled import compiled
 from .solve import SOLVERS, SolverResult, solve
 from .system import P_REF, Problem, System, reduce, select_species
@@ -280,8 +281,8 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     if not problem.allowed[i].all():
         for local in np.flatnonzero(~problem.allowed[i]):
             omitted[names[problem.keep[local]]] = "outside its data range at this temperature: cannot appear"
-    return Equilibrium(
-        T=T, P=P,
+    return built(
+        Equilibrium, T=T, P=P,
         amounts=dict(zip(names, n.tolist())),
         phase_of=dict(system.phase_of),
         ln_gas_amounts=dict(zip(system.gas_names, ln_n[: system.n_gas].tolist())),

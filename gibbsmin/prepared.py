@@ -35,6 +35,7 @@ from . import energy, nonideal, sensitivity
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium, Restriction
 from .errors import InputError
+from .frozen import replaced
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
@@ -278,7 +279,7 @@ class Prepared:
 
     def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
                      uncertainty=False, start=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
-        """The pipeline: the answer, and the warm start it offers a neighbour (its System and raw solve).
+        """The pipeline: the answer, and the warm start it offers a neighbour (its Setup and raw solve).
 
         ``start`` is such a warm start; it is used only at fixed T, on the same System with the same elements
         present.
@@ -324,7 +325,8 @@ class Prepared:
                 enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks)
             eq = dataclasses.replace(eq, specification=text)
         else:
-            eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)
+            eq, problem, result = step(T, start[1] if start is not None and _start_key(start[0]) == _start_key(setup)
+                                       else None)
         figures = energy.energy_figures(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                         residual_enthalpy=residual)
         extras = {**energy.energy_extras(figures), "data_set": db.data_set}
@@ -334,8 +336,7 @@ class Prepared:
         if uncertainty:
             eq = self._with_uncertainties(eq, setup, problem, result, phase, complete, offsets_at,
                                           inlet.total if energy_balance else None)
-        eq = checked(dataclasses.replace(eq, energy=figures, data_set=db.data_set, extras={**eq.extras, **extras}),
-                     stacklevel=4)
+        eq = checked(replaced(eq, energy=figures, data_set=db.data_set, extras={**eq.extras, **extras}), stacklevel=4)
         if held:
             check_approaches_met(eq, held, self.ln_phi, db, spec.allow_extrapolation)
         if spec.restricted or held:
@@ -350,7 +351,7 @@ class Prepared:
         if stability is not None:
             # The verdict enters the certificate after the precision check, which judges the residuals alone.
             eq = nonideal.with_stability_verdict(eq, stability)
-        return eq, (_start_key(setup), result)
+        return eq, (setup, result)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:

@@ -27,6 +27,7 @@ from numpy.typing import NDArray
 
 from ..system import Problem
 from ..compiled import compiled
+from ..frozen import built
 from .result import SolverResult
 
 
@@ -112,8 +113,8 @@ class CertificateBatch:
         return len(self.certified)
 
     def __getitem__(self, i: int) -> Certificate:
-        return Certificate(
-            element_balance=float(self.element_balance[i]),
+        return built(
+            Certificate, element_balance=float(self.element_balance[i]),
             stationarity=float(self.stationarity[i]),
             complementarity=float(self.complementarity[i]),
             min_amount=float(self.min_amount[i]),
