@@ -121,6 +121,8 @@ class SpeciesSet:
     T_max: NDArray[np.float64]
     is_gas: NDArray[np.bool_]
     is_explicit: NDArray[np.bool_]
+    #: The temperatures every gas species has data for, [K] (lowest, highest): inside them none is left out.
+    gas_span: tuple[float, float]
     systems: dict[bytes, tuple[System, NDArray[np.float64]]] = field(default_factory=dict, repr=False)
 
 
@@ -147,7 +149,9 @@ def feed_species_set(amounts: Mapping[str, float], *, species: Sequence[str] | N
     found = SpeciesSet(
         tuple(records), tuple(db.resolve(list(amounts))), inert_names, frozenset(explicit),
         np.array([r.T_min for r in records]), np.array([r.T_max for r in records]),
-        np.array([r.is_gas for r in records], dtype=bool), np.array([r.name in explicit for r in records], dtype=bool))
+        np.array([r.is_gas for r in records], dtype=bool), np.array([r.name in explicit for r in records], dtype=bool),
+        (max((r.T_min for r in records if r.is_gas), default=0.0),
+         min((r.T_max for r in records if r.is_gas), default=np.inf)))
     if len(db.memo) >= _MEMO_LIMIT:
         db.memo.clear()
     db.memo[key] = found
@@ -157,8 +161,9 @@ def feed_species_set(amounts: Mapping[str, float], *, species: Sequence[str] | N
 def setup_on(species_set: SpeciesSet, amounts: Mapping[str, float], T_span: tuple[float, float] | None,
              allow_extrapolation: bool = False) -> Setup:
     """The Setup of a feed on its species set, the gas species without data over ``T_span`` left out."""
-    if T_span is None or allow_extrapolation:
-        kept = np.ones(len(species_set.records), dtype=bool)
+    if T_span is None or allow_extrapolation or (species_set.gas_span[0] <= T_span[0]
+                                                 and T_span[1] <= species_set.gas_span[1]):
+        kept = None   # every species: the common case, taken without the array tests below
     else:
         T_lo, T_hi = T_span
         kept = ~species_set.is_gas | ((species_set.T_min <= T_lo) & (T_hi <= species_set.T_max))
@@ -167,21 +172,24 @@ def setup_on(species_set: SpeciesSet, amounts: Mapping[str, float], T_span: tupl
             record = species_set.records[short[0]]
             T_bad = T_lo if T_lo < record.T_min else T_hi
             raise TemperatureRangeError(record.name, T_bad, record.T_min, record.T_max)
-    key = kept.tobytes()
-    built = species_set.systems.get(key)
-    if built is None:
-        built = _system_of(species_set, [r for r, k in zip(species_set.records, kept) if k])
-        species_set.systems[key] = built
-    system, feed_matrix = built
+        if kept.all():
+            kept = None
+    key = b"" if kept is None else kept.tobytes()
+    known = species_set.systems.get(key)
+    if known is None:
+        known = _system_of(species_set, [r for r, k in zip(species_set.records, kept) if k] if kept is not None
+                           else list(species_set.records))
+        species_set.systems[key] = known
+    system, feed_matrix = known
     omitted: dict[str, str] = {}
-    if not kept.all():
+    if kept is not None:
         T_lo, T_hi = T_span
         for j in np.flatnonzero(~kept):
             record = species_set.records[j]
             omitted[record.name] = (f"no data from {T_lo:g} K to {T_hi:g} K (fitted {record.T_min:g} to "
                                     f"{record.T_max:g} K)")
     b = feed_matrix @ np.fromiter(amounts.values(), dtype=float, count=len(amounts))
-    return Setup(system, amounts, b, omitted, species_set.explicit)
+    return built(Setup, system=system, feed=amounts, b=b, omitted=omitted, explicit=species_set.explicit)
 
 
 def _system_of(species_set: SpeciesSet, records: list[SpeciesRecord]) -> tuple[System, NDArray[np.float64]]:

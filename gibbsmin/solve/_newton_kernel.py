@@ -14,6 +14,7 @@ import numpy as np
 from numba import prange
 
 from ..compiled import compiled
+from .certificate import residuals_of
 
 LN_TRACE = math.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
 LN_LIFT = math.log(1e-4)   # a trace species may rise at most to this mole fraction in one step
@@ -726,4 +727,19 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
             ln_n[p, j] += ln_scale
         for c in range(C):
             n_c[p, c] = n_c[p, c] * scale[p] if active[p, c] else 0.0
+    return ln_n, n_c, active, pi, iterations, status
+
+
+@compiled()
+def run_certified(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+                  tol, max_iterations, phase_tol, max_phase_changes, chains, parallel, residuals):
+    """``run``, then the certificate's residuals of its answer into ``residuals`` (B, 4): one compiled call.
+
+    The residuals are ``certificate.residuals_of`` on the returned arrays, as
+    ``certify`` would compute them afresh; only the second call is saved.
+    """
+    ln_n, n_c, active, pi, iterations, status = run(
+        A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+        tol, max_iterations, phase_tol, max_phase_changes, chains, parallel)
+    residuals_of(A, n_gas, b, mu0, allowed, ln_n, n_c, active, pi, residuals)
     return ln_n, n_c, active, pi, iterations, status

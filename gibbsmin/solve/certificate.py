@@ -128,7 +128,7 @@ class CertificateBatch:
 
 
 @compiled()
-def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
+def residuals_of(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
     """Residuals of every point: out[p] = (element balance, stationarity, complementarity, min amount)."""
     M, S = A.shape
     for p in range(b.shape[0]):
@@ -182,15 +182,22 @@ def _verdicts(out, converged, element_balance, stationarity, complementarity):
     return certified
 
 
-def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances()) -> CertificateBatch:
-    """Certificates of every point of a batch."""
+def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances(),
+            residuals: NDArray[np.float64] | None = None) -> CertificateBatch:
+    """Certificates of every point of a batch.
+
+    ``residuals`` (B, 4) are those ``residuals_of`` gives for this answer,
+    where the solver's compiled call has just worked them out (Newton's
+    ``run_certified``); they are recomputed here otherwise.
+    """
     # Both steps are compiled: on a single small point, array arithmetic in Python would cost more
     # than the residuals themselves.
-    out = np.empty((problem.batch_size, 4))
-    _residuals(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
-               problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, out)
-    certified = _verdicts(out, np.ascontiguousarray(result.converged, dtype=np.bool_), tolerances.element_balance,
-                          tolerances.stationarity, tolerances.complementarity)
-    columns = np.ascontiguousarray(out.T)
+    if residuals is None:
+        residuals = np.empty((problem.batch_size, 4))
+        residuals_of(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
+                     problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, residuals)
+    certified = _verdicts(residuals, np.ascontiguousarray(result.converged, dtype=np.bool_),
+                          tolerances.element_balance, tolerances.stationarity, tolerances.complementarity)
+    columns = np.ascontiguousarray(residuals.T)
     return CertificateBatch(columns[0], columns[1], columns[2], columns[3], certified, tuple(result.method),
                             np.asarray(result.iterations))

@@ -32,6 +32,7 @@ import numpy as np
 
 from ..system import Problem
 from . import _newton_kernel as kernel
+from .certificate import CertificateBatch, Tolerances, certify
 from .result import SolverResult
 
 
@@ -115,6 +116,21 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         ``converged`` is False where the iteration did not settle; the caller
         decides what to do with those points (see ``solve``).
     """
+    return _result(problem, kernel.run(*_kernel_arguments(problem, start, options, chains)))
+
+
+def solve_newton_certified(problem: Problem, start: SolverResult | None = None,
+                           options: NewtonOptions = NewtonOptions(), chains: int | None = None,
+                           tolerances: Tolerances = Tolerances()) -> tuple[SolverResult, CertificateBatch]:
+    """``solve_newton`` and ``certify`` of its answer, the residuals taken in the same compiled call."""
+    residuals = np.empty((problem.batch_size, 4))
+    result = _result(problem, kernel.run_certified(*_kernel_arguments(problem, start, options, chains), residuals))
+    return result, certify(problem, result, tolerances, residuals=residuals)
+
+
+def _kernel_arguments(problem: Problem, start: SolverResult | None, options: NewtonOptions,
+                      chains: int | None) -> tuple:
+    """The arguments of ``kernel.run`` for a problem, a start and the options."""
     cold = start is None
     # With a cold start the start arrays are not read; any arrays of the right kind will do.
     start_arrays = (_NO_START, _NO_START, _NO_PRESENT) if cold else (
@@ -122,14 +138,16 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         np.ascontiguousarray(start.present))
     A = np.ascontiguousarray(problem.A, dtype=float)
     B = problem.batch_size
-    ln_n, n_c, present, pi, iterations, status = kernel.run(
-        A, problem.n_gas, np.ascontiguousarray(problem.b, dtype=float),
-        np.ascontiguousarray(problem.mu0, dtype=float), np.ascontiguousarray(problem.allowed),
-        _same_composition(A[:, problem.n_gas:]), *start_arrays, cold,
-        options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
-        B if chains is None else int(chains), B > 1,
-    )
+    return (A, problem.n_gas, np.ascontiguousarray(problem.b, dtype=float),
+            np.ascontiguousarray(problem.mu0, dtype=float), np.ascontiguousarray(problem.allowed),
+            _same_composition(A[:, problem.n_gas:]), *start_arrays, cold,
+            options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
+            B if chains is None else int(chains), B > 1)
+
+
+def _result(problem: Problem, raw: tuple) -> SolverResult:
+    ln_n, n_c, present, pi, iterations, status = raw
     return SolverResult(
         ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
-        converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * B,
+        converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * problem.batch_size,
     )
