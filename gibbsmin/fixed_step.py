@@ -65,7 +65,8 @@ class Setup:
 
 def positive_number(value: object, name: str, unit: str) -> float:
     """A validated positive finite number (T in K, P in Pa, ...), or an InputError naming it."""
-    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+    # A float is the common case: taken before the abstract-class test, which costs more than the rest.
+    if type(value) is not float and (isinstance(value, bool) or not isinstance(value, numbers.Real)):
         raise InputError(f"{name} must be a number in {unit}, got {value!r}")
     value = float(value)
     if not math.isfinite(value) or value <= 0.0:
@@ -82,12 +83,13 @@ def finite_number(value: object, what: str) -> float:
 
 def check_feed(feed: object, db: SpeciesDatabase) -> dict[str, float]:
     """Canonical names and validated amounts of a feed mapping."""
-    if not isinstance(feed, Mapping) or not feed:
+    if not (type(feed) is dict or isinstance(feed, Mapping)) or not feed:
         raise InputError("feed must be a non-empty mapping of species name to amount in mol, e.g. {'CH4': 1, 'H2O': 3}")
     amounts: dict[str, float] = {}
     for name, amount in feed.items():
         record = db[str(name)]
-        if isinstance(amount, bool) or not isinstance(amount, numbers.Real) or not math.isfinite(float(amount)):
+        if (type(amount) is not float and (isinstance(amount, bool) or not isinstance(amount, numbers.Real))) \
+                or not math.isfinite(float(amount)):
             raise InputError(f"feed amount of {name} must be a finite number of mol, got {amount!r}")
         if amount < 0:
             raise InputError(f"feed amount of {name} is negative ({amount}); amounts must be zero or positive")
@@ -331,25 +333,29 @@ def _unpacked(keep, n_gas, ln_n_gas, n_condensed, mu0, ln_n, n):
 
 def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64]) -> dict[str, float]:
     """Potentials on the System's element rows; NaN for elements absent from the feed."""
-    lam = np.full(len(system.elements), np.nan)
     present, rows_dropped = _present_elements(system, problem)
     if not rows_dropped:
         # No row was dropped: the solve's potentials are those of the present elements, in order.
-        lam[present] = (pi @ problem.basis)[present]
-    else:
-        # Dependent element rows were dropped for the solve; the least-norm
-        # potentials reproduce the same species potentials on all rows.
-        lam[present] = np.linalg.lstsq(system.A[:, problem.keep][present].T, pi @ problem.A, rcond=None)[0]
+        potentials = dict.fromkeys(system.elements, math.nan)
+        for element, value in zip(present, pi.tolist()):
+            potentials[element] = value
+        return potentials
+    # Dependent element rows were dropped for the solve; the least-norm
+    # potentials reproduce the same species potentials on all rows.
+    rows = np.any(system.A[:, problem.keep] != 0.0, axis=1)
+    lam = np.full(len(system.elements), np.nan)
+    lam[rows] = np.linalg.lstsq(system.A[:, problem.keep][rows].T, pi @ problem.A, rcond=None)[0]
     return dict(zip(system.elements, lam.tolist()))
 
 
-def _present_elements(system: System, problem: Problem) -> tuple[NDArray[np.bool_], bool]:
-    """The System's element rows some kept species carries, and whether the solve dropped any of them."""
+def _present_elements(system: System, problem: Problem) -> tuple[tuple[str, ...], bool]:
+    """The System's elements some kept species carries, and whether the solve dropped any of their rows."""
     key = ("present elements", problem.keep.tobytes(), problem.A.shape[0])
     found = system.reductions.get(key)
     if found is None:
         present = np.any(system.A[:, problem.keep] != 0.0, axis=1)
-        found = (present, problem.A.shape[0] != np.count_nonzero(present))
+        found = (tuple(system.elements[k] for k in np.flatnonzero(present)),
+                 problem.A.shape[0] != np.count_nonzero(present))
         system.reductions[key] = found
     return found
 
