@@ -189,9 +189,7 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     pattern of elements present (and of condensed species allowed) is worked
     out once per System and kept (``System.reductions``).
     """
-    b = np.atleast_2d(np.asarray(b, dtype=float))
-    allowed = np.atleast_2d(allowed)
-    mu0 = np.atleast_2d(mu0)
+    b, mu0, allowed = (x if x.ndim == 2 else np.atleast_2d(x) for x in (np.asarray(b, dtype=float), mu0, allowed))
     present = None
     if b.shape[0] == 1:
         # One point (the common call): the pattern in plain floats, cheaper than four array operations on five

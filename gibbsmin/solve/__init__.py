@@ -24,9 +24,9 @@ def _auto(problem: Problem, start: SolverResult | None, chains: int | None
           ) -> tuple[SolverResult, CertificateBatch]:
     """Newton first; every point it cannot certify is solved again on the cone."""
     result, certificates = solve_newton_certified(problem, start=start, chains=chains)
-    bad = np.flatnonzero(~certificates.certified)
-    if bad.size == 0:
+    if certificates.certified.all():
         return result, certificates
+    bad = np.flatnonzero(~certificates.certified)
     return _certified(problem, merge(result, solve_convex(problem.take(bad)), bad))
 
 

@@ -687,6 +687,25 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
     Returns (ln_n_gas, n_condensed, present, pi, iterations, status).
     """
     B, M, S = b.shape[0], A.shape[0], A.shape[1]
+    ln_n = np.empty((B, n_gas))
+    n_c = np.empty((B, S - n_gas))
+    active = np.empty((B, S - n_gas), dtype=np.bool_)
+    pi = np.empty((B, M))
+    iterations = np.empty(B, dtype=np.int64)
+    status = np.empty(B, dtype=np.int64)
+    run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold, tol, max_iterations,
+             phase_tol, max_phase_changes, chains, parallel, ln_n, n_c, active, pi, iterations, status)
+    return ln_n, n_c, active, pi, iterations, status
+
+
+@compiled()
+def run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+             tol, max_iterations, phase_tol, max_phase_changes, chains, parallel,
+             ln_n, n_c, active, pi, iterations, status):
+    """``run`` with its six results written into arrays the caller made (any contents): shapes (B, n_gas),
+    (B, C), (B, C) bool, (B, M), (B,) and (B,) int64.  Arrays made in Python cost less than arrays handed
+    back from compiled code, which matters on one small point."""
+    B, M, S = b.shape[0], A.shape[0], A.shape[1]
     C = S - n_gas
     A_g = np.ascontiguousarray(A[:, :n_gas])
     A_c = np.ascontiguousarray(A[:, n_gas:])
@@ -695,9 +714,6 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
     allowed_c = np.ascontiguousarray(allowed[:, n_gas:])
     scale = np.empty(B)
     b_scaled = np.empty((B, M))
-    ln_n = np.empty((B, n_gas))
-    n_c = np.zeros((B, C))
-    active = np.zeros((B, C), dtype=np.bool_)
     for p in range(B):
         scale[p] = b[p].sum()
         for k in range(M):
@@ -705,13 +721,13 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
         ln_scale = math.log(scale[p])
         for j in range(n_gas):
             ln_n[p, j] = math.log(0.1 / n_gas) if cold else ln_n_start[p, j] - ln_scale
-        if not cold:
-            for c in range(C):
-                active[p, c] = present_start[p, c] and allowed_c[p, c]
-                n_c[p, c] = n_c_start[p, c] / scale[p] if active[p, c] else 0.0
-    pi = np.zeros((B, M))
-    iterations = np.zeros(B, dtype=np.int64)
-    status = np.zeros(B, dtype=np.int64)
+        for c in range(C):
+            active[p, c] = False if cold else present_start[p, c] and allowed_c[p, c]
+            n_c[p, c] = n_c_start[p, c] / scale[p] if active[p, c] else 0.0
+        for k in range(M):
+            pi[p, k] = 0.0
+        iterations[p] = 0
+        status[p] = 0
     chains = max(1, min(chains, B))
     if parallel and chains > 1:
         iterate_batch(A_g, A_c, b_scaled, mu0_g, mu0_c, allowed_c, same, ln_n, n_c, active, pi, iterations,
@@ -727,19 +743,17 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
             ln_n[p, j] += ln_scale
         for c in range(C):
             n_c[p, c] = n_c[p, c] * scale[p] if active[p, c] else 0.0
-    return ln_n, n_c, active, pi, iterations, status
 
 
 @compiled()
 def run_certified(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
-                  tol, max_iterations, phase_tol, max_phase_changes, chains, parallel, residuals):
-    """``run``, then the certificate's residuals of its answer into ``residuals`` (B, 4): one compiled call.
+                  tol, max_iterations, phase_tol, max_phase_changes, chains, parallel,
+                  ln_n, n_c, active, pi, iterations, status, residuals):
+    """``run_into``, then the certificate's residuals of its answer into ``residuals`` (B, 4): one compiled call.
 
-    The residuals are ``certificate.residuals_of`` on the returned arrays, as
+    The residuals are ``certificate.residuals_of`` on the answer, as
     ``certify`` would compute them afresh; only the second call is saved.
     """
-    ln_n, n_c, active, pi, iterations, status = run(
-        A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
-        tol, max_iterations, phase_tol, max_phase_changes, chains, parallel)
+    run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold, tol, max_iterations,
+             phase_tol, max_phase_changes, chains, parallel, ln_n, n_c, active, pi, iterations, status)
     residuals_of(A, n_gas, b, mu0, allowed, ln_n, n_c, active, pi, residuals)
-    return ln_n, n_c, active, pi, iterations, status

@@ -199,5 +199,6 @@ def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tol
     certified = _verdicts(residuals, np.ascontiguousarray(result.converged, dtype=np.bool_),
                           tolerances.element_balance, tolerances.stationarity, tolerances.complementarity)
     columns = np.ascontiguousarray(residuals.T)
-    return CertificateBatch(columns[0], columns[1], columns[2], columns[3], certified, tuple(result.method),
-                            np.asarray(result.iterations))
+    return built(CertificateBatch, element_balance=columns[0], stationarity=columns[1], complementarity=columns[2],
+                 min_amount=columns[3], certified=certified, solver=tuple(result.method),
+                 iterations=np.asarray(result.iterations))

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..frozen import built
 from ..system import Problem
 from . import _newton_kernel as kernel
 from .certificate import CertificateBatch, Tolerances, certify
@@ -123,8 +124,13 @@ def solve_newton_certified(problem: Problem, start: SolverResult | None = None,
                            options: NewtonOptions = NewtonOptions(), chains: int | None = None,
                            tolerances: Tolerances = Tolerances()) -> tuple[SolverResult, CertificateBatch]:
     """``solve_newton`` and ``certify`` of its answer, the residuals taken in the same compiled call."""
-    residuals = np.empty((problem.batch_size, 4))
-    result = _result(problem, kernel.run_certified(*_kernel_arguments(problem, start, options, chains), residuals))
+    B, M, S = problem.batch_size, problem.A.shape[0], problem.n_species
+    C = S - problem.n_gas
+    raw = (np.empty((B, problem.n_gas)), np.empty((B, C)), np.empty((B, C), dtype=bool), np.empty((B, M)),
+           np.empty(B, dtype=np.int64), np.empty(B, dtype=np.int64))
+    residuals = np.empty((B, 4))
+    kernel.run_certified(*_kernel_arguments(problem, start, options, chains), *raw, residuals)
+    result = _result(problem, raw)
     return result, certify(problem, result, tolerances, residuals=residuals)
 
 
@@ -147,7 +153,5 @@ def _kernel_arguments(problem: Problem, start: SolverResult | None, options: New
 
 def _result(problem: Problem, raw: tuple) -> SolverResult:
     ln_n, n_c, present, pi, iterations, status = raw
-    return SolverResult(
-        ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
-        converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * problem.batch_size,
-    )
+    return built(SolverResult, ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
+                 converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * problem.batch_size)
