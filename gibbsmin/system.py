@@ -189,7 +189,9 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     pattern of elements present (and of condensed species allowed) is worked
     out once per System and kept (``System.reductions``).
     """
-    b, mu0, allowed = (x if x.ndim == 2 else np.atleast_2d(x) for x in (np.asarray(b, dtype=float), mu0, allowed))
+    b, mu0, allowed = np.asarray(b, dtype=float), np.asarray(mu0), np.asarray(allowed)
+    if b.ndim != 2 or mu0.ndim != 2 or allowed.ndim != 2:
+        b, mu0, allowed = np.atleast_2d(b), np.atleast_2d(mu0), np.atleast_2d(allowed)
     present = None
     if b.shape[0] == 1:
         # One point (the common call): the pattern in plain floats, cheaper than four array operations on five
