@@ -247,7 +247,9 @@ def build_problem(setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64],
         raise TemperatureRangeError(record.name, float(T[point]), record.T_min, record.T_max)
     if ln_phi is not None:
         mu0[:, : system.n_gas] += ln_phi
-    b = np.atleast_2d(setup.b if b is None else b)
+    b = setup.b if b is None else np.asarray(b, dtype=float)
+    if b.ndim == 1:
+        b = b.reshape(1, -1)
     if b.shape[0] != T.size:
         b = np.broadcast_to(b, (T.size, system.A.shape[0]))
     return reduce(system, b, mu0, allowed)
@@ -288,7 +290,8 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     G_RT = _unpacked(problem.keep, problem.n_gas, result.ln_n_gas[i], result.n_condensed[i], problem.mu0[i],
                      ln_n, n)
     omitted = dict(setup.omitted)
-    if not problem.allowed[i].all():
+    # Gas species are always allowed: only condensed species can be outside their data here.
+    if problem.n_gas < problem.n_species and not problem.allowed[i].all():
         for local in np.flatnonzero(~problem.allowed[i]):
             omitted[names[problem.keep[local]]] = "outside its data range at this temperature: cannot appear"
     return built(

@@ -11,7 +11,6 @@ so a misspelt or missing one is still an error.
 from __future__ import annotations
 
 import dataclasses
-import functools
 from typing import TypeVar
 
 T = TypeVar("T")
@@ -25,8 +24,17 @@ class _Layout:
     required: frozenset[str]
 
 
-@functools.lru_cache(maxsize=None)
+_LAYOUTS: dict[type, _Layout] = {}
+
+
 def _layout(cls: type) -> _Layout:
+    layout = _LAYOUTS.get(cls)
+    if layout is None:
+        layout = _LAYOUTS.setdefault(cls, _layout_of(cls))
+    return layout
+
+
+def _layout_of(cls: type) -> _Layout:
     if not dataclasses.is_dataclass(cls) or hasattr(cls, "__post_init__") or "__slots__" in cls.__dict__ \
             or any(not f.init for f in dataclasses.fields(cls)):
         raise TypeError(f"{cls.__name__} is not a plain dataclass; use its constructor")
@@ -47,9 +55,10 @@ def built(cls: type[T], **values: object) -> T:
     new = object.__new__(cls)
     state = new.__dict__
     state.update(layout.defaults)
-    for name, factory in layout.factories.items():
-        if name not in values:
-            state[name] = factory()
+    if layout.factories:
+        for name, factory in layout.factories.items():
+            if name not in values:
+                state[name] = factory()
     state.update(values)
     return new
 
