@@ -35,7 +35,7 @@ from . import energy, nonideal, sensitivity
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium, Restriction
 from .errors import InputError
-from .frozen import replaced
+from .frozen import built, replaced
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
@@ -55,7 +55,7 @@ __all__ = ["Specification", "Prepared", "prepare"]
 def _names(value: object, what: str) -> tuple[str, ...]:
     if isinstance(value, str):
         raise InputError(f"{what} takes a list of names, e.g. {what}=['C(s)']")
-    return tuple(str(v) for v in value)
+    return tuple(map(str, value))
 
 
 @dataclass(frozen=True)
@@ -134,8 +134,8 @@ class Specification:
             raise InputError("species, exclude and inert take lists of names, e.g. exclude=['C(s)']")
         if isinstance(kij, Mapping):
             kij = tuple(sorted(((tuple(pair), value) for pair, value in kij.items()), key=repr))
-        return cls(
-            species=None if species is None else _names(species, "species"),
+        return built(
+            cls, species=None if species is None else _names(species, "species"),
             exclude=_names(exclude, "exclude"), inert=_names(inert, "inert"), frozen=frozen,
             approach=tuple(approach.items()), reactions=tuple(reactions), gas=gas, kij=kij,
             ln_phi=None if ln_phi is None else tuple(ln_phi.items()), method=method, data=data,

@@ -411,11 +411,32 @@ def _components_still_major(ln_n, n_c, active, basis, in_basis):
 
 
 @compiled()
+def workspace(M, G, C):
+    """The work arrays of ``iterate_point_in`` for M elements, G gas and C condensed species, made once per chain
+    of points (each point of a sweep would otherwise make twenty small arrays)."""
+    K = M + C + 1
+    return (np.empty((K, K)), np.empty(K), np.empty(K), np.empty(G), np.empty(G), np.empty(G), np.empty(M),
+            np.empty(M, dtype=np.int64), np.empty((M, M)), np.empty(G + C), np.empty((M, 3 * M)),
+            np.empty(max(2 * M, 1)), np.empty(M, dtype=np.int64), np.empty(M), np.empty((M, G)), np.empty((M, C)),
+            np.empty(M), np.empty(C, dtype=np.bool_))
+
+
+@compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
+    """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place (``iterate_point_in`` with
+    work arrays of its own)."""
+    return iterate_point_in(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi, tol, max_iterations,
+                            phase_tol, max_phase_changes, workspace(A_g.shape[0], A_g.shape[1], A_c.shape[1]))
+
+
+@compiled()
+def iterate_point_in(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
+                     tol, max_iterations, phase_tol, max_phase_changes, work_arrays):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place.
 
-    Amounts are scaled so that sum(b) = 1.  Returns (iterations, status).
+    Amounts are scaled so that sum(b) = 1.  ``work_arrays`` is a ``workspace`` of the point's sizes.
+    Returns (iterations, status).
 
     Each iteration writes the element balance in components (the M most
     abundant independent species, ``_choose_components``): the unknowns are
@@ -428,24 +449,11 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     M, G = A_g.shape
     C = A_c.shape[1]
     K = M + C + 1
-    J = np.empty((K, K))
-    rhs = np.empty(K)
-    x = np.empty(K)
-    n_g = np.empty(G)
-    mu_g = np.empty(G)
-    d_ln_n = np.empty(G)
-    a_n = np.empty(M)
-    basis = np.empty(M, dtype=np.int64)
-    Q = np.empty((M, M))
-    seen = np.empty(G + C)
-    B = np.empty((M, 3 * M))
-    work = np.empty(max(2 * M, 1))
-    previous = np.full(M, -1, dtype=np.int64)
-    d_scale = np.empty(M)
-    nu_g = np.empty((M, G))
-    nu_c = np.empty((M, C))
-    b_comp = np.empty(M)
-    pinned = np.zeros(C, dtype=np.bool_)
+    # From ``workspace``: every array is written before it is read, but for these two, set here.
+    J, rhs, x, n_g, mu_g, d_ln_n, a_n, basis, Q, seen, B, work, previous, d_scale, nu_g, nu_c, b_comp, pinned = \
+        work_arrays
+    previous[:] = -1
+    pinned[:] = False
     total = 0.0
     for j in range(G):
         total += math.exp(ln_n[j])
@@ -636,26 +644,30 @@ def _iterate_chain(first, last, A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, 
 
     A point that fails from the warm start is tried again from its own start.
     """
+    work_arrays = workspace(A_g.shape[0], A_g.shape[1], A_c.shape[1])
+    own_ln_n = np.empty(ln_n.shape[1])
+    own_n_c = np.empty(n_c.shape[1])
+    own_active = np.empty(active.shape[1], dtype=np.bool_)
     for p in range(first, last):
-        own_ln_n = ln_n[p].copy()
-        own_n_c = n_c[p].copy()
-        own_active = active[p].copy()
+        own_ln_n[:] = ln_n[p]
+        own_n_c[:] = n_c[p]
+        own_active[:] = active[p]
         warm = p > first and status[p - 1] == CONVERGED
         if warm:
             ln_n[p] = ln_n[p - 1]
             for c in range(n_c.shape[1]):
                 active[p, c] = active[p - 1, c] and allowed[p, c]
                 n_c[p, c] = n_c[p - 1, c] if active[p, c] else 0.0
-        iterations[p], status[p] = iterate_point(
+        iterations[p], status[p] = iterate_point_in(
             A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
-            tol, max_iterations, phase_tol, max_phase_changes)
+            tol, max_iterations, phase_tol, max_phase_changes, work_arrays)
         if warm and status[p] != CONVERGED:
             ln_n[p] = own_ln_n
             n_c[p] = own_n_c
             active[p] = own_active
-            extra, status[p] = iterate_point(
+            extra, status[p] = iterate_point_in(
                 A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
-                tol, max_iterations, phase_tol, max_phase_changes)
+                tol, max_iterations, phase_tol, max_phase_changes, work_arrays)
             iterations[p] += extra
 
 
