@@ -14,7 +14,7 @@ import numpy as np
 from numba import prange
 
 from ..compiled import compiled
-from .certificate import residuals_of
+from .certificate import residuals_of, verdicts_into
 
 LN_TRACE = math.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
 LN_LIFT = math.log(1e-4)   # a trace species may rise at most to this mole fraction in one step
@@ -760,12 +760,18 @@ def run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_sta
 @compiled()
 def run_certified(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
                   tol, max_iterations, phase_tol, max_phase_changes, chains, parallel,
-                  ln_n, n_c, active, pi, iterations, status, residuals):
-    """``run_into``, then the certificate's residuals of its answer into ``residuals`` (B, 4): one compiled call.
+                  ln_n, n_c, active, pi, iterations, status, converged,
+                  element_balance_tol, stationarity_tol, complementarity_tol, residuals, certified):
+    """``run_into``, then its answer's certificate in the same compiled call: ``converged`` (B,) bool, the
+    residuals (B, 4) and the verdicts (B,) bool under the three tolerances.
 
-    The residuals are ``certificate.residuals_of`` on the answer, as
-    ``certify`` would compute them afresh; only the second call is saved.
+    They are ``certificate.residuals_of`` and ``certificate.verdicts_into`` on
+    the answer, as ``certify`` would compute them afresh; only the second call
+    from Python is saved.
     """
     run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold, tol, max_iterations,
              phase_tol, max_phase_changes, chains, parallel, ln_n, n_c, active, pi, iterations, status)
+    for p in range(status.size):
+        converged[p] = status[p] == CONVERGED
     residuals_of(A, n_gas, b, mu0, allowed, ln_n, n_c, active, pi, residuals)
+    verdicts_into(residuals, converged, element_balance_tol, stationarity_tol, complementarity_tol, certified)

@@ -126,12 +126,16 @@ def solve_newton_certified(problem: Problem, start: SolverResult | None = None,
     """``solve_newton`` and ``certify`` of its answer, the residuals taken in the same compiled call."""
     B, M, S = problem.batch_size, problem.A.shape[0], problem.n_species
     C = S - problem.n_gas
-    raw = (np.empty((B, problem.n_gas)), np.empty((B, C)), np.empty((B, C), dtype=bool), np.empty((B, M)),
-           np.empty(B, dtype=np.int64), np.empty(B, dtype=np.int64))
-    residuals = np.empty((B, 4))
-    kernel.run_certified(*_kernel_arguments(problem, start, options, chains), *raw, residuals)
-    result = _result(problem, raw)
-    return result, certify(problem, result, tolerances, residuals=residuals)
+    ln_n, n_c, present = np.empty((B, problem.n_gas)), np.empty((B, C)), np.empty((B, C), dtype=bool)
+    pi = np.empty((B, M))
+    iterations, status, converged = np.empty(B, dtype=np.int64), np.empty(B, dtype=np.int64), np.empty(B, dtype=bool)
+    residuals, certified = np.empty((B, 4)), np.empty(B, dtype=bool)
+    kernel.run_certified(*_kernel_arguments(problem, start, options, chains), ln_n, n_c, present, pi, iterations,
+                         status, converged, tolerances.element_balance, tolerances.stationarity,
+                         tolerances.complementarity, residuals, certified)
+    result = built(SolverResult, ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi, converged=converged,
+                   iterations=iterations, method=("newton",) * B)
+    return result, certify(problem, result, tolerances, worked_out=(residuals, certified))
 
 
 def _kernel_arguments(problem: Problem, start: SolverResult | None, options: NewtonOptions,
