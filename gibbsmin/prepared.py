@@ -385,9 +385,9 @@ class Prepared:
         spec = self.specification
         frozen_mol = frozen_amounts(None if spec.frozen is None else dict(spec.frozen), total, self.db)
         inert = [*spec.inert, *frozen_mol]
-        setup = setup_on(feed_species_set({**total, **frozen_mol}, species=spec.species, exclude=spec.exclude,
-                                          inert=inert, db=self.db),
-                         {**total, **frozen_mol}, T_span, spec.allow_extrapolation)
+        amounts = {**total, **frozen_mol}
+        setup = setup_on(feed_species_set(amounts, species=spec.species, exclude=spec.exclude, inert=inert,
+                                          db=self.db), amounts, T_span, spec.allow_extrapolation)
         if frozen_mol:
             setup = with_frozen_totals(setup, total, frozen_mol)
         return setup, frozen_mol
