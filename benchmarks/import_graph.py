@@ -32,7 +32,7 @@ LAYERS: dict[str, int] = {
     "gibbsmin.restricted": 3, "gibbsmin.sensitivity": 3, "gibbsmin.energy": 3, "gibbsmin.nonideal": 3,
     "gibbsmin.uncertainty": 3,
     "gibbsmin.prepared": 4, "gibbsmin.api": 4,
-    "gibbsmin.carbon": 5, "gibbsmin.audit": 5, "gibbsmin.case": 5,
+    "gibbsmin.carbon": 5, "gibbsmin.flash": 5, "gibbsmin.audit": 5, "gibbsmin.case": 5,
     "gibbsmin.sweep": 5, "gibbsmin.report": 5,
     "gibbsmin.cli": 6,
     "gibbsmin": 7,  # the package's own __init__: the public names, above everything

@@ -14,6 +14,9 @@ from .equilibrium import EnergyFigures as EnergyFigures
 from .equilibrium import Equilibrium as Equilibrium
 from .equilibrium import GasModelState as GasModelState
 from .equilibrium import Restriction as Restriction
+from .flash import bubble_point as bubble_point
+from .flash import condensation_curve as condensation_curve
+from .flash import dew_point as dew_point
 from .formula import molar_mass as molar_mass
 from .formula import parse_formula as parse_formula
 from .reactions import Reaction as Reaction

@@ -72,6 +72,7 @@ def equilibrate(
     sensitivities: bool = False,
     T_bounds: tuple[float, float] | None = None,
     uncertainty: bool = False,
+    liquid: bool | None = None,
 ) -> Equilibrium:
     """Equilibrium of a feed at fixed temperature and pressure, or at the temperature the energy balance sets.
 
@@ -132,6 +133,15 @@ def equilibrate(
     T_bounds : (float, float), optional
         Lowest and highest outlet temperature the energy balance may give,
         [K]; by default the range where every named gas species has data.
+    liquid : bool, optional
+        With a cubic gas model, liquid-solution phases on the same cubic
+        (``nonideal.fluid_phases``): at a fixed T, a gas the tangent-plane
+        test finds unstable is split into gas and liquid (and more liquids
+        where the test finds them), each phase in ``Equilibrium.fluid_phases``
+        with its amounts, Z and density; the certificate covers every phase.
+        None (the default) allows them with a cubic, False keeps the one-gas
+        answer (flagged not certified where it would condense).  Not yet in
+        the energy balance, which keeps the one-gas answer.
     uncertainty : bool
         Fill ``Equilibrium.uncertainty``: the standard uncertainty [mol] of
         every amount, propagated linearly from the data set's uncertainties of
@@ -159,7 +169,8 @@ def equilibrate(
     True
     """
     specification = Specification.of(species=species, exclude=exclude, inert=inert, gas=gas, kij=kij, method=method,
-                                     data=data, allow_extrapolation=allow_extrapolation, T_bounds=T_bounds)
+                                     data=data, allow_extrapolation=allow_extrapolation, T_bounds=T_bounds,
+                                     liquid=liquid)
     return prepared_for(specification, db).equilibrate(feed, T, P, T_feed=T_feed, adiabatic=adiabatic,
                                                        heat_input=heat_input, sensitivities=sensitivities,
                                                        uncertainty=uncertainty)
@@ -187,6 +198,7 @@ def equilibrate_with_approach(
     allow_extrapolation: bool = False,
     data: str | None = None,
     uncertainty: bool = False,
+    liquid: bool | None = None,
 ) -> Equilibrium:
     """Equilibrium with reactions held at a temperature approach and species frozen, at fixed T or adiabatic.
 
@@ -251,6 +263,7 @@ def equilibrate_with_approach(
     specification = Specification.of(
         species=species, exclude=exclude, frozen=frozen, approach=approach, reactions=reactions, gas=gas, kij=kij,
         ln_phi=ln_phi, method=method, data=data, allow_extrapolation=allow_extrapolation, T_bounds=T_bounds,
+        liquid=liquid,
         restricted=True)
     if T is not None:
         T = to_kelvin(T)

@@ -21,7 +21,8 @@ class EnergyFigures:
     Attributes
     ----------
     enthalpy_J, entropy_J_per_K : float
-        Of the outlet (with a cubic gas, its residual parts included in the enthalpy).
+        Of the outlet: the enthalpy with a cubic's residual part, the entropy its ideal-gas part (ideal
+        mixing within each fluid phase; the residual entropy is ``GasModelState.residual_entropy_J_per_K``).
     feed_temperatures_K : mapping or None
         Feed stream (or species) to its temperature, where the feed's were given.
     feed_enthalpy_J : float or None
@@ -32,6 +33,10 @@ class EnergyFigures:
         |H_out - H_in - duty| over the gross enthalpy.
     T_evaluations : int or None
         Fixed-T solves the energy balance took (None at a fixed T).
+    balance_path : str or None
+        How the energy balance was solved: "enthalpy-pressure Newton" (T among the Newton's unknowns, the
+        plain ideal gas on one phase set) or "temperature search" (bracketed, phase changes and plateaus
+        included); None at a fixed T.
     phase_boundary : mapping or None
         Where coexisting phases fix the outlet T (a plateau), as the energy balance reports it.
     enthalpy_kink : mapping or None
@@ -47,6 +52,7 @@ class EnergyFigures:
     duty_W: float | None = None
     balance_residual: float | None = None
     T_evaluations: int | None = None
+    balance_path: str | None = None
     phase_boundary: Mapping[str, object] | None = None
     enthalpy_kink: Mapping[str, object] | None = None
     balance_miss_K: float | None = None
@@ -110,6 +116,44 @@ class Restriction:
 
 
 @dataclass(frozen=True)
+class FluidPhase:
+    """One fluid phase of an answer that holds liquid-solution phases (``Equilibrium.fluid_phases``).
+
+    Attributes
+    ----------
+    name : str
+        "gas", "liquid", "liquid 2".
+    amounts : mapping
+        Species to its amount in this phase, [mol].
+    compressibility_factor : float
+        Z [-] at this phase's root of the cubic.
+    molar_volume : float
+        Z R T / P, [m3/mol].
+    density : float
+        [kg/m3].
+    fugacity_coefficients : mapping
+        Species to phi [-] in this phase.
+    """
+
+    name: str
+    amounts: Mapping[str, float]
+    compressibility_factor: float
+    molar_volume: float
+    density: float
+    fugacity_coefficients: Mapping[str, float]
+
+    @property
+    def amount(self) -> float:
+        """Total amount of the phase, [mol]."""
+        return float(sum(self.amounts.values()))
+
+    @property
+    def mole_fractions(self) -> dict[str, float]:
+        total = self.amount
+        return {s: n / total for s, n in self.amounts.items()}
+
+
+@dataclass(frozen=True)
 class Equilibrium:
     """The equilibrium state of one problem.
 
@@ -151,6 +195,11 @@ class Equilibrium:
         What a cubic gas model found (None for the ideal gas).
     restriction : Restriction or None
         What a restricted equilibrium held (``equilibrate_with_approach``).
+    fluid_phases : tuple of FluidPhase or None
+        With a cubic and liquid-solution phases allowed, every fluid phase
+        present (the gas first); ``amounts`` are then the totals over all
+        phases, ``ln_gas_amounts`` and the mole fractions the gas phase's.
+        None for a one-fluid answer.
     uncertainty : dict or None
         Species name to the standard uncertainty of its amount [mol] from the
         data set's formation-enthalpy uncertainties (``equilibrate(...,
@@ -185,6 +234,7 @@ class Equilibrium:
     energy: EnergyFigures | None = None
     gas: GasModelState | None = None
     restriction: Restriction | None = None
+    fluid_phases: tuple[FluidPhase, ...] | None = None
 
     @property
     def species(self) -> tuple[str, ...]:
@@ -193,7 +243,14 @@ class Equilibrium:
     @property
     def gas_amount(self) -> float:
         """Total amount of the gas phase, [mol]."""
+        if self.fluid_phases is not None:
+            return float(sum(np.exp(v) for v in self.ln_gas_amounts.values() if v > -np.inf))
         return float(sum(n for s, n in self.amounts.items() if self.phase_of[s] == "gas"))
+
+    @property
+    def liquid_amount(self) -> float:
+        """Total amount of the liquid-solution phases, [mol] (zero for a one-fluid answer)."""
+        return float(sum(p.amount for p in self.fluid_phases or () if p.name != "gas"))
 
     @property
     def gas_present(self) -> bool:
@@ -234,8 +291,14 @@ class Equilibrium:
 
     @property
     def amounts_by_phase(self) -> dict[str, dict[str, float]]:
-        """Phase name to {species: mol} for every phase present."""
+        """Phase name to {species: mol} for every phase present (each liquid-solution phase under its name)."""
         phases: dict[str, dict[str, float]] = {}
+        if self.fluid_phases is not None:
+            for fluid in self.fluid_phases:
+                phases[fluid.name] = {s: n for s, n in fluid.amounts.items() if n > 0.0}
+            for s, n in self.condensed.items():
+                phases[s] = {s: n}
+            return phases
         gas_present = self.gas_present
         for s, n in self.amounts.items():
             phase = self.phase_of[s]
@@ -282,6 +345,11 @@ class Equilibrium:
                 "phase_stability": self.certificate.phase_stability,
             },
             "omitted_species": dict(self.omitted),
+            **({} if self.fluid_phases is None else {"fluid_phases": {
+                p.name: {"amounts_mol": dict(p.amounts), "mole_fractions": p.mole_fractions,
+                         "compressibility_factor": p.compressibility_factor, "molar_volume_m3_per_mol": p.molar_volume,
+                         "density_kg_per_m3": p.density, "fugacity_coefficients": dict(p.fugacity_coefficients)}
+                for p in self.fluid_phases}}),
             **{key: {s: (None if np.isnan(v) else v) for s, v in values.items()}
                for key, values in (("amount_uncertainty_mol", self.uncertainty),
                                    ("mole_fraction_uncertainty", self.mole_fraction_uncertainty),
@@ -293,7 +361,7 @@ class Equilibrium:
         }
 
     def table(self, cutoff: float = 1e-12) -> str:
-        """A plain-text table of the species above ``cutoff`` mole fraction in their phase."""
+        """A plain-text table of the species above ``cutoff`` mole fraction in their phase (mol% in that phase)."""
         y = self.mole_fractions
         dry = self.dry_mole_fractions
         lines = [
@@ -304,12 +372,18 @@ class Equilibrium:
         gas_rows = sorted((s for s in y if y[s] >= cutoff), key=lambda s: -y[s]) if self.gas_present else []
         for s in gas_rows:
             dry_text = f"{100 * dry[s]:12.6g}" if s in dry else f"{'-':>12}"
-            lines.append(f"{s:<12} {'gas':<8} {self.amounts[s]:14.6g} {100 * y[s]:12.6g} {dry_text}")
+            in_gas = float(np.exp(self.ln_gas_amounts[s])) if self.fluid_phases is not None else self.amounts[s]
+            lines.append(f"{s:<12} {'gas':<8} {in_gas:14.6g} {100 * y[s]:12.6g} {dry_text}")
+        for liquid in (p for p in self.fluid_phases or () if p.name != "gas"):
+            x = liquid.mole_fractions
+            for s in sorted((s for s in x if x[s] >= cutoff), key=lambda s: -x[s]):
+                lines.append(f"{s:<12} {liquid.name:<8} {liquid.amounts[s]:14.6g} {100 * x[s]:12.6g} {'':>12}")
         for s, n in self.condensed.items():
             lines.append(f"{s:<12} {'cond.':<8} {n:14.6g} {'':>12} {'':>12}")
         hidden = len(y) - len(gas_rows)
         if not self.gas_present:
-            lines.append("(no gas phase: the condensed phases hold every atom and a gas cannot form here)")
+            lines.append("(no gas phase: the condensed phases hold every atom and a gas cannot form here)"
+                         if self.fluid_phases is None else "(no gas phase: the liquid holds every species)")
         elif hidden:
             lines.append(f"({hidden} gas species below {cutoff:g} mole fraction not shown)")
         if "duty_W" in self.extras:

@@ -39,6 +39,7 @@ from .frozen import built, replaced
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
+from .nonideal.fluid_phases import solve_fluid_phases
 from .fixed_step import (Setup, build_problem, check_feed, check_method, checked, feed_species_set, finite_number,
                      positive_number, setup_on, solve_fixed)
 from .solve import CertificateBatch, SolverResult, solve
@@ -90,6 +91,10 @@ class Specification:
     allow_extrapolation : bool
     T_bounds : (float, float) or None
         Lowest and highest outlet temperature the energy balance may give, [K].
+    liquid : bool or None
+        Liquid-solution phases with the cubic (``nonideal.fluid_phases``): None
+        (the default) allows them with a cubic gas model and not with the
+        ideal gas; False keeps the one-fluid answer.
     restricted : bool
         Report the restricted-equilibrium figures (approaches, settling
         temperatures, the reactions at equilibrium, frozen amounts) as
@@ -109,6 +114,7 @@ class Specification:
     data: str | None = None
     allow_extrapolation: bool = False
     T_bounds: tuple[float, float] | None = None
+    liquid: bool | None = None
     restricted: bool = False
 
     @classmethod
@@ -117,7 +123,8 @@ class Specification:
            approach: Mapping[str | Reaction, float] | None = None, reactions: Sequence[str | Reaction] = (),
            gas: str = "ideal", kij: object = "shipped", ln_phi: Mapping[str, float] | None = None,
            method: str = "auto", data: str | None = None, allow_extrapolation: bool = False,
-           T_bounds: tuple[float, float] | None = None, restricted: bool = False) -> Specification:
+           T_bounds: tuple[float, float] | None = None, liquid: bool | None = None,
+           restricted: bool = False) -> Specification:
         """The specification of the keyword options of ``gibbsmin.equilibrate`` and ``equilibrate_with_approach``,
         in a form that can be compared and hashed (mappings become sorted pairs)."""
         if approach is None:
@@ -141,7 +148,7 @@ class Specification:
             ln_phi=None if ln_phi is None else tuple(ln_phi.items()), method=method, data=data,
             allow_extrapolation=bool(allow_extrapolation),
             T_bounds=None if T_bounds is None else tuple(T_bounds) if isinstance(T_bounds, Sequence) else T_bounds,
-            restricted=restricted)
+            liquid=liquid, restricted=restricted)
 
     @property
     def kij_argument(self) -> object:
@@ -176,6 +183,15 @@ class Prepared:
                              "or 'srk' with it, or leave kij out for the ideal gas")
         if spec.ln_phi is not None and spec.gas != "ideal":
             raise InputError("give either ln_phi (held fixed) or a gas model (iterated), not both")
+        if spec.liquid not in (None, True, False):
+            raise InputError(f"liquid takes True, False or None (the default: liquids with a cubic gas model), "
+                             f"got {spec.liquid!r}")
+        if spec.liquid and spec.gas == "ideal":
+            raise InputError("liquid-solution phases are described by a cubic: pass gas='peng-robinson' or 'srk' "
+                             "with liquid=True (with the ideal gas, liquids are pure condensed species such as "
+                             "H2O(l) in the species set)")
+        #: Whether the fixed-T step splits an unstable gas into liquid-solution phases.
+        self.liquids = spec.gas != "ideal" and spec.liquid is not False
         self.specification = spec
         self.db = db
         self.held = [(reaction(name, db=db), finite_number(value, f"approach of {name}")) for name, value in spec.approach]
@@ -311,10 +327,10 @@ class Prepared:
         complete = self._complete_reactions(setup, known) if spec.restricted or held else None
         text = self._specification_text(energy_balance, frozen_mol)
         offsets_at = self._offsets(setup, complete) if held else None
-        step = functools.partial(self._step, setup, P, phase, offsets_at, text)
+        step = functools.partial(self._step, setup, P, phase, offsets_at, text, self.liquids)
         residual = None if phase.is_ideal else phase.residual_enthalpy
         H_in, gross_in = nonideal.inlet_enthalpies(None if phase.is_ideal else phase, inlet, P, db,
-                                                   spec.allow_extrapolation)
+                                                   spec.allow_extrapolation, liquids=self.liquids)
         if energy_balance:
             eq, problem, result = energy.solve_energy_balance(
                 setup, H_in + heat, P, T_bounds=T_span, gross_inlet=gross_in + abs(heat),
@@ -322,15 +338,20 @@ class Prepared:
                 allow_extrapolation=spec.allow_extrapolation, residual_enthalpy=residual, step=step,
                 phase_set_solve=not held,
                 phase_set_step=None if phase.is_ideal else functools.partial(nonideal.phase_set_step, phase),
-                enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks)
+                enthalpy_kinks=None if phase.is_ideal else phase.enthalpy_kinks,
+                plain_ideal_gas=phase.is_ideal and not held)
             eq = dataclasses.replace(eq, specification=text)
         else:
             eq, problem, result = step(T, start[1] if start is not None and _start_key(start[0]) == _start_key(setup)
                                        else None)
+        if eq.fluid_phases is not None and (sensitivities or uncertainty):
+            raise InputError("sensitivities and uncertainty are not yet computed for an answer with liquid-solution "
+                             "phases; drop them, or pass liquid=False for the one-gas answer")
         figures = energy.energy_figures(setup, eq, P, inlet, H_in, heat, inlet_gross=gross_in,
                                         residual_enthalpy=residual)
         extras = {**energy.energy_extras(figures), "data_set": db.data_set}
-        stability = None if phase.is_ideal else nonideal.stability_checked(phase, eq, stacklevel=4)
+        stability = None if phase.is_ideal else (eq.gas.stability if eq.fluid_phases is not None else
+                                                 nonideal.stability_checked(phase, eq, stacklevel=4))
         if sensitivities:
             extras["sensitivities"] = self._sensitivities(setup, phase, problem, result, eq.T, P)
         if uncertainty:
@@ -429,14 +450,26 @@ class Prepared:
             return reaction_offsets(setup.system, complete, [shift.get(r.name, 0.0) for r in complete])
         return offsets_at
 
-    def _step(self, setup: Setup, P: float, phase, offsets_at, text: str, T: float,
+    def _step(self, setup: Setup, P: float, phase, offsets_at, text: str, liquids: bool, T: float,
               start: SolverResult | None) -> tuple[Equilibrium, object, SolverResult]:
-        """The one fixed-T step: the gas model's solve at T with the held reactions' offsets at T.
+        """The one fixed-T step: the gas model's solve at T with the held reactions' offsets at T, and with
+        ``liquids`` the split into liquid-solution phases where the one gas is not stable.
 
         With "auto" a warm start that fails (a phase swapped since the
         neighbour) is retried cold before the cone solver is tried, which is
         far slower.
         """
+        eq, problem, result = self._one_fluid_step(setup, P, phase, offsets_at, text, T, start)
+        if liquids:
+            split = solve_fluid_phases(setup, T, P, phase, one_gas=eq, one_gas_result=result,
+                                       offsets=None if offsets_at is None else offsets_at(T),
+                                       allow_extrapolation=self.specification.allow_extrapolation)
+            if split is not None:
+                eq = split[0]
+        return eq, problem, result
+
+    def _one_fluid_step(self, setup: Setup, P: float, phase, offsets_at, text: str, T: float,
+                        start: SolverResult | None) -> tuple[Equilibrium, object, SolverResult]:
         spec = self.specification
         offsets = None if offsets_at is None else offsets_at(T)
         ln_phi = None if self.ln_phi is None else np.array([self.ln_phi.get(s, 0.0) for s in setup.system.gas_names])
@@ -513,7 +546,8 @@ def prepare(*, species: Sequence[str] | None = None, exclude: Sequence[str] = ()
             approach: Mapping[str | Reaction, float] | None = None, reactions: Sequence[str | Reaction] = (),
             gas: str = "ideal", kij: object = "shipped", ln_phi: Mapping[str, float] | None = None,
             method: str = "auto", data: str | None = None, db: SpeciesDatabase | None = None,
-            allow_extrapolation: bool = False, T_bounds: tuple[float, float] | None = None) -> Prepared:
+            allow_extrapolation: bool = False, T_bounds: tuple[float, float] | None = None,
+            liquid: bool | None = None) -> Prepared:
     """Prepare an equilibrium specification once, to solve it for many feeds and conditions.
 
     The options are those of :func:`gibbsmin.equilibrate` and
@@ -533,5 +567,5 @@ def prepare(*, species: Sequence[str] | None = None, exclude: Sequence[str] = ()
     specification = Specification.of(
         species=species, exclude=exclude, inert=inert, frozen=frozen, approach=approach, reactions=reactions,
         gas=gas, kij=kij, ln_phi=ln_phi, method=method, data=data, allow_extrapolation=allow_extrapolation,
-        T_bounds=T_bounds, restricted=restricted)
+        T_bounds=T_bounds, liquid=liquid, restricted=restricted)
     return Prepared(specification, choose_database(data, db))

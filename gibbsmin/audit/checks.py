@@ -275,8 +275,8 @@ def _reference_specification(spec: UnitSpec, species: Sequence[str], frozen: Seq
     """What a unit's equilibrium reference computes, as the one specification every front door builds."""
     if spec.approach:
         return Specification.of(species=species, approach=dict(spec.approach), frozen=list(frozen) or None,
-                                gas=spec.gas, restricted=True)
-    return Specification.of(species=species, inert=frozen, gas=spec.gas)
+                                gas=spec.gas, restricted=True, liquid=False if spec.gas != "ideal" else None)
+    return Specification.of(species=species, inert=frozen, gas=spec.gas, liquid=False if spec.gas != "ideal" else None)
 
 
 def _reactions_to_check(spec: UnitSpec, outlet_gas: Mapping[str, float], db: SpeciesDatabase):

@@ -209,7 +209,9 @@ def check_uncertainty(case: Case, stage: Stage, db: SpeciesDatabase) -> None:
 
 def stage_specification(case: Case, stage: Stage, scope: StageScope) -> Specification:
     """What a stage computes, as the one specification every front door builds (``gibbsmin.prepare``)."""
-    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions}
+    # Liquid-solution phases stay off in case files until the reports show each phase: a stage's cubic gas that
+    # would condense is flagged not certified, as before.
+    cubic = {} if stage.gas == "ideal" else {"gas": stage.gas, "kij": stage.interactions, "liquid": False}
     if stage.approach:
         return Specification.of(species=scope.species, exclude=scope.exclude, approach=dict(stage.approach),
                                 frozen=list(scope.held) or None, method=stage.method,

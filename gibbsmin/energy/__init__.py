@@ -33,6 +33,15 @@ of the two phase sets present and T as an unknown closed by the energy balance
 (``phase_boundary.solve_on_phase_boundary``); its answer is accepted when every
 condensed amount is non-negative and it certifies.
 
+For the ideal gas with the plain standard potentials this search is the
+fallback: ``enthalpy_newton.solve_at_fixed_enthalpy`` first runs one compiled
+Newton with ln T among the unknowns (the energy balance as one more row,
+Gordon and McBride, NASA RP-1311, 1994) on the phase set a fixed-T solve at
+the frozen-mixture temperature finds, and its answer is taken where the
+problem built afresh at the temperature found certifies it (no absent
+condensed species that would form there), the phase set has not changed and
+the balance closes to the search's own tolerance.
+
 A condensed species cannot form outside its fitted range, so H_eq(T) also
 jumps at the ends of those ranges; the search steps onto each such temperature
 rather than over it, and names the species when no temperature balances.

@@ -16,9 +16,12 @@ from ..equilibrium import Equilibrium
 from ..errors import ConvergenceError, InputError
 from ..fixed_step import Setup, checked, solve_fixed
 from ..solve import SolverResult
+from ..solve import _enthalpy_kernel as enthalpy_kernel
 from ..system import Problem
 from ..thermo.nasa7 import Nasa7Table, R
-from .properties import FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts
+from .enthalpy_newton import ENTHALPY_NEWTON, PATH_KEY, SEARCH, equilibrium_heat_capacity, solve_at_fixed_enthalpy
+from .properties import (FixedTStep, PhaseSetStep, ResidualEnthalpy, enthalpy, heat_capacity, state_amounts,
+                         state_enthalpy)
 
 
 #: The energy balance is solved to this fraction of the gross enthalpy (see ``enthalpy_scale``).
@@ -39,15 +42,9 @@ _PHASE_SET_TRIES = 3
 def frozen_temperature(table: Nasa7Table, n: NDArray[np.float64], H: float, bounds: tuple[float, float]) -> float:
     """Temperature at which an unreacted mixture has enthalpy H, [K] (a first guess of the outlet)."""
     low, high = bounds
-    T = 0.5 * (low + high)
-    for _ in range(60):
-        cp = max(heat_capacity(table, n, T), 1e-12)
-        step = (H - float(n @ table.h_RT(T)) * R * T) / cp
-        T = min(max(T + step, low), high)
-        if abs(step) < 1e-6:
-            break
-    return T
-
+    return float(enthalpy_kernel.frozen_temperature(table.low, table.high, table.T_mid,
+                                                    np.ascontiguousarray(n, dtype=float), float(H), float(low),
+                                                    float(high)))
 
 
 @dataclass(frozen=True)
@@ -90,6 +87,7 @@ def solve_energy_balance(
     phase_set_solve: bool = True,
     phase_set_step: PhaseSetStep | None = None,
     enthalpy_kinks: Mapping[str, float] | None = None,
+    plain_ideal_gas: bool | None = None,
 ) -> tuple[Equilibrium, Problem, SolverResult]:
     """Equilibrium at fixed enthalpy H_target [J] and pressure P [Pa].
 
@@ -124,12 +122,20 @@ def solve_energy_balance(
         holding it jumps (``GasPhase.enthalpy_kinks``).  An outlet whose
         energy balance falls inside such a jump is pinned there, with a
         warning and ``extras["enthalpy_kink"]``.
+    plain_ideal_gas : bool, optional
+        Whether ``step`` is the ideal gas with the plain standard potentials
+        (no ln phi, no offsets of held reactions); by default, whether
+        ``step`` is omitted.  Then the T-unknown Newton
+        (``enthalpy_newton.solve_at_fixed_enthalpy``) is tried first, and its
+        answer taken where it certifies and closes the balance.
 
     Returns
     -------
     (Equilibrium, Problem, SolverResult)
         The answer (``specification`` "H and P", ``extras["T_evaluations"]``,
-        and ``extras["phase_boundary"]`` when T sits on a two-phase plateau).
+        ``extras["energy_balance_path"]`` (the T-unknown Newton, or the
+        temperature search), and ``extras["phase_boundary"]`` when T sits on
+        a two-phase plateau).
 
     Raises
     ------
@@ -138,6 +144,8 @@ def solve_energy_balance(
     ConvergenceError
         The search did not close the balance.
     """
+    if plain_ideal_gas is None:
+        plain_ideal_gas = step is None
     if step is None:
         def step(T, start):
             if method == "auto" and start is not None:
@@ -157,9 +165,31 @@ def solve_energy_balance(
         # mixture knows nothing of, and the search then walks down from there.
         T_guess = max(frozen_temperature(system.table, n_feed, H_target, T_bounds), coldest_feed)
     scale = max(gross_inlet, float(n_feed.sum()) * R * T_guess)
+    T_start = min(max(T_guess, T_bounds[0]), T_bounds[1])
+    if plain_ideal_gas and method in ("auto", "newton") and residual_enthalpy is None and phase_set_step is None \
+            and not enthalpy_kinks:
+        answer = _by_enthalpy_newton(setup, H_target, P, T_start, T_bounds, scale, allow_extrapolation)
+        if answer is not None:
+            return answer
     search = _Search(setup, H_target, P, T_bounds, scale, residual_enthalpy, step, allow_extrapolation,
                      phase_set_solve, phase_set_step, enthalpy_kinks)
-    return search.run(min(max(T_guess, T_bounds[0]), T_bounds[1]))
+    return search.run(T_start)
+
+
+def _by_enthalpy_newton(setup: Setup, H_target: float, P: float, T_start: float, T_bounds: tuple[float, float],
+                        scale: float, allow_extrapolation: bool) -> tuple[Equilibrium, Problem, SolverResult] | None:
+    """The T-unknown Newton's answer where it certifies and closes the balance as the search would; else None."""
+    solved = solve_at_fixed_enthalpy(setup, H_target, P, T_start, T_bounds, allow_extrapolation)
+    if solved is None:
+        return None
+    eq, problem, result = solved
+    system = setup.system
+    n = state_amounts(setup, eq)
+    miss = enthalpy(system.table, system.n_gas, n, eq.T, P) - H_target
+    if not abs(miss) <= _TOLERANCE * enthalpy_scale(setup, n, eq.T, scale, 0.0):
+        return None
+    # Two fixed-T solves inside the kernel: at the start, and at the temperature found.
+    return replace(eq, extras={**eq.extras, "T_evaluations": 2, PATH_KEY: ENTHALPY_NEWTON}), problem, result
 
 
 class _Search:
@@ -189,10 +219,8 @@ class _Search:
             # Only the final answer's precision matters; a usable intermediate one is fine.
             warnings.simplefilter("ignore", RuntimeWarning)
             checked(eq)
-        system = self.setup.system
-        n = state_amounts(self.setup, eq)
-        H = enthalpy(system.table, system.n_gas, n, T, self.P, self.residual_enthalpy)
-        cp = sensitivity.equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
+        H = state_enthalpy(self.setup, eq, self.P, self.residual_enthalpy)
+        cp = equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
         point = _Point(T, eq, problem, result, H, H - self.H_target, cp)
         self.points.append(point)
         return point
@@ -203,7 +231,8 @@ class _Search:
 
     def finish(self, point: _Point, extras: Mapping[str, object] | None = None):
         eq = replace(point.eq, specification="H and P",
-                     extras={**point.eq.extras, "T_evaluations": len(self.points), **(extras or {})})
+                     extras={**point.eq.extras, "T_evaluations": len(self.points), PATH_KEY: SEARCH,
+                             **(extras or {})})
         return eq, point.problem, point.result
 
     def no_root(self, point: _Point) -> InputError:

@@ -7,11 +7,12 @@ import numbers
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
+import numpy as np
 
 from ..errors import InputError
 from ..fixed_step import check_feed
 from ..thermo.database import SpeciesDatabase
-from .properties import _temperature, mixture_enthalpy
+from .properties import _temperature, mixture_enthalpy, species_enthalpies
 
 
 
@@ -75,9 +76,9 @@ class Inlet:
 
     def gross_enthalpy(self, P: float, db: SpeciesDatabase) -> float:
         """Sum of |n_j h_j| over the inlet, [J]: the scale the energy-balance residual is measured on."""
-        # A zero amount means the species is absent: it adds nothing (and is no mixture of its own).
-        return sum(abs(mixture_enthalpy({name: amount}, s.T, P, db=db, allow_extrapolation=True))
-                   for s in self.streams for name, amount in s.amounts.items() if amount > 0.0)
+        # A zero amount means the species is absent: it adds nothing.  One evaluation per stream.
+        return sum(float(np.abs(species_enthalpies(present, s.T, db=db, allow_extrapolation=True)).sum())
+                   for s in self.streams if (present := {name: n for name, n in s.amounts.items() if n > 0.0}))
 
 
 def read_inlet(feed: Mapping[str, object], T_feed: object, db: SpeciesDatabase) -> Inlet:

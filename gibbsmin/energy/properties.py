@@ -140,11 +140,29 @@ def mixture_enthalpy(amounts: Mapping[str, float], T: float, P: float = P_REF, *
     return enthalpy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
 
 
+def species_enthalpies(amounts: Mapping[str, float], T: float, *, db: SpeciesDatabase | None = None,
+                       allow_extrapolation: bool = False) -> NDArray[np.float64]:
+    """n_j h_j of each species of a mixture on the formation basis, [J] (gas species first, as in ``_mixture``)."""
+    table, _, n, T = _mixture(amounts, T, db, allow_extrapolation)
+    return n * (table.h_RT(T) * (R * T))
+
+
 def mixture_entropy(amounts: Mapping[str, float], T: float, P: float = P_REF, *,
                     db: SpeciesDatabase | None = None, allow_extrapolation: bool = False) -> float:
     """Entropy of a mixture, [J/K]: ideal gas mixture plus pure condensed phases (see ``mixture_enthalpy``)."""
     table, n_gas, n, T = _mixture(amounts, T, db, allow_extrapolation)
     return entropy(table, n_gas, n, T, positive_number(P, "P", "Pa"))
+
+
+def state_enthalpy(setup: Setup, eq: Equilibrium, P: float,
+                   residual_enthalpy: ResidualEnthalpy | None = None) -> float:
+    """Enthalpy of an answer, [J]: with liquid-solution phases, the residual parts summed over its fluid phases
+    (each on its own root: ``GasModelState.residual_enthalpy_J``); otherwise the gas's, by ``residual_enthalpy``."""
+    system = setup.system
+    n = state_amounts(setup, eq)
+    if eq.fluid_phases is not None:
+        return enthalpy(system.table, system.n_gas, n, eq.T, P) + eq.gas.residual_enthalpy_J
+    return enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
 
 
 def state_amounts(setup: Setup, eq: Equilibrium) -> NDArray[np.float64]:

@@ -5,12 +5,14 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import replace
 
+import numpy as np
+
 
 from ..equilibrium import EnergyFigures, Equilibrium
 from ..fixed_step import Setup
 from .balance import enthalpy_scale
 from .inlet import Inlet
-from .properties import ResidualEnthalpy, enthalpy, entropy, state_amounts
+from .properties import ResidualEnthalpy, entropy, state_amounts, state_enthalpy
 
 #: Written into every result that carries a heat figure.
 SIGN_CONVENTION = "positive = heat added to the reactor; J per the feed amounts given (W when they are mol/s)"
@@ -27,9 +29,19 @@ def energy_figures(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None,
     """
     system = setup.system
     n = state_amounts(setup, eq)
-    H_out = enthalpy(system.table, system.n_gas, n, eq.T, P, residual_enthalpy)
+    H_out = state_enthalpy(setup, eq, P, residual_enthalpy)
+    if eq.fluid_phases is None:
+        S_out = entropy(system.table, system.n_gas, n, eq.T, P)
+    else:
+        # Each fluid phase mixes on its own (the residual entropy is the gas model's, summed over the phases).
+        condensed = n.copy()
+        condensed[: system.n_gas] = 0.0
+        S_out = entropy(system.table, system.n_gas, condensed, eq.T, P) + sum(
+            entropy(system.table, system.n_gas, np.concatenate(
+                [[phase.amounts.get(name, 0.0) for name in system.gas_names], np.zeros(len(n) - system.n_gas)]),
+                eq.T, P) for phase in eq.fluid_phases)
     search = {name: eq.extras.get(key) for name, key in _SEARCH_FIGURES.items()}
-    figures = EnergyFigures(H_out, entropy(system.table, system.n_gas, n, eq.T, P), **search)
+    figures = EnergyFigures(H_out, S_out, **search)
     if inlet is None or H_in is None:
         return figures
     # "T and P", or "T and P; <held reactions>" for a restricted equilibrium: the duty is what T needs.
@@ -40,7 +52,8 @@ def energy_figures(setup: Setup, eq: Equilibrium, P: float, inlet: Inlet | None,
 
 
 #: EnergyFigures' fields the energy balance's search reports, and its names for them.
-_SEARCH_FIGURES = {"T_evaluations": "T_evaluations", "phase_boundary": "phase_boundary",
+_SEARCH_FIGURES = {"T_evaluations": "T_evaluations", "balance_path": "energy_balance_path",
+                   "phase_boundary": "phase_boundary",
                    "enthalpy_kink": "enthalpy_kink", "balance_miss_K": "energy_balance_miss_K"}
 
 

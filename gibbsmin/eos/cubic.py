@@ -34,7 +34,8 @@ from .families import CubicFamily
 from .inputs import check_conditions
 from .quantum import QuantumGas, QuantumTable, quantum_gases_of
 from .result import GasProperties
-from .roots import real_roots, vapour_root
+from ..compiled import compiled
+from .roots import liquid_root, real_roots, vapour_root
 
 FloatArray = NDArray[np.float64]
 
@@ -174,7 +175,21 @@ class CubicModel:
     # y of shape (B, S) for a batch; the same expressions serve both by broadcasting.
 
     def _pure(self, T):
-        """sqrt(a_i) and b_i at T, with their T-derivatives, shape (S,) or (B, S)."""
+        """sqrt(a_i) and b_i at T, with their T-derivatives, shape (S,) or (B, S).
+
+        The last single temperature's values are kept: a flash or a stability test asks for them hundreds of
+        times at one T.
+        """
+        if isinstance(T, float):
+            last = self.__dict__.get("_last_pure")
+            if last is not None and last[0] == T:
+                return last[1]
+            found = self._pure_at(T)
+            self.__dict__["_last_pure"] = (T, found)
+            return found
+        return self._pure_at(T)
+
+    def _pure_at(self, T):
         sp = self._species
         sqrt_ac, b, Tc = sp.sqrt_ac, sp.b, sp.Tc
         dlnTc = dlnPc = 0.0
@@ -245,13 +260,33 @@ class CubicModel:
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         if not single:
             raise InputError("ln_phi_least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
-        *_, A, B, beta, abar = self._mixture(T, P, y)
-        best = None
-        for Z in real_roots(*self.family.cubic_coefficients(A, B), B):
-            ln_phi, g, _, _ = self._at_root(Z, A, B, beta, abar, math.log)
-            if best is None or g < best[1]:
-                best = (ln_phi, g)
-        return best
+        return self.least_gibbs_root(T, P, y)[:2]
+
+    def least_gibbs_root(self, T: float, P: float, y: ArrayLike) -> tuple[NDArray[np.float64], float, float]:
+        """ln phi [-], G_res/RT [-] and Z [-] at the real root of least Gibbs energy, for one condition
+        (a liquid-solution phase takes this root: ``nonideal.fluid_phases``)."""
+        T, P, y, single = check_conditions(T, P, y, self.n_species)
+        if not single:
+            raise InputError("least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
+        return self.single_condition(T, P, y, _LEAST_GIBBS)
+
+    def mixing_parameters(self, T: float) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], bool]:
+        """sqrt(a_i) and b_i at T, the (1 - k_ij) matrix and whether it is there: what the compiled
+        single-condition evaluation (``_single_ln_phi``) takes."""
+        sqrt_a, _, b_i, _ = self._pure(float(T))
+        k = self._one_minus_k
+        return (np.ascontiguousarray(sqrt_a, dtype=float), np.ascontiguousarray(b_i, dtype=float),
+                _NO_K if k is None else k, k is not None)
+
+    def single_condition(self, T: float, P: float, y: NDArray[np.float64],
+                         choice: int) -> tuple[NDArray[np.float64], float, float]:
+        """ln phi [-], G_res/RT [-] and Z [-] of one checked condition (T, P floats; y of shape (S,), summing to
+        one) at the root ``choice`` (0 vapour, 1 liquid, 2 least Gibbs energy), by the compiled evaluation."""
+        sqrt_a, b_i, one_minus_k, has_k = self.mixing_parameters(T)
+        fam = self.family
+        ln_phi, g, Z = _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, np.ascontiguousarray(y, dtype=float),
+                                      float(T), float(P), fam.delta1, fam.delta2, choice)
+        return ln_phi, float(g), float(Z)
 
     def wilson_ratios(self, T: float, P: float) -> NDArray[np.float64]:
         """Wilson's estimate of the vapour-liquid ratios K_i = (Pc_i/P) exp(5.373 (1 + omega_i)(1 - Tc_i/T)).
@@ -287,8 +322,15 @@ class CubicModel:
         """Tc of each species, [K] (quantum gases: their classical limit)."""
         return self._species.Tc.copy()
 
-    def properties(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False) -> GasProperties:
-        """Z, ln phi, residual enthalpy and entropy of the gas at T, P and y.
+    @property
+    def critical_pressures(self) -> NDArray[np.float64]:
+        """Pc of each species, [Pa] (quantum gases: their classical limit)."""
+        return self._species.Pc.copy()
+
+    def properties(
+        self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, dT: bool = False, root: str | float = "vapour"
+    ) -> GasProperties:
+        """Z, ln phi, residual enthalpy and entropy of the gas (or, with root="liquid", the liquid) at T, P and y.
 
         Parameters
         ----------
@@ -300,6 +342,11 @@ class CubicModel:
             Mole fractions, in the model's species order [-]; must sum to one.
         dT : bool
             Also return d ln phi / dT at constant P and y, [1/K].
+        root : str or float
+            "vapour" (the default: the largest root, see :func:`gibbsmin.eos.roots.vapour_root`)
+            or "liquid" (the smallest physical root; the same as the vapour root
+            where the cubic has only one, see :func:`gibbsmin.eos.roots.liquid_root`); or, for one
+            condition, the root Z itself (a liquid-solution phase's, from ``least_gibbs_root``).
 
         Returns
         -------
@@ -314,7 +361,10 @@ class CubicModel:
         Delta = delta1 - delta2
 
         sqrt_a, dsqrt_a, b_i, db_i, q, a, b, A, B, beta, abar = self._mixture(T, P, y)
-        Z = vapour_root(*fam.cubic_coefficients(A, B), B)
+        if isinstance(root, str):
+            Z = _ROOTS[_root_choice(root)](*fam.cubic_coefficients(A, B), B)
+        else:
+            Z = root
 
         Zpd1, Zpd2 = Z + delta1 * B, Z + delta2 * B
         A_BD = A / (B * Delta)
@@ -337,11 +387,13 @@ class CubicModel:
             return GasProperties(self.name, Z, ln_phi, H_res, H_res - g, dln_phi)
         return GasProperties(self.name, Z[:, 0], ln_phi, H_res[:, 0], (H_res - g)[:, 0], dln_phi)
 
-    def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike) -> FloatArray:
+    def ln_phi(self, T: ArrayLike, P: ArrayLike, y: ArrayLike, *, root: str = "vapour") -> FloatArray:
         """ln phi of each species [-], shape (S,) or (B, S); as :meth:`properties` gives it, without the rest."""
         T, P, y, single = check_conditions(T, P, y, self.n_species)
+        if single:
+            return self.single_condition(T, P, y, _VAPOUR if _root_choice(root) == "vapour" else _LIQUID)[0]
         *_, A, B, beta, abar = self._mixture(T, P, y)
-        Z = vapour_root(*self.family.cubic_coefficients(A, B), B)
+        Z = _ROOTS[_root_choice(root)](*self.family.cubic_coefficients(A, B), B)
         return self._at_root(Z, A, B, beta, abar, math.log if single else np.log)[0]
 
     def _dln_phi_dT(self, s: _Local) -> FloatArray:
@@ -397,8 +449,103 @@ class _Local(NamedTuple):
     db: Any
 
 
+#: The root each phase takes: the gas the largest, a liquid the smallest physical one.
+_ROOTS = {"vapour": vapour_root, "liquid": liquid_root}
+
+
+def _root_choice(root: str) -> str:
+    if root not in _ROOTS:
+        raise InputError(f"root={root!r} is not understood: give 'vapour' or 'liquid'")
+    return root
+
+
 def _weighted_sum(y, x):
     """sum_i y_i x_i: a float for y of shape (S,), shape (B, 1) for y of shape (B, S)."""
     if y.ndim == 1:
         return float(np.dot(y, x))
     return np.sum(y * x, axis=1, keepdims=True)
+
+
+_NO_K = np.ones((1, 1))
+_R = R
+
+#: Root choices of the compiled single-condition evaluation.
+_VAPOUR, _LIQUID, _LEAST_GIBBS = 0, 1, 2
+
+
+@compiled()
+def _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, y, T, P, delta1, delta2, choice):
+    """ln phi_i, G_res/RT and Z of one condition at the chosen root (vapour: the largest; liquid: the
+    smallest physical one; or the one of least Gibbs energy), the roots in closed form and polished.
+
+    Compiled: a flash and its stability tests evaluate the cubic thousands of times at one T, where the
+    array expressions of ``properties`` cost ten times the arithmetic.
+    """
+    S = y.shape[0]
+    q = np.empty(S)
+    a = 0.0
+    b = 0.0
+    for i in range(S):
+        total = 0.0
+        for j in range(S):
+            total += (one_minus_k[i, j] if has_k else 1.0) * y[j] * sqrt_a[j]
+        q[i] = total
+    for i in range(S):
+        a += y[i] * sqrt_a[i] * q[i]
+        b += y[i] * b_i[i]
+    RT = _R * T
+    A = a * P / (RT * RT)
+    B = b * P / RT
+    u, w = delta1 + delta2, delta1 * delta2
+    c2 = -(1.0 + B - u * B)
+    c1 = A + w * B * B - u * B * (1.0 + B)
+    c0 = -B * (A + w * B * (1.0 + B))
+    shift = c2 / 3.0
+    p = c1 - c2 * shift
+    qq = (2.0 * shift * shift - c1) * shift + c0
+    half_q = 0.5 * qq
+    disc = half_q * half_q + (p / 3.0) ** 3
+    roots = np.empty(3)
+    count = 0
+    if disc > 0.0:
+        r = math.sqrt(disc)
+        u1, u2 = -half_q + r, -half_q - r
+        roots[0] = math.copysign(abs(u1) ** (1.0 / 3.0), u1) + math.copysign(abs(u2) ** (1.0 / 3.0), u2) - shift
+        count = 1
+    elif p == 0.0:
+        roots[0] = -shift
+        count = 1
+    else:
+        radius = 2.0 * math.sqrt(-p / 3.0)
+        angle = math.acos(max(-1.0, min(1.0, 3.0 * qq / (p * radius)))) / 3.0
+        for k in range(3):
+            roots[k] = radius * math.cos(angle - 2.0 * math.pi * k / 3.0) - shift
+        count = 3
+    best_Z = -1.0
+    best_g = np.inf
+    for k in range(count):
+        Z = roots[k]
+        for _ in range(2):
+            slope = (3.0 * Z + 2.0 * c2) * Z + c1
+            if slope != 0.0:
+                Z -= (((Z + c2) * Z + c1) * Z + c0) / slope
+        if not Z > B:
+            continue
+        L = math.log((Z + delta1 * B) / (Z + delta2 * B))
+        g = Z - 1.0 - math.log(Z - B) - A / (B * (delta1 - delta2)) * L
+        if best_Z < 0.0 or (choice == _VAPOUR and Z > best_Z) or (choice == _LIQUID and Z < best_Z) or (
+                choice == _LEAST_GIBBS and g < best_g):
+            best_Z, best_g = Z, g
+    Z = best_Z
+    ln_phi = np.empty(S)
+    if Z < 0.0:
+        ln_phi[:] = np.nan
+        return ln_phi, np.nan, np.nan
+    L = math.log((Z + delta1 * B) / (Z + delta2 * B))
+    ln_Z_B = math.log(Z - B)
+    A_BD = A / (B * (delta1 - delta2))
+    for i in range(S):
+        beta = b_i[i] / b
+        abar = 2.0 * sqrt_a[i] * q[i] / a
+        ln_phi[i] = beta * (Z - 1.0) - ln_Z_B - A_BD * L * (abar - beta)
+    return ln_phi, best_g, Z

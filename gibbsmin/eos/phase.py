@@ -238,7 +238,7 @@ def _kij_matrix(kij: Mapping[tuple[str, str], float] | None, names: list[str],
     return k
 
 
-def _model_of_gas(fractions: Mapping[str, float], gas: str, kij, db: SpeciesDatabase | None):
+def model_of_gas(fractions: Mapping[str, float], gas: str, kij, db: SpeciesDatabase | None):
     """The cubic over the species of a composition that have critical constants, their fractions, and all names."""
     db = db or default_database()
     names = [s for s, v in fractions.items() if v > 0.0]
@@ -265,7 +265,7 @@ def ln_phi_of_gas(fractions: Mapping[str, float], T: float, P: float, gas: str, 
     """
     if canonical_model_name(gas) == "ideal" or not any(v > 0.0 for v in fractions.values()):
         return {s: 0.0 for s, v in fractions.items() if v > 0.0}
-    model, described, amounts, names = _model_of_gas(fractions, gas, kij, db)
+    model, described, amounts, names = model_of_gas(fractions, gas, kij, db)
     ln_phi = dict(zip(described, model.ln_phi(float(T), float(P), amounts / amounts.sum())))
     return {name: float(ln_phi.get(name, 0.0)) for name in names}
 
@@ -280,6 +280,6 @@ def residual_enthalpy_of_gas(amounts: Mapping[str, float], T: float, P: float, g
     """
     if canonical_model_name(gas) == "ideal" or not any(v > 0.0 for v in amounts.values()):
         return 0.0
-    model, _, described_amounts, _ = _model_of_gas(amounts, gas, kij, db)
+    model, _, described_amounts, _ = model_of_gas(amounts, gas, kij, db)
     total = float(described_amounts.sum())
     return float(total * R * T * model.properties(float(T), float(P), described_amounts / total).H_res_RT)

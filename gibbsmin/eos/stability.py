@@ -26,7 +26,8 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from .cubic import CubicModel
+from ..compiled import compiled
+from .cubic import _LEAST_GIBBS, CubicModel, _single_ln_phi
 
 #: A stationary point below this distance means the gas splits [-].
 UNSTABLE_BELOW = -1e-8
@@ -64,17 +65,12 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike) -> S
     d = np.full(z.shape, -np.inf)
     d[there] = np.log(z[there]) + model.ln_phi(T, P, z)[there]  # the gas as the equilibrium has it
     K = model.wilson_ratios(T, P)
+    sqrt_a, b_i, one_minus_k, has_k = model.mixing_parameters(float(T))
+    family = model.family
     lowest, trial = 0.0, None
     for start in (z * K, z / K):
-        W = np.where(there, start, 0.0)
-        for _ in range(_MAX_ITERATIONS):
-            w = W / W.sum()
-            ln_phi, _ = model.ln_phi_least_gibbs_root(T, P, w)
-            new = np.where(there, np.exp(np.where(there, d - ln_phi, 0.0)), 0.0)
-            step = float(np.max(np.abs(np.log(new[there]) - np.log(W[there]))))
-            W = new
-            if step < _TOLERANCE:
-                break
+        W = _stationary_point(sqrt_a, b_i, one_minus_k, has_k, np.where(there, start, 0.0), d, there, float(T),
+                              float(P), family.delta1, family.delta2, _MAX_ITERATIONS, _TOLERANCE)
         w = W / W.sum()
         distance = 1.0 - float(W.sum())
         # Back at z on the gas's own root is the trivial point; at z on another root (a pure fluid above
@@ -85,3 +81,29 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike) -> S
             lowest, trial = distance, w
     stable = lowest >= UNSTABLE_BELOW
     return Stability(stable, lowest, None if stable else trial)
+
+
+@compiled()
+def _stationary_point(sqrt_a, b_i, one_minus_k, has_k, W, d, there, T, P, delta1, delta2, max_iterations,
+                      tolerance):
+    """Successive substitution ln W_i = d_i - ln phi_i(w), w = W / sum W, each trial on its root of least
+    Gibbs energy, from W; the stationary W (compiled: a test takes hundreds of evaluations of the cubic)."""
+    S = W.shape[0]
+    W = W.copy()
+    w = np.empty(S)
+    for _ in range(max_iterations):
+        total = W.sum()
+        for i in range(S):
+            w[i] = W[i] / total
+        ln_phi, _, _ = _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, w, T, P, delta1, delta2, _LEAST_GIBBS)
+        step = 0.0
+        for i in range(S):
+            if there[i]:
+                new = math.exp(d[i] - ln_phi[i])
+                step = max(step, abs(math.log(new) - math.log(W[i])))
+                W[i] = new
+            else:
+                W[i] = 0.0
+        if not step >= tolerance:  # converged, or NaN: the caller judges the distance
+            break
+    return W

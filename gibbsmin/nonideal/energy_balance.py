@@ -7,11 +7,13 @@ import functools
 import numpy as np
 
 from ..energy import phase_boundary
-from ..eos.phase import GasPhase
+from ..eos.phase import GasPhase, gas_phase
 from ..fixed_step import Setup
+from ..fixed_step import prepare as feed_setup
 from ..solve import SolverResult
 from ..system import standard_mu0
 from ..thermo.database import SpeciesDatabase
+from .fluid_phases import solve_fluid_phases
 from .loop import _finish, _gas_amounts, solve_nonideal
 
 
@@ -25,15 +27,36 @@ def inlet_residual_enthalpy(phase: GasPhase, inlet, P: float) -> float:
 
 
 def inlet_enthalpies(phase: GasPhase | None, inlet, P: float, db: SpeciesDatabase,
-                     allow_extrapolation: bool = False) -> tuple[float | None, float]:
+                     allow_extrapolation: bool = False, liquids: bool = False) -> tuple[float | None, float]:
     """The inlet's enthalpy [J] (residual enthalpy included under a cubic; None without feed temperatures)
-    and its gross enthalpy [J], the scale of the energy balance's tolerance."""
+    and its gross enthalpy [J], the scale of the energy balance's tolerance.
+
+    With ``liquids`` each stream is flashed on its own at its temperature and the reactor pressure (every
+    species held), so a liquid feed brings a liquid's residual enthalpy, not a supersaturated gas's.
+    """
     if not inlet.has_temperatures:
         return None, 0.0
     H_in = inlet.enthalpy(P, db, allow_extrapolation)
-    if phase is not None:
+    if phase is not None and liquids:
+        H_in += sum(_flashed_residual_enthalpy(phase, stream.amounts, stream.T, P, db) for stream in inlet.streams)
+    elif phase is not None:
         H_in += inlet_residual_enthalpy(phase, inlet, P)
     return H_in, inlet.gross_enthalpy(P, db)
+
+
+def _flashed_residual_enthalpy(phase: GasPhase, amounts, T: float, P: float, db: SpeciesDatabase) -> float:
+    """Residual enthalpy [J] of a stream flashed alone at T [K], P [Pa]: over its fluid phases where it splits."""
+    gases = [name for name, n in amounts.items() if n > 0.0 and db[name].is_gas and name in phase.gas_names]
+    if not gases:
+        return 0.0
+    stream = {name: amounts[name] for name in gases}
+    setup = feed_setup(stream, species=gases, inert=gases, T_span=(T, T), db=db)
+    pairs = {pair: value for pair, value in phase.kij.items() if pair[0] in stream and pair[1] in stream}
+    own = gas_phase(setup.system, phase.name, kij=pairs or "none")
+    one_gas, _, result = solve_nonideal(setup, T, P, own)
+    split = solve_fluid_phases(setup, T, P, own, one_gas=one_gas, one_gas_result=result)
+    answer = one_gas if split is None else split[0]
+    return 0.0 if answer.gas is None else answer.gas.residual_enthalpy_J
 
 
 def energy_hooks(setup: Setup, P: float, phase: GasPhase, *, method: str = "auto",

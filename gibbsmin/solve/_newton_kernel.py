@@ -422,6 +422,48 @@ def workspace(M, G, C):
 
 
 @compiled()
+def step_limits(ln_n, ln_N, d_ln_n, d_ln_N, biggest):
+    """What limits a Newton step on the gas (Gordon and McBride 1994, eqs. 3.1 to 3.3): (biggest, lam2, worst).
+
+    ``biggest`` starts from the caller's own major unknowns (5 |d ln N|, say) and takes the largest
+    |d ln n_j| of the major species; lam2 keeps a trace species below y = 1e-4 after the step; worst is
+    the largest change weighted by the species' share of the gas before or after the step (the
+    convergence measure; the traces are held to the balance of their components).
+    """
+    lam2 = 1.0
+    worst = 0.0
+    for j in range(ln_n.size):
+        d = d_ln_n[j]
+        ln_y = ln_n[j] - ln_N
+        worst = max(worst, abs(d) * math.exp(min(0.0, max(ln_y, ln_y + d - d_ln_N))))
+        if ln_y > LN_TRACE:
+            biggest = max(biggest, abs(d))
+        elif d - d_ln_N > 0.0:
+            lam2 = min(lam2, abs((LN_LIFT - ln_y) / (d - d_ln_N)))
+    return biggest, lam2, worst
+
+
+@compiled()
+def take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2):
+    """The step length from ``step_limits`` (at most e^2 on a major unknown, the traces' lift) and the step on
+    the gas and the present condensed amounts (their changes at x[M:]); returns (lam, largest condensed change)."""
+    lam = 1.0
+    if biggest > 2.0:
+        lam = 2.0 / biggest
+    lam = min(lam, lam2)
+    if lam <= 0.0:
+        lam = 1.0
+    for j in range(ln_n.size):
+        ln_n[j] += lam * d_ln_n[j]
+    worst_c = 0.0
+    for c in range(n_c.size):
+        if active[c]:
+            n_c[c] += lam * x[M + c]
+            worst_c = max(worst_c, abs(x[M + c]))
+    return lam, worst_c
+
+
+@compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place (``iterate_point_in`` with
@@ -564,40 +606,18 @@ def iterate_point_in(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active
                 pi[k] += B[i, M + k] * x[i]  # pi = (B^-1)^T pi
         d_ln_N = x[K - 1]
         # Step length (Gordon and McBride 1994, eqs. 3.1 to 3.3).
-        biggest = 5.0 * abs(d_ln_N)
-        lam2 = 1.0
-        worst = 0.0
         for j in range(G):
             d = -mu_g[j] + d_ln_N
             for k in range(M):
                 d += nu_g[k, j] * x[k]
             d_ln_n[j] = d
-            ln_y = ln_n[j] - ln_N
-            # Changes count in proportion to the species' share of the gas before
-            # or after the step; the traces are held to the balance of their components.
-            worst = max(worst, abs(d) * math.exp(min(0.0, max(ln_y, ln_y + d - d_ln_N))))
-            if ln_y > LN_TRACE:
-                biggest = max(biggest, abs(d))
-            elif d - d_ln_N > 0.0:
-                lam2 = min(lam2, abs((LN_LIFT - ln_y) / (d - d_ln_N)))
+        biggest, lam2, worst = step_limits(ln_n, ln_N, d_ln_n, d_ln_N, 5.0 * abs(d_ln_N))
         if not math.isfinite(worst):
             return iteration, NOT_CONVERGED
-        lam = 1.0
-        if biggest > 2.0:
-            lam = 2.0 / biggest
-        lam = min(lam, lam2)
-        if lam <= 0.0:
-            lam = 1.0
+        lam, worst_c = take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2)
+        ln_N += lam * d_ln_N
         rechoose = False
         full_step = lam == 1.0
-        worst_c = 0.0
-        for j in range(G):
-            ln_n[j] += lam * d_ln_n[j]
-        ln_N += lam * d_ln_N
-        for c in range(C):
-            if active[c]:
-                n_c[c] += lam * x[M + c]
-                worst_c = max(worst_c, abs(x[M + c]))
         # A phase set with no solution shows itself as a condensed amount
         # driven below zero: drop that phase now rather than iterate in vain.
         dropped = -1

@@ -88,7 +88,7 @@ class Certificate:
     def summary(self) -> str:
         verdict = "certified" if self.certified else "NOT certified"
         comp = "none absent" if np.isinf(self.complementarity) else f"{self.complementarity:.2e}"
-        stability = {"stable": "; one gas: stable (tangent-plane test)",
+        stability = {"stable": "; phases: stable (tangent-plane test)",
                      "screened": "; one gas: stable (far above every critical temperature)",
                      "unstable": "; one gas: NOT stable (a liquid-like phase would form; not the equilibrium)",
                      }.get(self.phase_stability, "")
