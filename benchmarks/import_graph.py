@@ -26,7 +26,7 @@ ROOT = Path(__file__).resolve().parents[1] / PACKAGE
 # names or package prefixes; the longest matching entry decides.
 LAYERS: dict[str, int] = {
     "gibbsmin.errors": 0, "gibbsmin.formula": 0, "gibbsmin.compiled": 0, "gibbsmin.thermo": 0,
-    "gibbsmin.units": 0, "gibbsmin.version": 0,
+    "gibbsmin.units": 0, "gibbsmin.version": 0, "gibbsmin.frozen": 0,
     "gibbsmin.eos": 1, "gibbsmin.system": 1, "gibbsmin.solve": 1, "gibbsmin.streams": 1,
     "gibbsmin.equilibrium": 2, "gibbsmin.fixed_step": 2, "gibbsmin.reactions": 2,
     "gibbsmin.restricted": 3, "gibbsmin.sensitivity": 3, "gibbsmin.energy": 3, "gibbsmin.nonideal": 3,

@@ -20,6 +20,7 @@ from numpy.typing import NDArray
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
+from .frozen import built
 from .compiled import compiled
 from .solve import SOLVERS, SolverResult, solve
 from .system import P_REF, Problem, System, reduce, select_species
@@ -64,7 +65,8 @@ class Setup:
 
 def positive_number(value: object, name: str, unit: str) -> float:
     """A validated positive finite number (T in K, P in Pa, ...), or an InputError naming it."""
-    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+    # A float is the common case: taken before the abstract-class test, which costs more than the rest.
+    if type(value) is not float and (isinstance(value, bool) or not isinstance(value, numbers.Real)):
         raise InputError(f"{name} must be a number in {unit}, got {value!r}")
     value = float(value)
     if not math.isfinite(value) or value <= 0.0:
@@ -81,12 +83,13 @@ def finite_number(value: object, what: str) -> float:
 
 def check_feed(feed: object, db: SpeciesDatabase) -> dict[str, float]:
     """Canonical names and validated amounts of a feed mapping."""
-    if not isinstance(feed, Mapping) or not feed:
+    if not (type(feed) is dict or isinstance(feed, Mapping)) or not feed:
         raise InputError("feed must be a non-empty mapping of species name to amount in mol, e.g. {'CH4': 1, 'H2O': 3}")
     amounts: dict[str, float] = {}
     for name, amount in feed.items():
         record = db[str(name)]
-        if isinstance(amount, bool) or not isinstance(amount, numbers.Real) or not math.isfinite(float(amount)):
+        if (type(amount) is not float and (isinstance(amount, bool) or not isinstance(amount, numbers.Real))) \
+                or not math.isfinite(float(amount)):
             raise InputError(f"feed amount of {name} must be a finite number of mol, got {amount!r}")
         if amount < 0:
             raise InputError(f"feed amount of {name} is negative ({amount}); amounts must be zero or positive")
@@ -120,6 +123,8 @@ class SpeciesSet:
     T_max: NDArray[np.float64]
     is_gas: NDArray[np.bool_]
     is_explicit: NDArray[np.bool_]
+    #: The temperatures every gas species has data for, [K] (lowest, highest): inside them none is left out.
+    gas_span: tuple[float, float]
     systems: dict[bytes, tuple[System, NDArray[np.float64]]] = field(default_factory=dict, repr=False)
 
 
@@ -146,7 +151,9 @@ def feed_species_set(amounts: Mapping[str, float], *, species: Sequence[str] | N
     found = SpeciesSet(
         tuple(records), tuple(db.resolve(list(amounts))), inert_names, frozenset(explicit),
         np.array([r.T_min for r in records]), np.array([r.T_max for r in records]),
-        np.array([r.is_gas for r in records], dtype=bool), np.array([r.name in explicit for r in records], dtype=bool))
+        np.array([r.is_gas for r in records], dtype=bool), np.array([r.name in explicit for r in records], dtype=bool),
+        (max((r.T_min for r in records if r.is_gas), default=0.0),
+         min((r.T_max for r in records if r.is_gas), default=np.inf)))
     if len(db.memo) >= _MEMO_LIMIT:
         db.memo.clear()
     db.memo[key] = found
@@ -156,8 +163,9 @@ def feed_species_set(amounts: Mapping[str, float], *, species: Sequence[str] | N
 def setup_on(species_set: SpeciesSet, amounts: Mapping[str, float], T_span: tuple[float, float] | None,
              allow_extrapolation: bool = False) -> Setup:
     """The Setup of a feed on its species set, the gas species without data over ``T_span`` left out."""
-    if T_span is None or allow_extrapolation:
-        kept = np.ones(len(species_set.records), dtype=bool)
+    if T_span is None or allow_extrapolation or (species_set.gas_span[0] <= T_span[0]
+                                                 and T_span[1] <= species_set.gas_span[1]):
+        kept = None   # every species: the common case, taken without the array tests below
     else:
         T_lo, T_hi = T_span
         kept = ~species_set.is_gas | ((species_set.T_min <= T_lo) & (T_hi <= species_set.T_max))
@@ -166,21 +174,24 @@ def setup_on(species_set: SpeciesSet, amounts: Mapping[str, float], T_span: tupl
             record = species_set.records[short[0]]
             T_bad = T_lo if T_lo < record.T_min else T_hi
             raise TemperatureRangeError(record.name, T_bad, record.T_min, record.T_max)
-    key = kept.tobytes()
-    built = species_set.systems.get(key)
-    if built is None:
-        built = _system_of(species_set, [r for r, k in zip(species_set.records, kept) if k])
-        species_set.systems[key] = built
-    system, feed_matrix = built
+        if kept.all():
+            kept = None
+    key = b"" if kept is None else kept.tobytes()
+    known = species_set.systems.get(key)
+    if known is None:
+        known = _system_of(species_set, [r for r, k in zip(species_set.records, kept) if k] if kept is not None
+                           else list(species_set.records))
+        species_set.systems[key] = known
+    system, feed_matrix = known
     omitted: dict[str, str] = {}
-    if not kept.all():
+    if kept is not None:
         T_lo, T_hi = T_span
         for j in np.flatnonzero(~kept):
             record = species_set.records[j]
             omitted[record.name] = (f"no data from {T_lo:g} K to {T_hi:g} K (fitted {record.T_min:g} to "
                                     f"{record.T_max:g} K)")
     b = feed_matrix @ np.fromiter(amounts.values(), dtype=float, count=len(amounts))
-    return Setup(system, amounts, b, omitted, species_set.explicit)
+    return built(Setup, system=system, feed=amounts, b=b, omitted=omitted, explicit=species_set.explicit)
 
 
 def _system_of(species_set: SpeciesSet, records: list[SpeciesRecord]) -> tuple[System, NDArray[np.float64]]:
@@ -236,7 +247,9 @@ def build_problem(setup: Setup, T: NDArray[np.float64], P: NDArray[np.float64],
         raise TemperatureRangeError(record.name, float(T[point]), record.T_min, record.T_max)
     if ln_phi is not None:
         mu0[:, : system.n_gas] += ln_phi
-    b = np.atleast_2d(setup.b if b is None else b)
+    b = setup.b if b is None else np.asarray(b, dtype=float)
+    if b.ndim == 1:
+        b = b.reshape(1, -1)
     if b.shape[0] != T.size:
         b = np.broadcast_to(b, (T.size, system.A.shape[0]))
     return reduce(system, b, mu0, allowed)
@@ -277,11 +290,12 @@ def to_equilibrium(setup: Setup, problem: Problem, result: SolverResult, certifi
     G_RT = _unpacked(problem.keep, problem.n_gas, result.ln_n_gas[i], result.n_condensed[i], problem.mu0[i],
                      ln_n, n)
     omitted = dict(setup.omitted)
-    if not problem.allowed[i].all():
+    # Gas species are always allowed: only condensed species can be outside their data here.
+    if problem.n_gas < problem.n_species and not problem.allowed[i].all():
         for local in np.flatnonzero(~problem.allowed[i]):
             omitted[names[problem.keep[local]]] = "outside its data range at this temperature: cannot appear"
-    return Equilibrium(
-        T=T, P=P,
+    return built(
+        Equilibrium, T=T, P=P,
         amounts=dict(zip(names, n.tolist())),
         phase_of=dict(system.phase_of),
         ln_gas_amounts=dict(zip(system.gas_names, ln_n[: system.n_gas].tolist())),
@@ -322,25 +336,29 @@ def _unpacked(keep, n_gas, ln_n_gas, n_condensed, mu0, ln_n, n):
 
 def _element_potentials(system: System, problem: Problem, pi: NDArray[np.float64]) -> dict[str, float]:
     """Potentials on the System's element rows; NaN for elements absent from the feed."""
-    lam = np.full(len(system.elements), np.nan)
     present, rows_dropped = _present_elements(system, problem)
     if not rows_dropped:
         # No row was dropped: the solve's potentials are those of the present elements, in order.
-        lam[present] = (pi @ problem.basis)[present]
-    else:
-        # Dependent element rows were dropped for the solve; the least-norm
-        # potentials reproduce the same species potentials on all rows.
-        lam[present] = np.linalg.lstsq(system.A[:, problem.keep][present].T, pi @ problem.A, rcond=None)[0]
+        potentials = dict.fromkeys(system.elements, math.nan)
+        for element, value in zip(present, pi.tolist()):
+            potentials[element] = value
+        return potentials
+    # Dependent element rows were dropped for the solve; the least-norm
+    # potentials reproduce the same species potentials on all rows.
+    rows = np.any(system.A[:, problem.keep] != 0.0, axis=1)
+    lam = np.full(len(system.elements), np.nan)
+    lam[rows] = np.linalg.lstsq(system.A[:, problem.keep][rows].T, pi @ problem.A, rcond=None)[0]
     return dict(zip(system.elements, lam.tolist()))
 
 
-def _present_elements(system: System, problem: Problem) -> tuple[NDArray[np.bool_], bool]:
-    """The System's element rows some kept species carries, and whether the solve dropped any of them."""
+def _present_elements(system: System, problem: Problem) -> tuple[tuple[str, ...], bool]:
+    """The System's elements some kept species carries, and whether the solve dropped any of their rows."""
     key = ("present elements", problem.keep.tobytes(), problem.A.shape[0])
     found = system.reductions.get(key)
     if found is None:
         present = np.any(system.A[:, problem.keep] != 0.0, axis=1)
-        found = (present, problem.A.shape[0] != np.count_nonzero(present))
+        found = (tuple(system.elements[k] for k in np.flatnonzero(present)),
+                 problem.A.shape[0] != np.count_nonzero(present))
         system.reductions[key] = found
     return found
 

@@ -35,6 +35,7 @@ from . import energy, nonideal, sensitivity
 from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium, Restriction
 from .errors import InputError
+from .frozen import built, replaced
 from .reactions import Reaction, independent_reactions, reaction
 from .restricted import (check_approaches_met, check_held, frozen_amounts, held_offset_map, reaction_offsets,
                          settling_temperature, with_frozen_totals)
@@ -55,7 +56,7 @@ __all__ = ["Specification", "Prepared", "prepare"]
 def _names(value: object, what: str) -> tuple[str, ...]:
     if isinstance(value, str):
         raise InputError(f"{what} takes a list of names, e.g. {what}=['C(s)']")
-    return tuple(str(v) for v in value)
+    return tuple(map(str, value))
 
 
 @dataclass(frozen=True)
@@ -140,8 +141,8 @@ class Specification:
             raise InputError("species, exclude and inert take lists of names, e.g. exclude=['C(s)']")
         if isinstance(kij, Mapping):
             kij = tuple(sorted(((tuple(pair), value) for pair, value in kij.items()), key=repr))
-        return cls(
-            species=None if species is None else _names(species, "species"),
+        return built(
+            cls, species=None if species is None else _names(species, "species"),
             exclude=_names(exclude, "exclude"), inert=_names(inert, "inert"), frozen=frozen,
             approach=tuple(approach.items()), reactions=tuple(reactions), gas=gas, kij=kij,
             ln_phi=None if ln_phi is None else tuple(ln_phi.items()), method=method, data=data,
@@ -296,7 +297,7 @@ class Prepared:
 
     def _equilibrate(self, feed, T, P, T_feed=None, adiabatic=False, heat_input=0.0, sensitivities=False,
                      uncertainty=False, start=None, P_feed=None) -> tuple[Equilibrium, tuple[object, SolverResult]]:
-        """The pipeline: the answer, and the warm start it offers a neighbour (its System and raw solve).
+        """The pipeline: the answer, and the warm start it offers a neighbour (its Setup and raw solve).
 
         ``start`` is such a warm start; it is used only at fixed T, on the same System with the same elements
         present.
@@ -343,7 +344,8 @@ class Prepared:
                 plain_ideal_gas=phase.is_ideal and not held)
             eq = dataclasses.replace(eq, specification=text)
         else:
-            eq, problem, result = step(T, start[1] if start is not None and start[0] == _start_key(setup) else None)
+            eq, problem, result = step(T, start[1] if start is not None and _start_key(start[0]) == _start_key(setup)
+                                       else None)
         if eq.fluid_phases is not None and (sensitivities or uncertainty):
             raise InputError("sensitivities and uncertainty are not yet computed for an answer with liquid-solution "
                              "phases; drop them, or pass liquid=False for the one-gas answer")
@@ -357,8 +359,7 @@ class Prepared:
         if uncertainty:
             eq = self._with_uncertainties(eq, setup, problem, result, phase, complete, offsets_at,
                                           inlet.total if energy_balance else None)
-        eq = checked(dataclasses.replace(eq, energy=figures, data_set=db.data_set, extras={**eq.extras, **extras}),
-                     stacklevel=4)
+        eq = checked(replaced(eq, energy=figures, data_set=db.data_set, extras={**eq.extras, **extras}), stacklevel=4)
         if held:
             check_approaches_met(eq, held, self.ln_phi, db, spec.allow_extrapolation)
         if spec.restricted or held:
@@ -373,7 +374,7 @@ class Prepared:
         if stability is not None:
             # The verdict enters the certificate after the precision check, which judges the residuals alone.
             eq = nonideal.with_stability_verdict(eq, stability)
-        return eq, (_start_key(setup), result)
+        return eq, (setup, result)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:
@@ -407,9 +408,9 @@ class Prepared:
         spec = self.specification
         frozen_mol = frozen_amounts(None if spec.frozen is None else dict(spec.frozen), total, self.db)
         inert = [*spec.inert, *frozen_mol]
-        setup = setup_on(feed_species_set({**total, **frozen_mol}, species=spec.species, exclude=spec.exclude,
-                                          inert=inert, db=self.db),
-                         {**total, **frozen_mol}, T_span, spec.allow_extrapolation)
+        amounts = {**total, **frozen_mol}
+        setup = setup_on(feed_species_set(amounts, species=spec.species, exclude=spec.exclude, inert=inert,
+                                          db=self.db), amounts, T_span, spec.allow_extrapolation)
         if frozen_mol:
             setup = with_frozen_totals(setup, total, frozen_mol)
         return setup, frozen_mol

@@ -27,6 +27,7 @@ from numpy.typing import NDArray
 from .errors import InputError
 from .thermo.database import SpeciesDatabase, SpeciesRecord, nasa7_table
 from .compiled import compiled
+from .frozen import built
 from .thermo.nasa7 import GIBBS, Nasa7Table, polynomials
 
 #: Reference pressure of the standard state, [Pa] (that of the NASA data).
@@ -188,11 +189,16 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
     pattern of elements present (and of condensed species allowed) is worked
     out once per System and kept (``System.reductions``).
     """
-    b = np.atleast_2d(np.asarray(b, dtype=float))
-    allowed = np.atleast_2d(allowed)
+    b, mu0, allowed = np.asarray(b, dtype=float), np.asarray(mu0), np.asarray(allowed)
+    if b.ndim != 2 or mu0.ndim != 2 or allowed.ndim != 2:
+        b, mu0, allowed = np.atleast_2d(b), np.atleast_2d(mu0), np.atleast_2d(allowed)
+    present = None
     if b.shape[0] == 1:
-        present = b[0] > 1e-14 * max(float(np.abs(b[0]).max()), 1e-300)
-        key = (present.tobytes(), allowed[0].tobytes())
+        # One point (the common call): the pattern in plain floats, cheaper than four array operations on five
+        # numbers; the key is the bytes the array form would give.
+        totals = b[0].tolist()
+        threshold = 1e-14 * max(max(map(abs, totals)), 1e-300)
+        key = (bytes([total > threshold for total in totals]), allowed[0].tobytes())
     else:
         scale = np.maximum(np.abs(b).max(axis=1, keepdims=True), 1e-300)
         every = (b / scale) > 1e-14
@@ -202,22 +208,36 @@ def reduce(system: System, b: NDArray[np.float64], mu0: NDArray[np.float64],
         present = every[0]
         key = (present.tobytes(), allowed.any(axis=0).tobytes())
     reduction = system.reductions.get(key)
-    if reduction is None:
-        reduction = _Reduction.of(system, present, allowed)
-        system.reductions[key] = reduction
-    if reduction.dropped_rows:
-        _check_balance_possible(system, reduction.carried_usable, reduction.rows, b[:, present],
-                                np.flatnonzero(present))
-    keep = reduction.keep
-    return Problem(
-        A=reduction.A,
-        b=b[:, reduction.element_rows],
-        mu0=np.atleast_2d(mu0)[:, keep],
-        n_gas=reduction.n_gas,
-        allowed=allowed[:, keep],
-        keep=keep,
-        basis=reduction.selector,
-    )
+    if reduction is None or reduction.dropped_rows:
+        if present is None:
+            present = np.frombuffer(key[0], dtype=bool)
+        if reduction is None:
+            reduction = _Reduction.of(system, present, allowed)
+            system.reductions[key] = reduction
+        if reduction.dropped_rows:
+            _check_balance_possible(system, reduction.carried_usable, reduction.rows, b[:, present],
+                                    np.flatnonzero(present))
+    keep, rows = reduction.keep, reduction.element_rows
+    B = b.shape[0]
+    b_kept, mu0_kept, allowed_kept = np.empty((B, rows.size)), np.empty((B, keep.size)), np.empty((B, keep.size),
+                                                                                                   dtype=bool)
+    _gathered(b, mu0, allowed, rows, keep, b_kept, mu0_kept, allowed_kept)
+    return built(Problem, A=reduction.A, b=b_kept, mu0=mu0_kept, n_gas=reduction.n_gas, allowed=allowed_kept,
+                 keep=keep, basis=reduction.selector)
+
+
+@compiled()
+def _gathered(b, mu0, allowed, rows, keep, b_kept, mu0_kept, allowed_kept):
+    """The kept element rows of b and the kept species' mu0 and allowed, every point (``reduce``).
+
+    Compiled: three fancy-indexing copies of a few numbers cost more in numpy than the rest of ``reduce``.
+    """
+    for p in range(b.shape[0]):
+        for k in range(rows.size):
+            b_kept[p, k] = b[p, rows[k]]
+        for j in range(keep.size):
+            mu0_kept[p, j] = mu0[p, keep[j]]
+            allowed_kept[p, j] = allowed[p, keep[j]]
 
 
 @dataclass(frozen=True)

@@ -10,7 +10,7 @@ from ..errors import InputError
 from ..system import Problem
 from .certificate import Certificate, CertificateBatch, Tolerances, certify
 from .convex import solve_convex
-from .newton import NewtonOptions, solve_newton
+from .newton import NewtonOptions, solve_newton, solve_newton_certified
 from .result import SolverResult, merge
 
 __all__ = ["solve", "SOLVERS", "Certificate", "CertificateBatch", "Tolerances", "SolverResult", "NewtonOptions", "certify"]
@@ -23,17 +23,17 @@ def _certified(problem: Problem, result: SolverResult) -> tuple[SolverResult, Ce
 def _auto(problem: Problem, start: SolverResult | None, chains: int | None
           ) -> tuple[SolverResult, CertificateBatch]:
     """Newton first; every point it cannot certify is solved again on the cone."""
-    result, certificates = _certified(problem, solve_newton(problem, start=start, chains=chains))
-    bad = np.flatnonzero(~certificates.certified)
-    if bad.size == 0:
+    result, certificates = solve_newton_certified(problem, start=start, chains=chains)
+    if certificates.certified.all():
         return result, certificates
+    bad = np.flatnonzero(~certificates.certified)
     return _certified(problem, merge(result, solve_convex(problem.take(bad)), bad))
 
 
 Solver = Callable[[Problem, "SolverResult | None", "int | None"], tuple[SolverResult, CertificateBatch]]
 
 SOLVERS: dict[str, Solver] = {
-    "newton": lambda problem, start, chains: _certified(problem, solve_newton(problem, start=start, chains=chains)),
+    "newton": lambda problem, start, chains: solve_newton_certified(problem, start=start, chains=chains),
     "convex": lambda problem, start, chains: _certified(problem, solve_convex(problem)),
     "auto": _auto,
 }

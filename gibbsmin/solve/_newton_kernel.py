@@ -14,6 +14,7 @@ import numpy as np
 from numba import prange
 
 from ..compiled import compiled
+from .certificate import residuals_of, verdicts_into
 
 LN_TRACE = math.log(1e-8)  # below this mole fraction a gas species is "trace" for the step limits
 LN_LIFT = math.log(1e-4)   # a trace species may rise at most to this mole fraction in one step
@@ -410,6 +411,17 @@ def _components_still_major(ln_n, n_c, active, basis, in_basis):
 
 
 @compiled()
+def workspace(M, G, C):
+    """The work arrays of ``iterate_point_in`` for M elements, G gas and C condensed species, made once per chain
+    of points (each point of a sweep would otherwise make twenty small arrays)."""
+    K = M + C + 1
+    return (np.empty((K, K)), np.empty(K), np.empty(K), np.empty(G), np.empty(G), np.empty(G), np.empty(M),
+            np.empty(M, dtype=np.int64), np.empty((M, M)), np.empty(G + C), np.empty((M, 3 * M)),
+            np.empty(max(2 * M, 1)), np.empty(M, dtype=np.int64), np.empty(M), np.empty((M, G)), np.empty((M, C)),
+            np.empty(M), np.empty(C, dtype=np.bool_))
+
+
+@compiled()
 def step_limits(ln_n, ln_N, d_ln_n, d_ln_N, biggest):
     """What limits a Newton step on the gas (Gordon and McBride 1994, eqs. 3.1 to 3.3): (biggest, lam2, worst).
 
@@ -454,9 +466,19 @@ def take_step(ln_n, d_ln_n, n_c, x, M, active, biggest, lam2):
 @compiled()
 def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
                   tol, max_iterations, phase_tol, max_phase_changes):
+    """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place (``iterate_point_in`` with
+    work arrays of its own)."""
+    return iterate_point_in(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi, tol, max_iterations,
+                            phase_tol, max_phase_changes, workspace(A_g.shape[0], A_g.shape[1], A_c.shape[1]))
+
+
+@compiled()
+def iterate_point_in(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, pi,
+                     tol, max_iterations, phase_tol, max_phase_changes, work_arrays):
     """Iterate one point to convergence; ln_n, n_c, active, pi are updated in place.
 
-    Amounts are scaled so that sum(b) = 1.  Returns (iterations, status).
+    Amounts are scaled so that sum(b) = 1.  ``work_arrays`` is a ``workspace`` of the point's sizes.
+    Returns (iterations, status).
 
     Each iteration writes the element balance in components (the M most
     abundant independent species, ``_choose_components``): the unknowns are
@@ -469,24 +491,11 @@ def iterate_point(A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, n_c, active, p
     M, G = A_g.shape
     C = A_c.shape[1]
     K = M + C + 1
-    J = np.empty((K, K))
-    rhs = np.empty(K)
-    x = np.empty(K)
-    n_g = np.empty(G)
-    mu_g = np.empty(G)
-    d_ln_n = np.empty(G)
-    a_n = np.empty(M)
-    basis = np.empty(M, dtype=np.int64)
-    Q = np.empty((M, M))
-    seen = np.empty(G + C)
-    B = np.empty((M, 3 * M))
-    work = np.empty(max(2 * M, 1))
-    previous = np.full(M, -1, dtype=np.int64)
-    d_scale = np.empty(M)
-    nu_g = np.empty((M, G))
-    nu_c = np.empty((M, C))
-    b_comp = np.empty(M)
-    pinned = np.zeros(C, dtype=np.bool_)
+    # From ``workspace``: every array is written before it is read, but for these two, set here.
+    J, rhs, x, n_g, mu_g, d_ln_n, a_n, basis, Q, seen, B, work, previous, d_scale, nu_g, nu_c, b_comp, pinned = \
+        work_arrays
+    previous[:] = -1
+    pinned[:] = False
     total = 0.0
     for j in range(G):
         total += math.exp(ln_n[j])
@@ -655,26 +664,30 @@ def _iterate_chain(first, last, A_g, A_c, b, mu0_g, mu0_c, allowed, same, ln_n, 
 
     A point that fails from the warm start is tried again from its own start.
     """
+    work_arrays = workspace(A_g.shape[0], A_g.shape[1], A_c.shape[1])
+    own_ln_n = np.empty(ln_n.shape[1])
+    own_n_c = np.empty(n_c.shape[1])
+    own_active = np.empty(active.shape[1], dtype=np.bool_)
     for p in range(first, last):
-        own_ln_n = ln_n[p].copy()
-        own_n_c = n_c[p].copy()
-        own_active = active[p].copy()
+        own_ln_n[:] = ln_n[p]
+        own_n_c[:] = n_c[p]
+        own_active[:] = active[p]
         warm = p > first and status[p - 1] == CONVERGED
         if warm:
             ln_n[p] = ln_n[p - 1]
             for c in range(n_c.shape[1]):
                 active[p, c] = active[p - 1, c] and allowed[p, c]
                 n_c[p, c] = n_c[p - 1, c] if active[p, c] else 0.0
-        iterations[p], status[p] = iterate_point(
+        iterations[p], status[p] = iterate_point_in(
             A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
-            tol, max_iterations, phase_tol, max_phase_changes)
+            tol, max_iterations, phase_tol, max_phase_changes, work_arrays)
         if warm and status[p] != CONVERGED:
             ln_n[p] = own_ln_n
             n_c[p] = own_n_c
             active[p] = own_active
-            extra, status[p] = iterate_point(
+            extra, status[p] = iterate_point_in(
                 A_g, A_c, b[p], mu0_g[p], mu0_c[p], allowed[p], same, ln_n[p], n_c[p], active[p], pi[p],
-                tol, max_iterations, phase_tol, max_phase_changes)
+                tol, max_iterations, phase_tol, max_phase_changes, work_arrays)
             iterations[p] += extra
 
 
@@ -706,6 +719,25 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
     Returns (ln_n_gas, n_condensed, present, pi, iterations, status).
     """
     B, M, S = b.shape[0], A.shape[0], A.shape[1]
+    ln_n = np.empty((B, n_gas))
+    n_c = np.empty((B, S - n_gas))
+    active = np.empty((B, S - n_gas), dtype=np.bool_)
+    pi = np.empty((B, M))
+    iterations = np.empty(B, dtype=np.int64)
+    status = np.empty(B, dtype=np.int64)
+    run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold, tol, max_iterations,
+             phase_tol, max_phase_changes, chains, parallel, ln_n, n_c, active, pi, iterations, status)
+    return ln_n, n_c, active, pi, iterations, status
+
+
+@compiled()
+def run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+             tol, max_iterations, phase_tol, max_phase_changes, chains, parallel,
+             ln_n, n_c, active, pi, iterations, status):
+    """``run`` with its six results written into arrays the caller made (any contents): shapes (B, n_gas),
+    (B, C), (B, C) bool, (B, M), (B,) and (B,) int64.  Arrays made in Python cost less than arrays handed
+    back from compiled code, which matters on one small point."""
+    B, M, S = b.shape[0], A.shape[0], A.shape[1]
     C = S - n_gas
     A_g = np.ascontiguousarray(A[:, :n_gas])
     A_c = np.ascontiguousarray(A[:, n_gas:])
@@ -714,9 +746,6 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
     allowed_c = np.ascontiguousarray(allowed[:, n_gas:])
     scale = np.empty(B)
     b_scaled = np.empty((B, M))
-    ln_n = np.empty((B, n_gas))
-    n_c = np.zeros((B, C))
-    active = np.zeros((B, C), dtype=np.bool_)
     for p in range(B):
         scale[p] = b[p].sum()
         for k in range(M):
@@ -724,13 +753,13 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
         ln_scale = math.log(scale[p])
         for j in range(n_gas):
             ln_n[p, j] = math.log(0.1 / n_gas) if cold else ln_n_start[p, j] - ln_scale
-        if not cold:
-            for c in range(C):
-                active[p, c] = present_start[p, c] and allowed_c[p, c]
-                n_c[p, c] = n_c_start[p, c] / scale[p] if active[p, c] else 0.0
-    pi = np.zeros((B, M))
-    iterations = np.zeros(B, dtype=np.int64)
-    status = np.zeros(B, dtype=np.int64)
+        for c in range(C):
+            active[p, c] = False if cold else present_start[p, c] and allowed_c[p, c]
+            n_c[p, c] = n_c_start[p, c] / scale[p] if active[p, c] else 0.0
+        for k in range(M):
+            pi[p, k] = 0.0
+        iterations[p] = 0
+        status[p] = 0
     chains = max(1, min(chains, B))
     if parallel and chains > 1:
         iterate_batch(A_g, A_c, b_scaled, mu0_g, mu0_c, allowed_c, same, ln_n, n_c, active, pi, iterations,
@@ -746,4 +775,23 @@ def run(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, c
             ln_n[p, j] += ln_scale
         for c in range(C):
             n_c[p, c] = n_c[p, c] * scale[p] if active[p, c] else 0.0
-    return ln_n, n_c, active, pi, iterations, status
+
+
+@compiled()
+def run_certified(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold,
+                  tol, max_iterations, phase_tol, max_phase_changes, chains, parallel,
+                  ln_n, n_c, active, pi, iterations, status, converged,
+                  element_balance_tol, stationarity_tol, complementarity_tol, residuals, certified):
+    """``run_into``, then its answer's certificate in the same compiled call: ``converged`` (B,) bool, the
+    residuals (B, 4) and the verdicts (B,) bool under the three tolerances.
+
+    They are ``certificate.residuals_of`` and ``certificate.verdicts_into`` on
+    the answer, as ``certify`` would compute them afresh; only the second call
+    from Python is saved.
+    """
+    run_into(A, n_gas, b, mu0, allowed, same, ln_n_start, n_c_start, present_start, cold, tol, max_iterations,
+             phase_tol, max_phase_changes, chains, parallel, ln_n, n_c, active, pi, iterations, status)
+    for p in range(status.size):
+        converged[p] = status[p] == CONVERGED
+    residuals_of(A, n_gas, b, mu0, allowed, ln_n, n_c, active, pi, residuals)
+    verdicts_into(residuals, converged, element_balance_tol, stationarity_tol, complementarity_tol, certified)

@@ -27,6 +27,7 @@ from numpy.typing import NDArray
 
 from ..system import Problem
 from ..compiled import compiled
+from ..frozen import built
 from .result import SolverResult
 
 
@@ -112,8 +113,8 @@ class CertificateBatch:
         return len(self.certified)
 
     def __getitem__(self, i: int) -> Certificate:
-        return Certificate(
-            element_balance=float(self.element_balance[i]),
+        return built(
+            Certificate, element_balance=float(self.element_balance[i]),
             stationarity=float(self.stationarity[i]),
             complementarity=float(self.complementarity[i]),
             min_amount=float(self.min_amount[i]),
@@ -127,7 +128,7 @@ class CertificateBatch:
 
 
 @compiled()
-def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
+def residuals_of(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, out):
     """Residuals of every point: out[p] = (element balance, stationarity, complementarity, min amount)."""
     M, S = A.shape
     for p in range(b.shape[0]):
@@ -172,24 +173,41 @@ def _residuals(A, n_gas, b, mu0, allowed, ln_n_gas, n_condensed, present, pi, ou
 
 
 @compiled()
-def _verdicts(out, converged, element_balance, stationarity, complementarity):
-    """Whether each point's residuals (rows of ``out``) are within the tolerances."""
-    certified = np.empty(out.shape[0], dtype=np.bool_)
+def verdicts_into(out, converged, element_balance, stationarity, complementarity, certified):
+    """Whether each point's residuals (rows of ``out``) are within the tolerances, into ``certified``."""
     for p in range(out.shape[0]):
         certified[p] = (converged[p] and out[p, 0] <= element_balance and out[p, 1] <= stationarity
                         and out[p, 2] >= -complementarity and out[p, 3] >= 0.0)
+
+
+@compiled()
+def _verdicts(out, converged, element_balance, stationarity, complementarity):
+    """``verdicts_into`` into a new array."""
+    certified = np.empty(out.shape[0], dtype=np.bool_)
+    verdicts_into(out, converged, element_balance, stationarity, complementarity, certified)
     return certified
 
 
-def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances()) -> CertificateBatch:
-    """Certificates of every point of a batch."""
+def certify(problem: Problem, result: SolverResult, tolerances: Tolerances = Tolerances(),
+            worked_out: tuple[NDArray[np.float64], NDArray[np.bool_]] | None = None) -> CertificateBatch:
+    """Certificates of every point of a batch.
+
+    ``worked_out`` is (residuals, certified) as ``residuals_of`` and
+    ``verdicts_into`` give them for this answer and these tolerances, where
+    the solver's compiled call has just run them (Newton's
+    ``run_certified``); both are computed here otherwise.
+    """
     # Both steps are compiled: on a single small point, array arithmetic in Python would cost more
     # than the residuals themselves.
-    out = np.empty((problem.batch_size, 4))
-    _residuals(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
-               problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, out)
-    certified = _verdicts(out, np.ascontiguousarray(result.converged, dtype=np.bool_), tolerances.element_balance,
-                          tolerances.stationarity, tolerances.complementarity)
-    columns = np.ascontiguousarray(out.T)
-    return CertificateBatch(columns[0], columns[1], columns[2], columns[3], certified, tuple(result.method),
-                            np.asarray(result.iterations))
+    if worked_out is None:
+        residuals = np.empty((problem.batch_size, 4))
+        residuals_of(np.ascontiguousarray(problem.A, dtype=float), problem.n_gas, problem.b, problem.mu0,
+                     problem.allowed, result.ln_n_gas, result.n_condensed, result.present, result.pi, residuals)
+        certified = _verdicts(residuals, np.ascontiguousarray(result.converged, dtype=np.bool_),
+                              tolerances.element_balance, tolerances.stationarity, tolerances.complementarity)
+    else:
+        residuals, certified = worked_out
+    columns = np.ascontiguousarray(residuals.T)
+    return built(CertificateBatch, element_balance=columns[0], stationarity=columns[1],
+                 complementarity=columns[2], min_amount=columns[3], certified=certified,
+                 solver=tuple(result.method), iterations=np.asarray(result.iterations))

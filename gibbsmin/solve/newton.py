@@ -30,8 +30,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..frozen import built
 from ..system import Problem
 from . import _newton_kernel as kernel
+from .certificate import CertificateBatch, Tolerances, certify
 from .result import SolverResult
 
 
@@ -115,6 +117,30 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         ``converged`` is False where the iteration did not settle; the caller
         decides what to do with those points (see ``solve``).
     """
+    return _result(problem, kernel.run(*_kernel_arguments(problem, start, options, chains)))
+
+
+def solve_newton_certified(problem: Problem, start: SolverResult | None = None,
+                           options: NewtonOptions = NewtonOptions(), chains: int | None = None,
+                           tolerances: Tolerances = Tolerances()) -> tuple[SolverResult, CertificateBatch]:
+    """``solve_newton`` and ``certify`` of its answer, the residuals taken in the same compiled call."""
+    B, M, S = problem.batch_size, problem.A.shape[0], problem.n_species
+    C = S - problem.n_gas
+    ln_n, n_c, present = np.empty((B, problem.n_gas)), np.empty((B, C)), np.empty((B, C), dtype=bool)
+    pi = np.empty((B, M))
+    iterations, status, converged = np.empty(B, dtype=np.int64), np.empty(B, dtype=np.int64), np.empty(B, dtype=bool)
+    residuals, certified = np.empty((B, 4)), np.empty(B, dtype=bool)
+    kernel.run_certified(*_kernel_arguments(problem, start, options, chains), ln_n, n_c, present, pi, iterations,
+                         status, converged, tolerances.element_balance, tolerances.stationarity,
+                         tolerances.complementarity, residuals, certified)
+    result = built(SolverResult, ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi, converged=converged,
+                   iterations=iterations, method=("newton",) * B)
+    return result, certify(problem, result, tolerances, worked_out=(residuals, certified))
+
+
+def _kernel_arguments(problem: Problem, start: SolverResult | None, options: NewtonOptions,
+                      chains: int | None) -> tuple:
+    """The arguments of ``kernel.run`` for a problem, a start and the options."""
     cold = start is None
     # With a cold start the start arrays are not read; any arrays of the right kind will do.
     start_arrays = (_NO_START, _NO_START, _NO_PRESENT) if cold else (
@@ -122,14 +148,14 @@ def solve_newton(problem: Problem, start: SolverResult | None = None,
         np.ascontiguousarray(start.present))
     A = np.ascontiguousarray(problem.A, dtype=float)
     B = problem.batch_size
-    ln_n, n_c, present, pi, iterations, status = kernel.run(
-        A, problem.n_gas, np.ascontiguousarray(problem.b, dtype=float),
-        np.ascontiguousarray(problem.mu0, dtype=float), np.ascontiguousarray(problem.allowed),
-        _same_composition(A[:, problem.n_gas:]), *start_arrays, cold,
-        options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
-        B if chains is None else int(chains), B > 1,
-    )
-    return SolverResult(
-        ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
-        converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * B,
-    )
+    return (A, problem.n_gas, np.ascontiguousarray(problem.b, dtype=float),
+            np.ascontiguousarray(problem.mu0, dtype=float), np.ascontiguousarray(problem.allowed),
+            _same_composition(A[:, problem.n_gas:]), *start_arrays, cold,
+            options.tol, options.max_iterations, options.phase_tol, options.max_phase_changes,
+            B if chains is None else int(chains), B > 1)
+
+
+def _result(problem: Problem, raw: tuple) -> SolverResult:
+    ln_n, n_c, present, pi, iterations, status = raw
+    return built(SolverResult, ln_n_gas=ln_n, n_condensed=n_c, present=present, pi=pi,
+                 converged=status == kernel.CONVERGED, iterations=iterations, method=("newton",) * problem.batch_size)
