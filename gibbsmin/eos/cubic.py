@@ -268,11 +268,11 @@ class CubicModel:
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         if not single:
             raise InputError("least_gibbs_root takes one condition (T and P floats, y of shape (S,))")
-        return self.single_condition(T, P, y, _LEAST_GIBBS)
+        return self.single_condition(T, P, y, LEAST_GIBBS_ROOT)
 
     def mixing_parameters(self, T: float) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], bool]:
         """sqrt(a_i) and b_i at T, the (1 - k_ij) matrix and whether it is there: what the compiled
-        single-condition evaluation (``_single_ln_phi``) takes."""
+        single-condition evaluation (``single_ln_phi``) takes."""
         sqrt_a, _, b_i, _ = self._pure(float(T))
         k = self._one_minus_k
         return (np.ascontiguousarray(sqrt_a, dtype=float), np.ascontiguousarray(b_i, dtype=float),
@@ -284,7 +284,7 @@ class CubicModel:
         one) at the root ``choice`` (0 vapour, 1 liquid, 2 least Gibbs energy), by the compiled evaluation."""
         sqrt_a, b_i, one_minus_k, has_k = self.mixing_parameters(T)
         fam = self.family
-        ln_phi, g, Z = _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, np.ascontiguousarray(y, dtype=float),
+        ln_phi, g, Z = single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, np.ascontiguousarray(y, dtype=float),
                                       float(T), float(P), fam.delta1, fam.delta2, choice)
         return ln_phi, float(g), float(Z)
 
@@ -391,7 +391,7 @@ class CubicModel:
         """ln phi of each species [-], shape (S,) or (B, S); as :meth:`properties` gives it, without the rest."""
         T, P, y, single = check_conditions(T, P, y, self.n_species)
         if single:
-            return self.single_condition(T, P, y, _VAPOUR if _root_choice(root) == "vapour" else _LIQUID)[0]
+            return self.single_condition(T, P, y, VAPOUR_ROOT if _root_choice(root) == "vapour" else LIQUID_ROOT)[0]
         *_, A, B, beta, abar = self._mixture(T, P, y)
         Z = _ROOTS[_root_choice(root)](*self.family.cubic_coefficients(A, B), B)
         return self._at_root(Z, A, B, beta, abar, math.log if single else np.log)[0]
@@ -470,11 +470,11 @@ _NO_K = np.ones((1, 1))
 _R = R
 
 #: Root choices of the compiled single-condition evaluation.
-_VAPOUR, _LIQUID, _LEAST_GIBBS = 0, 1, 2
+VAPOUR_ROOT, LIQUID_ROOT, LEAST_GIBBS_ROOT = 0, 1, 2
 
 
 @compiled()
-def _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, y, T, P, delta1, delta2, choice):
+def single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, y, T, P, delta1, delta2, choice):
     """ln phi_i, G_res/RT and Z of one condition at the chosen root (vapour: the largest; liquid: the
     smallest physical one; or the one of least Gibbs energy), the roots in closed form and polished.
 
@@ -533,8 +533,8 @@ def _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, y, T, P, delta1, delta2, cho
             continue
         L = math.log((Z + delta1 * B) / (Z + delta2 * B))
         g = Z - 1.0 - math.log(Z - B) - A / (B * (delta1 - delta2)) * L
-        if best_Z < 0.0 or (choice == _VAPOUR and Z > best_Z) or (choice == _LIQUID and Z < best_Z) or (
-                choice == _LEAST_GIBBS and g < best_g):
+        if best_Z < 0.0 or (choice == VAPOUR_ROOT and Z > best_Z) or (choice == LIQUID_ROOT and Z < best_Z) or (
+                choice == LEAST_GIBBS_ROOT and g < best_g):
             best_Z, best_g = Z, g
     Z = best_Z
     ln_phi = np.empty(S)

@@ -19,7 +19,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..errors import InputError
-from .cubic import _LEAST_GIBBS, _LIQUID, _VAPOUR, CubicModel
+from .cubic import LEAST_GIBBS_ROOT, LIQUID_ROOT, VAPOUR_ROOT, CubicModel
 from .stability import _stationary_point
 
 _MAX_ITERATIONS = 500
@@ -53,7 +53,7 @@ class IncipientPhase:
 def _splits(model: CubicModel, T: float, P: float, z: NDArray[np.float64], kind: str):
     """(whether the feed splits at T, P, the incipient composition): the feed on its own root (vapour for a dew
     point, liquid for a bubble point), the trial from Wilson's ratios on the other side."""
-    feed_root = _VAPOUR if kind == "dew" else _LIQUID
+    feed_root = VAPOUR_ROOT if kind == "dew" else LIQUID_ROOT
     ln_phi_z, _, Z_feed = model.single_condition(T, P, z, feed_root)
     there = z > 0.0
     d = np.where(there, np.log(np.where(there, z, 1.0)) + ln_phi_z, -np.inf)
@@ -68,7 +68,7 @@ def _splits(model: CubicModel, T: float, P: float, z: NDArray[np.float64], kind:
         return False, None
     w = W / total
     # Back at z on the feed's own root is the trivial point; at z on the other root (a pure fluid) it is not.
-    if float(np.max(np.abs(w - z))) < _TRIVIAL and abs(model.single_condition(T, P, w, _LEAST_GIBBS)[2] - Z_feed) \
+    if float(np.max(np.abs(w - z))) < _TRIVIAL and abs(model.single_condition(T, P, w, LEAST_GIBBS_ROOT)[2] - Z_feed) \
             < _TRIVIAL * Z_feed:
         return False, None
     return total > 1.0, w

@@ -27,7 +27,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ..compiled import compiled
-from .cubic import _LEAST_GIBBS, CubicModel, _single_ln_phi
+from .cubic import LEAST_GIBBS_ROOT, CubicModel, single_ln_phi
 
 #: A stationary point below this distance means the gas splits [-].
 UNSTABLE_BELOW = -1e-8
@@ -64,7 +64,7 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike, *, l
     z = z / z.sum()
     there = z > 0.0
     d = np.full(z.shape, -np.inf)
-    ln_phi_z = model.single_condition(float(T), float(P), z, _LEAST_GIBBS)[0] if liquid else model.ln_phi(T, P, z)
+    ln_phi_z = model.single_condition(float(T), float(P), z, LEAST_GIBBS_ROOT)[0] if liquid else model.ln_phi(T, P, z)
     d[there] = np.log(z[there]) + ln_phi_z[there]  # the phase as the equilibrium has it
     K = model.wilson_ratios(T, P)
     sqrt_a, b_i, one_minus_k, has_k = model.mixing_parameters(float(T))
@@ -81,7 +81,7 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike, *, l
             continue
         # Successive substitution may wander without settling in a strongly non-ideal liquid: the distance
         # counts only where the tangent-plane distance itself, at the point reached, is negative too.
-        ln_phi_w = model.single_condition(float(T), float(P), w, _LEAST_GIBBS)[0]
+        ln_phi_w = model.single_condition(float(T), float(P), w, LEAST_GIBBS_ROOT)[0]
         with np.errstate(divide="ignore", invalid="ignore"):
             tpd = float(np.sum(np.where(there, w * (np.log(np.where(there, w, 1.0)) + ln_phi_w - d), 0.0)))
         if not tpd < UNSTABLE_BELOW:
@@ -104,7 +104,7 @@ def _stationary_point(sqrt_a, b_i, one_minus_k, has_k, W, d, there, T, P, delta1
         total = W.sum()
         for i in range(S):
             w[i] = W[i] / total
-        ln_phi, _, _ = _single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, w, T, P, delta1, delta2, _LEAST_GIBBS)
+        ln_phi, _, _ = single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, w, T, P, delta1, delta2, LEAST_GIBBS_ROOT)
         step = 0.0
         for i in range(S):
             if there[i]:

@@ -40,6 +40,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import NDArray
 
+from ..eos.cubic import LEAST_GIBBS_ROOT, VAPOUR_ROOT
 from ..eos.phase import GasPhase
 from ..eos.stability import tangent_plane_test
 from .stability import stability_and_trial
@@ -52,11 +53,13 @@ from ..solve import SolverResult
 from ..solve.certificate import Certificate, Tolerances
 from ..system import Problem
 from ..thermo.nasa7 import R
-from .loop import gas_model_extras
+from .loop import _anderson_step, gas_model_extras
 
 #: Outer-loop tolerance on ln phi of every phase [-] and its pass limit.
 PHI_TOLERANCE = 1e-10
 MAX_PASSES = 200
+#: Past passes the Anderson acceleration combines.
+_MEMORY = 3
 #: A phase holding less than this share of the fluid amount is dropped [-].
 VANISHED = 1e-12
 #: A phase the inner Newton has driven below this share of the fluid, without converging, is leaving [-].
@@ -188,9 +191,15 @@ def _trial_liquid(phase: GasPhase, eq: Equilibrium, T: float, P: float) -> NDArr
 
 def _liquid_ln_phi(phase: GasPhase, x_gas: NDArray[np.float64], T: float, P: float) -> NDArray[np.float64]:
     """ln phi over the System's gas species in a liquid of composition x (least-Gibbs root); 0 where undescribed."""
+    return _phase_ln_phi(phase, x_gas, T, P, LEAST_GIBBS_ROOT)
+
+
+def _phase_ln_phi(phase: GasPhase, x_gas: NDArray[np.float64], T: float, P: float, root: int) -> NDArray[np.float64]:
+    """ln phi over the System's gas species of a phase of composition x on the root chosen (the compiled
+    evaluation, the loop's compositions being sound by construction); 0 where undescribed."""
     part = x_gas[phase.described]
     ln_phi = np.zeros(len(phase.gas_names))
-    ln_phi[phase.described] = phase.model.ln_phi_least_gibbs_root(T, P, part / part.sum())[0]
+    ln_phi[phase.described] = phase.model.single_condition(float(T), float(P), part / part.sum(), root)[0]
     return ln_phi
 
 
@@ -319,6 +328,9 @@ def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, p
     """The outer loop: frozen-phi splits until every phase's ln phi settles, vanished phases dropped and phases
     of one composition merged."""
     change = np.inf
+    xs: list[NDArray[np.float64]] = []
+    gs: list[NDArray[np.float64]] = []
+    phase_count = len(phases)
     for _ in range(MAX_PASSES):
         passes += 1
         pi, n_c, converged = _frozen_phi_split(problem, phases, pi, n_c, present_c)
@@ -338,17 +350,35 @@ def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, p
         phases = _without_vanished(phases)
         phases = _merged(problem, phases, pi)
         ln_x = _compositions(problem, phases, pi)
-        change = 0.0
-        for k, p in enumerate(phases):
-            x = _system_gas(np.exp(ln_x[k]), keep_gas, n_gas)
-            found = (_liquid_ln_phi(phase, x, T, P) if p.liquid else phase.ln_phi(T, P, x))[keep_gas]
-            change = max(change, float(np.max(np.abs(np.where(p.allowed, found - p.ln_phi, 0.0)))))
-            p.ln_phi = found
+        held = np.concatenate([p.ln_phi for p in phases])
+        found = np.concatenate([
+            _phase_ln_phi(phase, _system_gas(np.exp(ln_x[k]), keep_gas, n_gas), T, P,
+                          LEAST_GIBBS_ROOT if p.liquid else VAPOUR_ROOT)[keep_gas] for k, p in enumerate(phases)])
+        allowed = np.concatenate([p.allowed for p in phases])
+        previous, change = change, float(np.max(np.abs(np.where(allowed, found - held, 0.0))))
         if change <= PHI_TOLERANCE:
+            _assign(phases, found)
             return phases, pi, n_c, present_c, passes
+        # Anderson acceleration over the last passes, as the one-gas loop does; a change of the phase set, or a
+        # pass that does not contract, starts the history afresh with a half step.
+        if len(phases) != phase_count or change >= previous:
+            xs, gs = [], []
+            phase_count = len(phases)
+            _assign(phases, held + 0.5 * (found - held))
+            continue
+        xs.append(held)
+        gs.append(found)
+        del xs[: -(_MEMORY + 1)], gs[: -(_MEMORY + 1)]
+        _assign(phases, _anderson_step(xs, gs) if len(xs) > 1 else found)
     raise ConvergenceError(
         f"the fluid phases' fugacity coefficients did not settle in {MAX_PASSES} passes at T = {T:g} K, "
         f"P = {P:g} Pa (last change {change:.2e}); the mixture may be near its critical point there")
+
+
+def _assign(phases: list[_Phase], ln_phi: NDArray[np.float64]) -> None:
+    """Each phase's ln phi from one vector of them all, in the phases' order."""
+    for k, p in enumerate(phases):
+        p.ln_phi = ln_phi[k * p.ln_phi.size:(k + 1) * p.ln_phi.size].copy()
 
 
 def _without_vanished(phases: list[_Phase]) -> list[_Phase]:
