@@ -89,9 +89,10 @@ def _point(kind, feed, P, T, gas, kij, data, db, T_range, P_range) -> PhasePoint
                          f"cubic cannot say how {'it' if len(ideal) == 1 else 'they'} would condense; leave "
                          f"{'it' if len(ideal) == 1 else 'them'} out of the stream")
     low, high = T_range if P is not None else P_range
-    found = incipient_point(model, z, kind, P=None if P is None else positive_number(P, "P", "Pa"),
-                            T=None if T is None else positive_number(T, "T", "K"), low=float(low), high=float(high))
-    return PhasePoint(kind, float(found.T), float(found.P), {s: float(w) for s, w in zip(described, found.incipient)})
+    T_found, P_found, incipient = incipient_point(
+        model, z, kind, P=None if P is None else positive_number(P, "P", "Pa"),
+        T=None if T is None else positive_number(T, "T", "K"), low=float(low), high=float(high))
+    return PhasePoint(kind, float(T_found), float(P_found), {s: float(w) for s, w in zip(described, incipient)})
 
 
 def condensation_curve(feed: Mapping[str, float], P: float, temperatures: Sequence[float], *,

@@ -13,8 +13,6 @@ temperature) where that sign changes: found by stepping from the vapour side
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
-
 import numpy as np
 from numpy.typing import NDArray
 
@@ -28,26 +26,6 @@ _TOLERANCE = 1e-12
 _TRIVIAL = 1e-6
 #: The bracket is bisected to this fraction of the variable [-].
 _BISECT_TO = 1e-9
-
-
-@dataclass(frozen=True)
-class IncipientPhase:
-    """A dew or bubble point.
-
-    Attributes
-    ----------
-    kind : str
-        "dew" or "bubble".
-    T, P : float
-        [K], [Pa].
-    incipient : ndarray
-        Mole fractions of the phase about to form (the model's species order).
-    """
-
-    kind: str
-    T: float
-    P: float
-    incipient: NDArray[np.float64]
 
 
 def _splits(model: CubicModel, T: float, P: float, z: NDArray[np.float64], kind: str):
@@ -75,8 +53,11 @@ def _splits(model: CubicModel, T: float, P: float, z: NDArray[np.float64], kind:
 
 
 def incipient_point(model: CubicModel, z: NDArray[np.float64], kind: str, *, P: float | None = None,
-                    T: float | None = None, low: float, high: float, steps: int = 400) -> IncipientPhase:
+                    T: float | None = None, low: float, high: float,
+                    steps: int = 400) -> tuple[float, float, NDArray[np.float64]]:
     """The dew or bubble point of z: its temperature at P, or its pressure at T, searched between low and high.
+
+    Returns (T [K], P [Pa], the incipient phase's mole fractions in the model's order).
 
     Parameters
     ----------
@@ -132,7 +113,7 @@ def incipient_point(model: CubicModel, z: NDArray[np.float64], kind: str, *, P: 
                     outside = middle
             _, w = splits(inside)
             found = 0.5 * (outside + inside)
-            return IncipientPhase(kind, found if by_temperature else T, P if by_temperature else found, w)
+            return (found, P, w) if by_temperature else (T, found, w)
         previous, was_split = x, split
     what = "temperature" if by_temperature else "pressure"
     raise InputError(f"no {kind} point between {low:g} and {high:g} {'K' if by_temperature else 'Pa'}: the feed stays "
