@@ -415,6 +415,10 @@ class Prepared:
             setup = with_frozen_totals(setup, total, frozen_mol)
         return setup, frozen_mol
 
+    def gas_phase_of(self, setup: Setup):
+        """This specification's gas model on a setup's species set (kept per set)."""
+        return self._gas_phase(setup, self._species_set(setup))
+
     def _species_set(self, setup: Setup) -> _SpeciesSet:
         key = id(setup.system)
         known = self._species_sets.get(key)

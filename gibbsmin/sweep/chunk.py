@@ -17,6 +17,7 @@ if TYPE_CHECKING:
 from ..api import prepared_for
 from ..prepared import Prepared
 from ..fixed_step import Setup
+from ..eos.stability import tangent_plane_test
 from ..uncertainty import batch_uncertainty
 from ..thermo.datasets import data_set
 from .grid import SweepSpec
@@ -60,6 +61,7 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
     run = spec.shape[-1]
     if spec.uncertainty:
         u_y, u_condensed = np.full((B, n_gas), np.nan), np.full((B, len(system.names) - n_gas), np.nan)
+    x, liquid_fraction = np.full((B, n_gas), np.nan), np.zeros(B)
     for group in _element_groups(b):
         problem, result, certificates = prepared.solve_batch(setup, T[group], P[group], b[group],
                                                              chains=max(1, group.size // run))
@@ -77,17 +79,50 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
         summary["condensed_margin"][group] = certificates.complementarity
         if spec.uncertainty:
             u_y[group], u_condensed[group] = batch_uncertainty(setup, problem, result, T[group], spec.data)
+        if spec.liquid:
+            _split_points(prepared, setup, group, T, P, feed, spec.feed_species(db), y, x, liquid_fraction,
+                          n_condensed, certified, iterations, solver, summary)
     columns: dict[str, object] = {"point": np.arange(first, last)}
     columns.update(shown)
     columns.update({"T_K": T, "P_Pa": P})
     columns.update({f"y_{name}": y[:, j] for j, name in enumerate(system.gas_names)})
     columns.update({f"n_{name}": n_condensed[:, j] for j, name in enumerate(system.condensed_names)})
+    if spec.liquid:
+        columns["liquid_fraction"] = liquid_fraction
+        columns.update({f"x_{name}": x[:, j] for j, name in enumerate(system.gas_names)})
     if spec.uncertainty:
         columns.update({f"u_y_{name}": u_y[:, j] for j, name in enumerate(system.gas_names)})
         columns.update({f"u_n_{name}": u_condensed[:, j] for j, name in enumerate(system.condensed_names)})
     columns.update({"certified": certified, "solver": pd.Categorical(solver), "iterations": iterations})
     columns.update(summary)
     return pd.DataFrame(columns)
+
+
+def _split_points(prepared: Prepared, setup: Setup, group, T, P, feed, feed_names, y, x, liquid_fraction,
+                  n_condensed, certified, iterations, solver, summary) -> None:
+    """The points of a batch whose gas the tangent-plane test finds unstable, flashed one by one through the
+    pipeline (each split into gas and liquid, certified over every phase), written over their one-gas rows."""
+    system = setup.system
+    phase = prepared.gas_phase_of(setup)
+    for i in group:
+        z = y[i, phase.described]
+        if not np.all(np.isfinite(z)) or not z.sum() > 0.0 or tangent_plane_test(phase.model, float(T[i]), float(P[i]),
+                                                                                 z / z.sum()).stable:
+            continue
+        eq = prepared.equilibrate(dict(zip(feed_names, map(float, feed[i]))), float(T[i]), float(P[i]))
+        if eq.fluid_phases is None:
+            continue
+        fluid_total = sum(p.amount for p in eq.fluid_phases)
+        liquid_fraction[i] = eq.liquid_amount / fluid_total
+        fractions = eq.mole_fractions if eq.gas_present else {}
+        y[i] = [fractions.get(name, np.nan) for name in system.gas_names]
+        first_liquid = next(p for p in eq.fluid_phases if p.name != "gas")
+        x[i] = [first_liquid.mole_fractions.get(name, 0.0) for name in system.gas_names]
+        n_condensed[i] = [eq.amounts[name] for name in system.condensed_names]
+        c = eq.certificate
+        certified[i], iterations[i], solver[i] = c.certified, c.iterations, c.solver[:16]
+        summary["element_balance"][i], summary["stationarity"][i] = c.element_balance, c.stationarity
+        summary["condensed_margin"][i] = c.complementarity
 
 
 def _element_groups(b: np.ndarray) -> list[np.ndarray]:

@@ -97,6 +97,13 @@ class SweepSpec:
         the standard uncertainty of each mole fraction and condensed amount
         from the data set's formation-enthalpy uncertainties (ideal gas; a
         data set that states them, "atct-anchored").
+    liquid : bool
+        With a cubic gas model: split every point whose gas the tangent-plane
+        test finds unstable into gas and liquid solution (the flash of
+        ``equilibrate``), adding columns ``liquid_fraction`` (mole fraction of
+        the fluid in the liquids) and ``x_<species>`` (the first liquid's mole
+        fractions; NaN where there is none); the ``y_`` columns stay the gas's.
+        Off by default, so a sweep's table keeps the columns it always had.
     """
 
     feed: Mapping[str, float]
@@ -113,6 +120,7 @@ class SweepSpec:
     kij_pairs: tuple[tuple[str, str, float], ...] = ()
     data: str = DEFAULT_DATA
     uncertainty: bool = False
+    liquid: bool = False
     _shape: tuple[int, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -132,6 +140,11 @@ class SweepSpec:
         check_data_name(self.data)
         if self.uncertainty:
             self._check_uncertainty()
+        if self.liquid and self.gas == "ideal":
+            raise InputError("liquid-solution phases in a sweep need a cubic: pass gas='peng-robinson' or 'srk' with "
+                             "liquid=True")
+        if self.liquid and self.uncertainty:
+            raise InputError("a sweep with liquid-solution phases has no uncertainty columns yet; drop one of them")
         if self.kij not in ("shipped", "none"):
             raise InputError(f"a sweep's kij is 'shipped' or 'none', not {self.kij!r}")
         object.__setattr__(self, "_shape", tuple(len(a.values) for a in self.axes))
@@ -164,7 +177,8 @@ class SweepSpec:
             base = default_interactions() if self.kij == "shipped" else InteractionTable([])
             kij = base.updated({(a, b): v for a, b, v in self.kij_pairs}, model=self.gas, source="sweep")
         return Specification.of(species=self.species, exclude=self.exclude, inert=self.inert, method=self.method,
-                                gas=self.gas, kij=kij if self.gas != "ideal" else "shipped", data=self.data)
+                                gas=self.gas, kij=kij if self.gas != "ideal" else "shipped", data=self.data,
+                                liquid=self.liquid if self.gas != "ideal" else None)
 
     def T_span(self) -> tuple[float, float]:
         axis = self.axis("T")
@@ -224,6 +238,8 @@ class SweepSpec:
             data["data"] = self.data
         if self.uncertainty:  # and a sweep without uncertainty columns
             data["uncertainty"] = True
+        if self.liquid:  # and one without liquids
+            data["liquid"] = True
         return json.dumps(data, sort_keys=True)
 
     @classmethod
@@ -238,6 +254,7 @@ class SweepSpec:
             gas=data.get("gas", "ideal"), kij=data.get("kij", "shipped"),
             kij_pairs=tuple((a, b, float(v)) for a, b, v in data.get("kij_pairs", [])),
             data=data.get("data", UNNAMED_DATA), uncertainty=data.get("uncertainty", False),
+            liquid=data.get("liquid", False),
         )
 
     def fingerprint(self) -> str:
