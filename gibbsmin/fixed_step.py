@@ -12,12 +12,11 @@ import math
 import numbers
 import warnings
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 
 import numpy as np
 from numpy.typing import NDArray
 
-from .eos.interactions import InteractionTable
 from .equilibrium import Equilibrium
 from .errors import ConvergenceError, InputError, TemperatureRangeError
 from .frozen import built
@@ -27,7 +26,6 @@ from .system import P_REF, Problem, System, reduce, select_species
 from .thermo.database import SpeciesDatabase, SpeciesRecord
 from .thermo.datasets import default_database
 from .thermo.nasa7 import GIBBS, polynomials
-from .thermo.datasets import choose_database
 
 #: The total feed amounts accepted, [mol].  The answer does not depend on the total, and far beyond
 #: these the element totals, G/RT and the enthalpies leave the range of floating-point numbers

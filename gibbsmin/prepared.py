@@ -510,7 +510,7 @@ class Prepared:
         with the data.  A held reaction's K(T_r) moves with the data too
         (``restricted.held_offset_map``).
         """
-        spec, data_set, T = self.specification, self.db.data_set, eq.T
+        data_set, T = self.db.data_set, eq.T
         if balanced_feed is not None:
             return _with_uncertainty_fields(eq, energy_balance_uncertainty(
                 setup, problem, result, T, eq.P, balanced_feed, data_set))
@@ -519,20 +519,27 @@ class Prepared:
             offset_map = held_offset_map(setup.system, complete, {rx.name: settling_temperature(rx, T, dT)
                                                                   for rx, dT in self.held}, T)
             base = offsets_at(T)
-        amounts_at = None
-        if not phase.is_ideal:
-            def amounts_at(offsets):
-                moved_by = offsets if offset_map is None else base + offsets + offset_map @ (offsets * R * T)
-                moved = nonideal.solve_nonideal(setup, T, eq.P, phase, method=spec.method, offsets=moved_by,
-                                                start=result, allow_extrapolation=spec.allow_extrapolation)[0]
-                return np.array([moved.amounts[s] for s in setup.system.names])
+        amounts_at = None if phase.is_ideal else self._amounts_at(eq, setup, result, phase, base, offset_map)
         return _with_uncertainty_fields(eq, point_uncertainties(
             setup, problem, result, T, data_set, amounts_at=amounts_at, offset_map=offset_map))
+
+    def _amounts_at(self, eq: Equilibrium, setup: Setup, result: SolverResult, phase, base, offset_map):
+        """The amounts of whole non-ideal solves with g0/RT moved by given offsets (and the held reactions' K
+        moved with them), warm-started from the answer: the cubic's differences for its uncertainties."""
+        spec, T = self.specification, eq.T
+
+        def amounts_at(offsets):
+            moved_by = offsets if offset_map is None else base + offsets + offset_map @ (offsets * R * T)
+            moved = nonideal.solve_nonideal(setup, T, eq.P, phase, method=spec.method, offsets=moved_by,
+                                            start=result, allow_extrapolation=spec.allow_extrapolation)[0]
+            return np.array([moved.amounts[s] for s in setup.system.names])
+        return amounts_at
 
 
 def restriction_extras(restriction: Restriction) -> dict[str, object]:
     """A restricted answer's figures by the names ``Equilibrium.extras`` has always used."""
-    return {"approach K": dict(restriction.approach_K), "settling temperature K": dict(restriction.settling_temperature_K),
+    return {"approach K": dict(restriction.approach_K),
+            "settling temperature K": dict(restriction.settling_temperature_K),
             "reactions at equilibrium": list(restriction.reactions_at_equilibrium),
             "frozen mol": dict(restriction.frozen_mol)}
 

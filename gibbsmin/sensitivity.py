@@ -253,7 +253,7 @@ def formation_enthalpy_sensitivities(setup: Setup, problem: Problem, result: Sol
     state, K, singular = _fixed_T_system(setup, problem, result)
     if singular:
         return np.full((S, S), np.nan)
-    M, C = state.A_g.shape[0], state.A_c.shape[1]
+    C = state.A_c.shape[1]
     m_gas = np.zeros((G, G + C))
     m_gas[:, :G] = np.eye(G) / (R * T)
     m_condensed = np.zeros((C, G + C))

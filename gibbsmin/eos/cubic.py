@@ -35,7 +35,7 @@ from .inputs import check_conditions
 from .quantum import QuantumGas, QuantumTable, quantum_gases_of
 from .result import GasProperties
 from ..compiled import compiled
-from .roots import liquid_root, real_roots, vapour_root
+from .roots import liquid_root, vapour_root
 
 FloatArray = NDArray[np.float64]
 

@@ -154,7 +154,6 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
     described = np.zeros(len(gas_names), dtype=bool)
     described[phase.described] = True
     liquid_allowed = described[keep_gas]
-    mu0 = problem.mu0[0]
     G = problem.n_gas
     gas_ln_n = one_gas_result.ln_n_gas[0]
     gas_ln_phi = phase.ln_phi(T, P, _system_gas(np.exp(gas_ln_n - gas_ln_n.max()), keep_gas, len(gas_names)))[
@@ -248,7 +247,6 @@ def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, p
     """
     M, G = A_g.shape
     F = ln_N.shape[0]
-    C = A_c.shape[1]
     cond = np.flatnonzero(present_c)
     K = M + F + cond.shape[0]
     scale = 0.0
