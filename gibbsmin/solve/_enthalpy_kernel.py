@@ -55,6 +55,13 @@ def _gas_block(A_g, n, J):
 
 
 @compiled()
+def _property_arrays(S):
+    """The work arrays ``_at_temperature`` fills for S species: T as an array, the polynomials' output, and
+    g0/RT (with ln P on the gas), h/RT and cp/R."""
+    return np.empty(1), np.empty((1, S)), np.empty(S), np.empty(S), np.empty(S)
+
+
+@compiled()
 def _at_temperature(low, high, T_mid, n_gas, T, ln_p, t, out, mu0, h, cp):
     """g0/RT (with ln P/P0 on the gas), h/RT and cp/R of every species at T, as ``system.standard_mu0`` has them."""
     t[0] = T
@@ -226,11 +233,7 @@ def _hp_iterate(A_g, A_c, b, low, high, T_mid, T_min_c, T_max_c, extrapolate, ln
     n_g = np.empty(G)
     mu_g = np.empty(G)
     d_ln_n = np.empty(G)
-    t = np.empty(1)
-    out = np.empty((1, S))
-    mu0 = np.empty(S)
-    h = np.empty(S)
-    cp = np.empty(S)
+    t, out, mu0, h, cp = _property_arrays(S)
     total = 0.0
     for j in range(G):
         total += math.exp(ln_n[j])
@@ -386,11 +389,7 @@ def run(A, n_gas, b, low, high, T_mid, T_min, T_max, extrapolate, P, H_target_R,
     active = np.zeros(C, dtype=np.bool_)
     allowed_c = np.zeros(C, dtype=np.bool_)
     pi = np.zeros(M)
-    t = np.empty(1)
-    out = np.empty((1, S))
-    mu0 = np.empty(S)
-    h = np.empty(S)
-    cp = np.empty(S)
+    t, out, mu0, h, cp = _property_arrays(S)
     T = T_start
     _at_temperature(low, high, T_mid, G, T, ln_p, t, out, mu0, h, cp)
     _allowed_at(T_min_c, T_max_c, T, extrapolate, allowed_c)
