@@ -33,7 +33,7 @@ LAYERS: dict[str, int] = {
     "gibbsmin.uncertainty": 3,
     "gibbsmin.prepared": 4, "gibbsmin.api": 4,
     "gibbsmin.carbon": 5, "gibbsmin.flash": 5, "gibbsmin.audit": 5, "gibbsmin.case": 5,
-    "gibbsmin.sweep": 5, "gibbsmin.report": 5,
+    "gibbsmin.sweep": 5, "gibbsmin.report": 5, "gibbsmin.flowsheet": 5,
     "gibbsmin.cli": 6,
     "gibbsmin": 7,  # the package's own __init__: the public names, above everything
 }
@@ -43,6 +43,9 @@ WITHIN_LAYER: tuple[tuple[str, str], ...] = (
     ("gibbsmin.energy", "gibbsmin.nonideal"),
     ("gibbsmin.sensitivity", "gibbsmin.uncertainty"),
     ("gibbsmin.prepared", "gibbsmin.api"),
+    ("gibbsmin.case", "gibbsmin.flowsheet"),
+    ("gibbsmin.flowsheet", "gibbsmin.report"),
+    ("gibbsmin.flowsheet", "gibbsmin.sweep"),
 )
 
 

@@ -205,7 +205,7 @@ def settle_case(case: Case, db: SpeciesDatabase | None = None,
         try:
             stage_db = choose_database(stage.data, given)
             scope = stage_scope(case, stage, inlet.mixed, stage_db)
-            eq = _settle_stage(case, stage, scope, inlet, stage_db)
+            eq = settle_stage(case, stage, scope, inlet, stage_db)
         except ConvergenceError:
             raise
         except (GibbsminError, UnknownSpeciesError) as exc:
@@ -261,7 +261,7 @@ def _takes_liquids(stage: Stage) -> bool:
     return stage.gas != "ideal" and stage.type in ("reactor", "separator")
 
 
-def _settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
+def settle_stage(case: Case, stage: Stage, scope: StageScope, inlet: StageInlet, db: SpeciesDatabase) -> Equilibrium:
     if stage.type in _HEAT_CHECKED:
         _check_heat_direction(stage, inlet)
     balance = {}
