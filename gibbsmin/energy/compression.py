@@ -54,60 +54,60 @@ _RESIDUAL_CP_STEP = 1e-3
 
 
 @dataclass(frozen=True)
-class Compression:
-    """A compressor's (or expander's) outlet and power; amounts in mol/s, so energies in W.
+class Outlet:
+    """What every machine's and valve's result holds.
+
+    Amounts are taken as mol/s, so energies are in W.
 
     Attributes
     ----------
     T_out : float
         Outlet temperature, [K].
-    T_isentropic : float
-        Outlet temperature of the isentropic machine, [K].
     P_in, P_out : float
         Inlet and outlet pressure, [Pa].
     power_W : float
         H_out - H_in, [W]: positive when the machine takes work (compression), negative for an expander.
     H_in_W, H_out_W : float
         Enthalpy flow on the formation basis at the inlet and outlet, [W].
-    S_in, S_isentropic, S_out : float
-        Entropy flow at the inlet, at the isentropic outlet (S_isentropic - S_in is the match's residual) and at
-        the outlet, [W/K].
-    efficiency : float
-        Isentropic efficiency used, [-].
+    S_in, S_out : float
+        Entropy flow at the inlet and outlet, [W/K]; S_out - S_in is the entropy the machine or valve generates.
     iterations : int
-        Temperature iterations of both solves.
+        Temperature iterations of the solves.
     """
 
     T_out: float
-    T_isentropic: float
     P_in: float
     P_out: float
     power_W: float
     H_in_W: float
     H_out_W: float
     S_in: float
-    S_isentropic: float
     S_out: float
-    efficiency: float
     iterations: int
 
 
 @dataclass(frozen=True)
-class Letdown:
-    """A valve's outlet: isenthalpic, no work (power_W is 0); fields as in :class:`Compression`.
+class Letdown(Outlet):
+    """A valve's outlet: isenthalpic, no work (power_W is 0); the fields of :class:`Outlet`."""
 
-    S_out - S_in [W/K] is the entropy the throttling generates (positive for a let-down).
+
+@dataclass(frozen=True)
+class Compression(Outlet):
+    """A compressor's (or expander's) outlet and power: the fields of :class:`Outlet`, and
+
+    Attributes
+    ----------
+    T_isentropic : float
+        Outlet temperature of the isentropic machine, [K].
+    S_isentropic : float
+        Entropy flow at the isentropic outlet, [W/K]; S_isentropic - S_in is the match's residual.
+    efficiency : float
+        Isentropic efficiency used, [-].
     """
 
-    T_out: float
-    P_in: float
-    P_out: float
-    power_W: float
-    H_in_W: float
-    H_out_W: float
-    S_in: float
-    S_out: float
-    iterations: int
+    T_isentropic: float
+    S_isentropic: float
+    efficiency: float
 
 
 class _Gas:
@@ -275,8 +275,9 @@ def compress(amounts: Mapping[str, float], T_in: float, P_in: float, P_out: floa
         T_out, H_out, more = T_s, H_s, 0
     else:
         T_out, H_out, more = _at_enthalpy(state, H_target, P_out, T_s, "outlet temperature")
-    return Compression(T_out, T_s, P_in, P_out, H_out - H_in, H_in, H_out, S_in, S_s,
-                       state.entropy(T_out, P_out), efficiency, iterations + more)
+    return Compression(T_out=T_out, P_in=P_in, P_out=P_out, power_W=H_out - H_in, H_in_W=H_in, H_out_W=H_out,
+                       S_in=S_in, S_out=state.entropy(T_out, P_out), iterations=iterations + more,
+                       T_isentropic=T_s, S_isentropic=S_s, efficiency=efficiency)
 
 
 def expand_adiabatic(amounts: Mapping[str, float], T_in: float, P_in: float, P_out: float, *, gas: str = "ideal",
@@ -289,5 +290,5 @@ def expand_adiabatic(amounts: Mapping[str, float], T_in: float, P_in: float, P_o
     state, T_in, P_in, P_out = _read_state(amounts, T_in, P_in, P_out, gas, kij, db)
     H_in = state.enthalpy(T_in, P_in)
     T_out, H_out, iterations = _at_enthalpy(state, H_in, P_out, T_in, "valve outlet temperature")
-    return Letdown(T_out, P_in, P_out, 0.0, H_in, H_out, state.entropy(T_in, P_in), state.entropy(T_out, P_out),
-                   iterations)
+    return Letdown(T_out=T_out, P_in=P_in, P_out=P_out, power_W=0.0, H_in_W=H_in, H_out_W=H_out,
+                   S_in=state.entropy(T_in, P_in), S_out=state.entropy(T_out, P_out), iterations=iterations)
