@@ -159,7 +159,8 @@ class _Gas:
         """cp [W/K]: the ideal gas's exactly, the residual part by a central difference (it only steers Newton)."""
         cp = heat_capacity(self.table, self.n, T)
         if self.model is not None:
-            step = min(_RESIDUAL_CP_STEP, 0.5 * (T - self.T_min), 0.5 * (self.T_max - T)) or 1e-6
+            # The cubic has no data range of its own, so the difference may straddle the NASA range's ends.
+            step = _RESIDUAL_CP_STEP
             cp += (self._residual(T + step, P)[0] - self._residual(T - step, P)[0]) / (2.0 * step)
         return cp
 
