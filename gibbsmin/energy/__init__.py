@@ -79,3 +79,7 @@ from .results import SIGN_CONVENTION as SIGN_CONVENTION
 from .results import energy_extras as energy_extras
 from .results import energy_figures as energy_figures
 from .results import with_extras as with_extras
+from .compression import Compression as Compression
+from .compression import Letdown as Letdown
+from .compression import compress as compress
+from .compression import expand_adiabatic as expand_adiabatic

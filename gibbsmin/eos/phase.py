@@ -1,7 +1,7 @@
 """The gas model of a System's gas phase: which species the cubic describes, and with which kij.
 
 Also the same model applied to a measured gas given by name (``ln_phi_of_gas``,
-``residual_enthalpy_of_gas``), as the approach, carbon and audit code need it.
+``residual_enthalpy_of_gas``, ``residual_entropy_of_gas``), as the approach, carbon and audit code need it.
 """
 
 from __future__ import annotations
@@ -278,8 +278,25 @@ def residual_enthalpy_of_gas(amounts: Mapping[str, float], T: float, P: float, g
     Species without critical constants are left out, as in :func:`gas_phase`;
     zero for the ideal gas.
     """
+    H_res_RT, _, total = _residuals_of_gas(amounts, T, P, gas, kij, db)
+    return float(total * R * T * H_res_RT)
+
+
+def residual_entropy_of_gas(amounts: Mapping[str, float], T: float, P: float, gas: str, *,
+                            kij: str | Mapping[tuple[str, str], float] | None = "shipped",
+                            db: SpeciesDatabase | None = None) -> float:
+    """Residual entropy s - s_ideal (the ideal gas at the same T, P and composition) of a gas given as species
+    amounts [mol] at T [K], P [Pa], [J/K]; species and models as in :func:`residual_enthalpy_of_gas`."""
+    _, S_res_R, total = _residuals_of_gas(amounts, T, P, gas, kij, db)
+    return float(total * R * S_res_R)
+
+
+def _residuals_of_gas(amounts, T, P, gas, kij, db) -> tuple[float, float, float]:
+    """H_res/RT and S_res/R of the described species' mixture, and their total amount [mol]; zeros for the ideal
+    gas."""
     if canonical_model_name(gas) == "ideal" or not any(v > 0.0 for v in amounts.values()):
-        return 0.0
+        return 0.0, 0.0, 0.0
     model, _, described_amounts, _ = model_of_gas(amounts, gas, kij, db)
     total = float(described_amounts.sum())
-    return float(total * R * T * model.properties(float(T), float(P), described_amounts / total).H_res_RT)
+    found = model.properties(float(T), float(P), described_amounts / total)
+    return float(found.H_res_RT), float(found.S_res_R), total
