@@ -255,10 +255,10 @@ def mole_fraction_sum_error(result: FlashResult, z: Mapping[str, float]) -> floa
     return worst if math.isfinite(worst) else math.inf
 
 
-def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
-                              gas: str = "peng-robinson", quantum_correction: bool = True) -> float:
-    """thermo's residual (departure) enthalpy [J] of ``amounts`` [mol] as one phase at T [K], P [Pa]: on the
-    vapour root (``root="gas"``) or the liquid root (any other phase name), gibbsmin's constants and kij."""
+def thermo_phase(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
+                 gas: str = "peng-robinson", quantum_correction: bool = True):
+    """thermo's CEOSGas (``root="gas"``) or CEOSLiquid (any other phase name) of ``amounts`` [mol] as one phase
+    at T [K], P [Pa], with gibbsmin's constants and kij; the species with no amount are left out."""
     present = {name: n for name, n in amounts.items() if n > 0.0}
     names, zs = _split(present)
     Tc, Pc, omega = _constants_at(names, T, quantum_correction)
@@ -267,5 +267,12 @@ def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, 
     given = {"Tcs": Tc, "Pcs": Pc, "omegas": omega,
              "kijs": kij.tolist() if kij is not None else [[0.0] * n for _ in range(n)]}
     eos = THERMO_CLASSES[gas]
-    phase = (CEOSGas if root == "gas" else CEOSLiquid)(eos, given, T=T, P=P, zs=zs)
-    return float(phase.H_dep()) * sum(present.values())
+    return (CEOSGas if root == "gas" else CEOSLiquid)(eos, given, T=T, P=P, zs=zs)
+
+
+def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
+                              gas: str = "peng-robinson", quantum_correction: bool = True) -> float:
+    """thermo's residual (departure) enthalpy [J] of ``amounts`` [mol] as one phase at T [K], P [Pa]: on the
+    vapour root (``root="gas"``) or the liquid root (any other phase name), gibbsmin's constants and kij."""
+    phase = thermo_phase(amounts, T, P, root=root, gas=gas, quantum_correction=quantum_correction)
+    return float(phase.H_dep()) * sum(n for n in amounts.values() if n > 0.0)
