@@ -198,7 +198,8 @@ def _check_loop(loop: Mapping) -> None:
 def reference_ammonia_loop(tolerance: float = 1e-12, max_passes: int = 5000,
                            loop: Mapping = REFERENCE_LOOP) -> LoopReference:
     """The loop solved by successive substitution on its tear stream until no stream's flow changes by more
-    than ``tolerance`` (relative) in a pass; RuntimeError after ``max_passes`` passes without it."""
+    than ``tolerance`` (relative) in a pass; RuntimeError after ``max_passes`` passes without it.  ``loop`` has
+    REFERENCE_LOOP's shape and species (a variant of its numbers, for a test)."""
     _check_loop(loop)
     start = time.perf_counter()
     streams: dict[str, dict] = {name: _boundary_flows(spec) for name, spec in loop["boundary_in"].items()}

@@ -88,3 +88,10 @@ def test_reference_separator_phases_have_equal_fugacities_by_thermo():
         ln_f[root] = np.log(np.array(phase.zs) * P) + np.array(phase.lnphis())
     assert np.max(np.abs(ln_f["gas"] - ln_f["liquid"])) < 1e-8
     assert streams["product"]["NH3"] > 0.9 * sum(streams["product"].values())  # a real liquid, not the vapour twice
+
+
+def test_reference_loop_refuses_an_inert_species_the_balance_does_not_hold():
+    operations = tuple({**op, "inert": ("NH3",)} if op["kind"] == "reactor" else op
+                       for op in REFERENCE_LOOP["operations"])
+    with pytest.raises(ValueError, match="NH3 shares all its elements"):
+        reference_ammonia_loop(loop={**REFERENCE_LOOP, "operations": operations})
