@@ -98,7 +98,8 @@ def _constants_at(names: tuple[str, ...], T: float, quantum_correction: bool):
 
 
 @functools.lru_cache(maxsize=256)
-def _flasher(names: tuple[str, ...], gas: str, constants: tuple[tuple[float, ...], ...]) -> FlashVL:
+def _flasher(names: tuple[str, ...], gas: str, constants: tuple[tuple[float, ...], ...],
+             ss_tolerance: float | None = None) -> FlashVL:
     Tc, Pc, omega = (list(c) for c in constants)
     kij = shipped_kij_matrix(gas, list(names))
     n = len(names)
@@ -107,7 +108,10 @@ def _flasher(names: tuple[str, ...], gas: str, constants: tuple[tuple[float, ...
     molar_masses = _critical(names)[3]
     package = ChemicalConstantsPackage(Tcs=Tc, Pcs=Pc, omegas=omega, MWs=molar_masses, names=list(names))
     eos = THERMO_CLASSES[gas]
-    return FlashVL(package, None, liquid=CEOSLiquid(eos, given), gas=CEOSGas(eos, given))
+    flasher = FlashVL(package, None, liquid=CEOSLiquid(eos, given), gas=CEOSGas(eos, given))
+    if ss_tolerance is not None:
+        flasher.PT_SS_TOL = ss_tolerance
+    return flasher
 
 
 def _split(z: Mapping[str, float]) -> tuple[tuple[str, ...], list[float]]:
@@ -123,11 +127,15 @@ def _pseudo_critical_volume(names, zs, Tc, Pc, gas: str) -> float:
 
 
 def thermo_flash(z: Mapping[str, float], T: float, P: float, *, gas: str = "peng-robinson",
-                 quantum_correction: bool = True) -> FlashResult:
-    """thermo's vapour-liquid flash of feed ``z`` (amounts by species name) at T [K], P [Pa]."""
+                 quantum_correction: bool = True, ss_tolerance: float | None = None) -> FlashResult:
+    """thermo's vapour-liquid flash of feed ``z`` (amounts by species name) at T [K], P [Pa].
+
+    ``ss_tolerance`` replaces thermo's tolerance of its successive substitution (FlashVL.PT_SS_TOL, 1e-13,
+    which leaves about 4e-8 between the phases' ln f at an ammonia separator; 1e-26 leaves 3e-14).
+    """
     names, zs = _split(z)
     Tc, Pc, omega = _constants_at(names, T, quantum_correction)
-    flasher = _flasher(names, gas, (tuple(Tc), tuple(Pc), tuple(omega)))
+    flasher = _flasher(names, gas, (tuple(Tc), tuple(Pc), tuple(omega)), ss_tolerance)
     state = flasher.flash(T=T, P=P, zs=zs)
     phases = sorted(zip(state.phases, state.betas), key=lambda pair: pair[0].rho())
     if len(phases) == 1:
@@ -255,10 +263,10 @@ def mole_fraction_sum_error(result: FlashResult, z: Mapping[str, float]) -> floa
     return worst if math.isfinite(worst) else math.inf
 
 
-def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
-                              gas: str = "peng-robinson", quantum_correction: bool = True) -> float:
-    """thermo's residual (departure) enthalpy [J] of ``amounts`` [mol] as one phase at T [K], P [Pa]: on the
-    vapour root (``root="gas"``) or the liquid root (any other phase name), gibbsmin's constants and kij."""
+def thermo_phase(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
+                 gas: str = "peng-robinson", quantum_correction: bool = True):
+    """thermo's CEOSGas (``root="gas"``) or CEOSLiquid (any other phase name) of ``amounts`` [mol] as one phase
+    at T [K], P [Pa], with gibbsmin's constants and kij; the species with no amount are left out."""
     present = {name: n for name, n in amounts.items() if n > 0.0}
     names, zs = _split(present)
     Tc, Pc, omega = _constants_at(names, T, quantum_correction)
@@ -267,5 +275,12 @@ def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, 
     given = {"Tcs": Tc, "Pcs": Pc, "omegas": omega,
              "kijs": kij.tolist() if kij is not None else [[0.0] * n for _ in range(n)]}
     eos = THERMO_CLASSES[gas]
-    phase = (CEOSGas if root == "gas" else CEOSLiquid)(eos, given, T=T, P=P, zs=zs)
-    return float(phase.H_dep()) * sum(present.values())
+    return (CEOSGas if root == "gas" else CEOSLiquid)(eos, given, T=T, P=P, zs=zs)
+
+
+def thermo_departure_enthalpy(amounts: Mapping[str, float], T: float, P: float, *, root: str = "gas",
+                              gas: str = "peng-robinson", quantum_correction: bool = True) -> float:
+    """thermo's residual (departure) enthalpy [J] of ``amounts`` [mol] as one phase at T [K], P [Pa]: on the
+    vapour root (``root="gas"``) or the liquid root (any other phase name), gibbsmin's constants and kij."""
+    phase = thermo_phase(amounts, T, P, root=root, gas=gas, quantum_correction=quantum_correction)
+    return float(phase.H_dep()) * sum(n for n in amounts.values() if n > 0.0)
