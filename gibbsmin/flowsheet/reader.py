@@ -29,6 +29,7 @@ from .material import Material
 from .model import DesignSpecification, Flowsheet
 from .units import (
     ComponentSplitter,
+    Compressor,
     Context,
     Exchanger,
     FluidModel,
@@ -239,9 +240,18 @@ def _component_splitter(section, common, model, P):
     return ComponentSplitter(**common, recovery=recovery)
 
 
+def _compressor(section, common, model, P):
+    if P is None:
+        raise section.error(None, "a compressor needs its outlet pressure, e.g. P = '195 bar'")
+    efficiency = section.get("efficiency", read_positive_number, hint="its isentropic efficiency, e.g. 0.75")
+    if not 0.0 < efficiency <= 1.0:
+        raise section.error("efficiency", f"an isentropic efficiency lies between 0 and 1, got {efficiency!r}")
+    return Compressor(**common, P=P, efficiency=efficiency, **model)
+
+
 _BUILDERS: dict[str, Callable] = {"mixer": _mixer, "heater": _exchanger, "cooler": _exchanger, "valve": _valve,
                                   "separator": _separator, "splitter": _splitter,
-                                  "component splitter": _component_splitter}
+                                  "component splitter": _component_splitter, "compressor": _compressor}
 
 
 def _read_specification(section: Section, index: int, feeds: Mapping[str, Material], units: tuple[Unit, ...],

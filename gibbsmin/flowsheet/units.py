@@ -6,7 +6,7 @@ T (or at the T its duty sets), a valve the adiabatic flash at its outlet pressur
 its vapour and liquid, a reactor a case stage.  Nothing reacts outside a reactor: every species is inert there,
 except water with the ideal gas, which may condense as pure ``H2O(l)`` (a phase change only).  With a cubic gas
 model the same cubic describes the liquid solution that may form.  A splitter and a component splitter only
-share flows; a compressor (``compressor.py``) takes the gas model's entropy.
+share flows; a compressor takes the gas model's entropy.
 """
 
 from __future__ import annotations
@@ -20,12 +20,13 @@ from ..api import prepared_for
 from ..case.run import StageInlet, separator_outlets, settle_stage
 from ..case.scope import LIQUID_WATER, stage_scope
 from ..case.services import SERVICES
-from ..case.spec import Case, Stage
+from ..case.spec import Case, ReportSpec, SpeciesSpec, Stage
+from ..energy.compression import compress
 from ..equilibrium import Equilibrium
 from ..errors import InputError
 from ..prepared import Specification
 from ..reactions import reaction
-from ..thermo import SpeciesDatabase
+from ..thermo import SpeciesDatabase, default_database
 from .material import Material, added, cleaned, scaled
 
 
@@ -36,6 +37,14 @@ class Context:
 
     case: Case
     db: SpeciesDatabase
+
+    @classmethod
+    def of(cls, *, species: tuple[str, ...] | None = None, frozen: tuple[str, ...] = (), exclude: tuple[str, ...] = (),
+           db: SpeciesDatabase | None = None) -> Context:
+        """The context of a flowsheet built in Python: the reactors' species set (``species``: None for every
+        species of the feeds' elements), the species no reactor converts (``frozen``), and the database."""
+        spec = SpeciesSpec(None if species is None else tuple(species), tuple(exclude), tuple(frozen))
+        return cls(Case("flowsheet", (), spec, (), ReportSpec(), None, "<flowsheet>"), db or default_database())
 
 
 @dataclass(frozen=True)
@@ -281,6 +290,27 @@ class ComponentSplitter(Unit):
     def carries(self, species, outlet, context):
         share = self.recovery.get(species, 0.0)
         return share > 0.0 if outlet == self.outlets[0] else share < 1.0
+
+
+@dataclass(frozen=True)
+class Compressor(Unit):
+    """A compressor or circulator: the gas to ``P`` with isentropic ``efficiency``, by the gas model's entropy;
+    ``power_W`` is the shaft power taken (H_out - H_in)."""
+
+    P: float = 0.0
+    efficiency: float = 1.0
+    model: FluidModel = FluidModel()
+    kind: ClassVar[str] = "compressor"
+    variables: ClassVar[tuple[str, ...]] = ("P",)
+
+    def run(self, inputs, context):
+        inlet = inputs[0]
+        if inlet.liquid_fraction > 0.0 or any(not context.db[s].is_gas for s in inlet.flows):
+            raise InputError(f"compressor {self.name!r}: its inlet holds a liquid; a compressor takes a gas (put a "
+                             "separator before it)")
+        done = compress(inlet.flows, inlet.T, inlet.P, self.P, efficiency=self.efficiency, gas=self.model.gas,
+                        kij=self.model.kij, db=context.db)
+        return Outcome((Material(done.T_out, self.P, dict(inlet.flows)),), duty_W=0.0, power_W=done.power_W)
 
 
 @dataclass(frozen=True)
