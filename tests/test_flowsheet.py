@@ -168,3 +168,22 @@ def test_random_loops_converge_certified(purge, converter_T, separator_T):
     product = result.streams["product"]
     assert product.flows["NH3"] / product.total > 0.9  # the liquid is ammonia (common practice, no source)
     assert not math.isnan(result.streams["recycle"].T)
+
+
+def test_a_sweep_marks_each_point_and_warm_starts_its_neighbours():
+    from gibbsmin.flowsheet.sweep import sweep_flowsheet
+
+    axes = {"pressure": [170e5, 190e5], "purge split.fraction": [0.03, 0.05]}
+    points = sweep_flowsheet(reference_flowsheet(), axes, CONTEXT)
+    assert [p.values for p in points] == [{"pressure": P, "purge split.fraction": f}
+                                          for P in (170e5, 190e5) for f in (0.03, 0.05)]
+    assert all(p.converged and p.result.certificate.certified for p in points)
+    at_reference = points[3].result  # 190 bar, but a 5 % purge: more purge, fewer inerts than at 4 %
+    assert at_reference.streams["converter feed"].P == pytest.approx(190e5, rel=1e-12)
+    inerts = [p.result.streams["converter feed"].fraction(("CH4", "Ar")) for p in points]
+    assert inerts[0] > inerts[1] and inerts[2] > inerts[3]
+    # A higher loop pressure condenses more ammonia at the same separator T (common practice, no source).
+    assert points[2].result.streams["product"].flows["NH3"] > points[0].result.streams["product"].flows["NH3"]
+    # The warm-started neighbour needs fewer passes than a cold start.
+    cold = settle_flowsheet(reference_flowsheet(0.05), CONTEXT)
+    assert points[3].result.certificate.passes < cold.certificate.passes

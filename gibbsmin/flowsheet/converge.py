@@ -256,11 +256,13 @@ def tear_residual(s: Structure, tears: Mapping[str, Material], computed: Mapping
     return worst, where
 
 
-def settle_flowsheet(sheet: Flowsheet, context: Context | None = None) -> FlowsheetResult:
+def settle_flowsheet(sheet: Flowsheet, context: Context | None = None, *,
+                     start: FlowsheetResult | None = None) -> FlowsheetResult:
     """Converge ``sheet``: tear streams and design specifications together; raises ConvergenceError when it cannot.
 
     ``context`` holds the species set the reactors see and the database (default: every species of the feeds'
-    elements, the default data set; ``Context.of(...)``)."""
+    elements, the default data set; ``Context.of(...)``).  ``start``: a converged neighbour (a sweep's last
+    point) whose tear streams and settings are the first guess; otherwise the tear streams start empty."""
     context = context or Context.of()
     db = context.db
     s = structure(sheet.units, tuple(sheet.feeds), sheet.tears)
@@ -271,6 +273,10 @@ def settle_flowsheet(sheet: Flowsheet, context: Context | None = None) -> Flowsh
     first = next(iter(sheet.feeds.values()))
     tears = {name: Material(first.T, first.P, {}) for name in s.tears}
     settings = {spec.name: _start_value(sheet, spec) for spec in sheet.specifications}
+    if start is not None and start.structure.tears == s.tears:
+        tears = {name: start.streams[name] for name in s.tears}
+        settings = {name: min(max(start.settings.get(name, v), spec.low), spec.high)
+                    for (name, v), spec in zip(settings.items(), sheet.specifications)}
     history: list[float] = []
     previous = None
     # Successive substitution: the start (and the whole of a flowsheet without specifications' first passes).

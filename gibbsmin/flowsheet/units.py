@@ -162,6 +162,7 @@ class Mixer(Unit):
     model: FluidModel = FluidModel()
 
     kind: ClassVar[str] = "mixer"
+    variables: ClassVar[tuple[str, ...]] = ("P",)
     inlet_count: ClassVar[tuple[int, int | None]] = (1, None)
 
     def run(self, inputs, context):
@@ -186,7 +187,7 @@ class Exchanger(Unit):
     P: float | None = None
     model: FluidModel = FluidModel()
     kind: ClassVar[str] = "exchanger"
-    variables: ClassVar[tuple[str, ...]] = ("T", "duty")
+    variables: ClassVar[tuple[str, ...]] = ("T", "duty", "P")
 
     def run(self, inputs, context):
         inlet = inputs[0]
@@ -222,7 +223,7 @@ class Separator(Unit):
     P: float | None = None
     model: FluidModel = FluidModel()
     kind: ClassVar[str] = "separator"
-    variables: ClassVar[tuple[str, ...]] = ("T",)
+    variables: ClassVar[tuple[str, ...]] = ("T", "P")
     outlet_count: ClassVar[tuple[int, int | None]] = (2, 2)
 
     def run(self, inputs, context):
@@ -320,13 +321,14 @@ class Reactor(Unit):
 
     stage: Stage | None = None
     kind: ClassVar[str] = "reactor"
-    variables: ClassVar[tuple[str, ...]] = ("T",)
+    variables: ClassVar[tuple[str, ...]] = ("T", "P")
     inlet_count: ClassVar[tuple[int, int | None]] = (1, None)
 
     def with_value(self, variable, value):
-        if variable != "T" or self.stage is None or self.stage.adiabatic:
-            return super().with_value(variable, value)
-        return dataclasses.replace(self, stage=dataclasses.replace(self.stage, T=float(value)))
+        if variable not in self.variables or (variable == "T" and self.stage.adiabatic):
+            raise InputError(f"reactor {self.name!r}: a specification or sweep can vary its T (not adiabatic) or P, "
+                             f"not {variable!r}")
+        return dataclasses.replace(self, stage=dataclasses.replace(self.stage, **{variable: float(value)}))
 
     def run(self, inputs, context):
         stage = self.stage
