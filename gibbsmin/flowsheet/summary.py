@@ -213,10 +213,18 @@ def _inerts(reactors, inlets, streams, change, context, db) -> tuple[dict[str, f
         return {}, ""
     inlet = _folded(added(*(streams[name].flows for name in inlets)), db)
     total = sum(inlet.values())
-    if context is not None:
-        held = [sp for sp in inlet if not any(r.consumes(sp, context) for r in reactors)]
-        basis = "species no reactor consumes (each reactor's frozen species, reactions and the noble gases)"
-    else:
-        held = [sp for sp in inlet if abs(change.get(sp, 0.0)) <= _UNCHANGED * inlet[sp]]
-        basis = "species whose flow the reactors leave unchanged (no context given to ask the reactors)"
+    held, basis = inert_species(reactors, inlet, streams, db, context)
     return {sp: inlet[sp] / total for sp in held}, basis
+
+
+def inert_species(reactors, flows: Mapping[str, float], streams: Mapping[str, Material], db: SpeciesDatabase,
+                  context: Context | None = None) -> tuple[list[str], str]:
+    """The species of ``flows`` that none of ``reactors`` consumes, and how that was told: by each reactor's own rule
+    with the context, else by their flows unchanged over the reactors."""
+    if context is not None:
+        held = [sp for sp in flows if not any(r.consumes(sp, context) for r in reactors)]
+        return held, "species no reactor consumes (each reactor's frozen species, reactions and the noble gases)"
+    change = _net_change(reactors, streams, db)
+    inflow = _folded(added(*(streams[name].flows for r in reactors for name in r.inlets)), db)
+    held = [sp for sp in flows if abs(change.get(sp, 0.0)) <= _UNCHANGED * inflow.get(sp, 0.0)]
+    return held, "species whose flow the reactors leave unchanged (no context given to ask the reactors)"
