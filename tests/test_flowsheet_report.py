@@ -16,16 +16,11 @@ from gibbsmin.report import CAUTION, render_text
 from gibbsmin.report.files import write_report_files
 from gibbsmin.report.flowsheet import flowsheet_json, flowsheet_report, write_audit_files
 
-from test_flowsheet_summary import MAKEUP, ammonia_loop
+from test_flowsheet_summary import MAKEUP, loop  # noqa: F401 (loop: the converged loop, a fixture)
 
 #: kmol/h in mol/s (definition).
 KMOL_H = 1000.0 / 3600.0
 CLOSURES = ("element closure", "mass closure", "component closure")
-
-
-@pytest.fixture(scope="module")
-def loop():
-    return ammonia_loop()
 
 
 def test_json_keys_and_values(loop):

@@ -293,7 +293,8 @@ def audit_unit_description(result: FlowsheetResult, db: SpeciesDatabase | None =
                            context: Context | None = None, stream_table_file: str = "streams.csv") -> str:
     """The unit description (TOML) ``gibbsmin audit`` reads beside :func:`audit_stream_table`."""
     db = db or default_database()
-    lines = [f"# The units of {result.flowsheet.title!s}, written by gibbsmin {__version__} from its converged "
+    title = " ".join(result.flowsheet.title.split())  # one line, inside a comment
+    lines = [f"# The units of {title}, written by gibbsmin {__version__} from its converged "
              "flowsheet, for:", f"#   gibbsmin audit {stream_table_file} units.toml", "",
              "[plant]", f"title = {_toml_text(result.flowsheet.title + ' (gibbsmin flowsheet)')}",
              f"stream_table = {_toml_text(stream_table_file)}", ""]
