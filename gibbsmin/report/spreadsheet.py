@@ -70,9 +70,20 @@ def render_csv(report: Report) -> str:
         out.write(_comment(f"table {table.key}: {table.title}" if table.key else f"table: {table.title}"))
         for note in table.notes:
             out.write(_comment(note))
-        writer.writerow([_safe_text(c.title) for c in table.columns])
-        for row in table.rows:
-            writer.writerow([_csv_value(v) for v in row])
+        _write_table(writer, table)
+    return out.getvalue()
+
+
+def _write_table(writer, table: Table) -> None:
+    writer.writerow([_safe_text(c.title) for c in table.columns])
+    for row in table.rows:
+        writer.writerow([_csv_value(v) for v in row])
+
+
+def render_table_csv(table: Table) -> str:
+    """One table alone as CSV: its header row and its rows, nothing else (a file another reader takes as it is)."""
+    out = io.StringIO()
+    _write_table(csv.writer(out, lineterminator="\n"), table)
     return out.getvalue()
 
 
