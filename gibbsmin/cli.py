@@ -22,12 +22,15 @@ from pathlib import Path
 from tqdm import tqdm
 
 from . import audit
-from .case import CASE_KEYS, read_case, settle_case
+from .case import CASE_KEYS, TomlSource, read_case, settle_case
 from .errors import ConvergenceError, GibbsminError, UnknownSpeciesError
+from .flowsheet import settle_flowsheet
+from .flowsheet.reader import FLOWSHEET_KEYS, flowsheet_of, is_flowsheet
 from .formula import ATOMIC_WEIGHTS
 from .report.audit import audit_document, audit_report
 from .report.document import VERDICTS
 from .report.files import write_report_files
+from .report.flowsheet import flowsheet_json, flowsheet_report, write_audit_files
 from .report.settle import settle_document, settle_report
 from .report.text import render_text
 from .sweep import command as sweep_command
@@ -161,10 +164,16 @@ def _ticker(bar) -> Callable[[str], None]:
 
 def _settle(args: argparse.Namespace) -> int:
     if args.keys:
-        sys.stdout.write(_keys_text(CASE_KEYS))
+        sys.stdout.write(_keys_text({**CASE_KEYS, **FLOWSHEET_KEYS}))
         return OK
     if args.case is None:
         raise _UsageError("settle needs a case file, e.g. gibbsmin settle examples/reformer.toml")
+    source = TomlSource.from_file(args.case)
+    if is_flowsheet(source):
+        return _settle_flowsheet(source, args)
+    if args.audit_files:
+        raise _UsageError("--audit-files goes with a flowsheet case file ([[unit]] tables), whose streams the audit "
+                          "can read back")
     case = read_case(args.case)
     if args.uncertainty:
         case = case.with_uncertainty()
@@ -174,6 +183,26 @@ def _settle(args: argparse.Namespace) -> int:
     _write_outputs(report, args)
     if args.json:
         _print_json(settle_document(result))
+    elif not args.quiet:
+        sys.stdout.write(render_text(report))
+    return CHECKS_FAILED if _fails(args.fail_on, _worst_verdict(report)) else OK
+
+
+def _settle_flowsheet(source: TomlSource, args: argparse.Namespace) -> int:
+    """A flowsheet case file: converged, then reported as any case (and its streams written for the audit)."""
+    if args.uncertainty:
+        raise _UsageError("--uncertainty is not yet propagated through a flowsheet; settle its reactors as a case of "
+                          "stages for their uncertainty")
+    case = flowsheet_of(source)
+    context = case.context()
+    result = settle_flowsheet(case.flowsheet, context)
+    flow_unit = case.report.flow_unit
+    report = flowsheet_report(result, context.db, case.product, context, flow_unit=flow_unit)
+    _write_outputs(report, args)
+    if args.audit_files:
+        write_audit_files(result, args.audit_files, context.db, context, flow_unit=flow_unit)
+    if args.json:
+        _print_json(flowsheet_json(result, context.db, case.product, context))
     elif not args.quiet:
         sys.stdout.write(render_text(report))
     return CHECKS_FAILED if _fails(args.fail_on, _worst_verdict(report)) else OK
@@ -284,6 +313,9 @@ def _settle_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--uncertainty", action="store_true",
                    help="show the standard uncertainty from the data set's formation enthalpies beside each figure "
                         "(as [conditions] uncertainty = true in every stage; needs data = 'atct-anchored')")
+    p.add_argument("--audit-files", metavar="FOLDER",
+                   help="a flowsheet: also write its stream table and unit description there (streams.csv, "
+                        "units.toml), which `gibbsmin audit` reads back")
     _add_fail_on(p, "a verdict of the report (an uncertified answer, a carbon check)")
     _add_outputs(p)
 

@@ -7,6 +7,7 @@ summary.py's code paths (stoichiometry, atom counts, totals), to round-off.
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 
 import pytest
@@ -39,7 +40,7 @@ def ammonia_loop():
         Splitter("purge split", ("separator vapour",), ("purge", "recycle"), fraction=PURGE_FRACTION),
     )
     sheet = Flowsheet("Invented ammonia loop", {"makeup": Material(313.15, 190e5, dict(MAKEUP))}, units)
-    return settle_flowsheet(sheet, db, context), db, context
+    return settle_flowsheet(sheet, context), db, context
 
 
 @pytest.fixture(scope="module")
@@ -95,7 +96,7 @@ def test_inerts_at_converter_inlet(loop):
     assert s.inerts["Ar"] == pytest.approx(feed["Ar"] / total, rel=1e-12)
     assert s.inert_fraction == pytest.approx((feed["CH4"] + feed["Ar"]) / total, rel=1e-12)
     # Without the context the inerts are told by their unchanged flows over the converter: the same two here.
-    plain = loop_summary(result, db)
+    plain = loop_summary(dataclasses.replace(result, context=None), db)
     assert set(plain.inerts) == {"CH4", "Ar"} and plain.inert_fraction == pytest.approx(s.inert_fraction, rel=1e-12)
     assert "no context" in plain.inert_basis
 
@@ -131,7 +132,7 @@ def test_no_reactor_no_recycle_gives_none_and_an_exchanger_duty():
     sheet = Flowsheet("cooler", {"gas": feed}, (
         Exchanger("cooler", ("gas",), ("cooled",), T=320.0),
         Splitter("tee", ("cooled",), ("a", "b"), fraction=0.25)))
-    result = settle_flowsheet(sheet, db, context)
+    result = settle_flowsheet(sheet, context)
     s = loop_summary(result, db, context=context)
     assert s.product is None and s.production_mol_s is None and s.production_basis is None
     assert s.key_reactant is None and s.conversion_per_pass is None and s.reactor_inlets == ()
@@ -150,7 +151,7 @@ def test_all_outlets_basis_for_a_gas_product():
     context = Context(Case("invented tee", (), SpeciesSpec(), (), ReportSpec()), db)
     sheet = Flowsheet("tee", {"gas": Material(400.0, 20e5, {"H2": 3.0, "N2": 1.0})},
                       (Splitter("tee", ("gas",), ("a", "b"), fraction=0.25),))
-    result = settle_flowsheet(sheet, db, context)
+    result = settle_flowsheet(sheet, context)
     s = loop_summary(result, db, product="H2", context=context)
     assert s.production_basis == ALL_OUT_BASIS and s.product_streams == ("a", "b")
     assert s.production_mol_s == pytest.approx(3.0, rel=1e-12) and s.product_elsewhere_mol_s == 0.0

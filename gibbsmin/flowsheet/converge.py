@@ -91,6 +91,7 @@ class FlowsheetResult:
     settings: Mapping[str, float]
     certificate: FlowsheetCertificate
     history: tuple[float, ...]
+    context: Context | None = None
 
     @property
     def units(self) -> tuple[Unit, ...]:
@@ -340,7 +341,7 @@ def settle_flowsheet(sheet: Flowsheet, context: Context | None = None, *,
     for name in s.tears:
         streams[name] = streams.pop("computed " + name)
     certificate = _certificate(s, streams, outcomes, db, change, miss, ev, jacobians)
-    return FlowsheetResult(sheet, s, streams, outcomes, settings_now, certificate, tuple(history))
+    return FlowsheetResult(sheet, s, streams, outcomes, settings_now, certificate, tuple(history), context)
 
 
 def _step(J, x, F, lower, upper, ev: _Pass):

@@ -31,7 +31,8 @@ from .units import (
     ComponentSplitter,
     Compressor,
     Context,
-    Exchanger,
+    Cooler,
+    Heater,
     FluidModel,
     Mixer,
     Reactor,
@@ -205,7 +206,8 @@ def _exchanger(section, common, model, P):
     if ("T" in section) == ("duty" in section):
         raise section.error(None, "a heater or cooler needs its outlet T (e.g. T = '40 degC') or its duty "
                             "(e.g. duty = '-12 MW'), not both")
-    return Exchanger(**common, T=section.get("T", read_temperature, None), duty=section.get("duty", read_power, None),
+    kind = Heater if section.data["type"] == "heater" else Cooler
+    return kind(**common, T=section.get("T", read_temperature, None), duty=section.get("duty", read_power, None),
                      P=P, **model)
 
 

@@ -117,6 +117,7 @@ def loop_summary(result: FlowsheetResult, db: SpeciesDatabase, product: str | No
     recycle = _recycle_streams(result)
     feed_total = sum(streams[name].total for name in s.boundary_in)
     ratio = sum(streams[name].total for name in recycle) / feed_total if recycle and feed_total > 0 else None
+    context = context or result.context
     inerts, inert_basis = _inerts(reactors, inlets, streams, change, context, db)
     purges = tuple(name for name in s.boundary_out
                    if isinstance(units[s.sources[name]], Splitter) and streams[name].liquid_fraction == 0.0)

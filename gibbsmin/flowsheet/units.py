@@ -198,6 +198,16 @@ class Exchanger(Unit):
 
 
 @dataclass(frozen=True)
+class Heater(Exchanger):
+    kind: ClassVar[str] = "heater"
+
+
+@dataclass(frozen=True)
+class Cooler(Exchanger):
+    kind: ClassVar[str] = "cooler"
+
+
+@dataclass(frozen=True)
 class Valve(Unit):
     """An adiabatic let-down to ``P`` (the flash at constant enthalpy)."""
 

@@ -293,6 +293,7 @@ def audit_unit_description(result: FlowsheetResult, db: SpeciesDatabase | None =
                            context: Context | None = None, stream_table_file: str = "streams.csv") -> str:
     """The unit description (TOML) ``gibbsmin audit`` reads beside :func:`audit_stream_table`."""
     db = db or default_database()
+    context = context or result.context
     title = " ".join(result.flowsheet.title.split())  # one line, inside a comment
     lines = [f"# The units of {title}, written by gibbsmin {__version__} from its converged "
              "flowsheet, for:", f"#   gibbsmin audit {stream_table_file} units.toml", "",
