@@ -200,6 +200,7 @@ def _settle_flowsheet(source: TomlSource, args: argparse.Namespace) -> int:
     report = flowsheet_report(result, context.db, case.product, context, flow_unit=flow_unit)
     _write_outputs(report, args)
     if args.audit_files:
+        Path(args.audit_files).mkdir(parents=True, exist_ok=True)
         write_audit_files(result, args.audit_files, context.db, context, flow_unit=flow_unit)
     if args.json:
         _print_json(flowsheet_json(result, context.db, case.product, context))
