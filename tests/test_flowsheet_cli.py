@@ -146,3 +146,14 @@ def test_bad_flowsheet_files_get_one_clear_line(edit, message, tmp_path, capsys)
     assert main(["settle", str(path)]) == BAD_INPUT
     err = capsys.readouterr().err
     assert message in err and "Traceback" not in err
+
+
+def test_the_invented_plant_front_end_runs_as_a_train(capsys):
+    doc = settle_json(EXAMPLES / "plant" / "front_end.toml", capsys)
+    assert doc["flowsheet"]["converged"] and doc["flowsheet"]["element_balance_residual"] <= 1e-12
+    assert doc["flowsheet"]["passes"] == 1  # no recycle: every unit once
+    gas = doc["streams"]["synthesis gas"]["flows_mol_s"]
+    # A methanator outlet holds no more than traces of CO and CO2 and about 3 H2 per N2 for the ammonia loop
+    # (common practice, no source).
+    assert (gas.get("CO", 0.0) + gas.get("CO2", 0.0)) / sum(gas.values()) < 1e-4
+    assert 2.8 < gas["H2"] / gas["N2"] < 3.6

@@ -279,6 +279,10 @@ def settle_flowsheet(sheet: Flowsheet, context: Context | None = None, *,
         settings = {name: min(max(start.settings.get(name, v), spec.low), spec.high)
                     for (name, v), spec in zip(settings.items(), sheet.specifications)}
     history: list[float] = []
+    if not s.tears and not sheet.specifications:  # a train: every unit once, in order
+        streams, outcomes = ev.run({}, {}, every_unit=True)
+        certificate = _certificate(s, streams, outcomes, db, 0.0, 0.0, ev, 0)
+        return FlowsheetResult(sheet, s, streams, outcomes, {}, certificate, (0.0,), context)
     previous = None
     # Successive substitution: the start (and the whole of a flowsheet without specifications' first passes).
     for _ in range(_START_PASSES if s.tears else 1):

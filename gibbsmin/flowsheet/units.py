@@ -348,8 +348,9 @@ class Reactor(Unit):
                            {n: m.T for n, m in zip(self.inlets, inputs) if not m.empty},
                            any(m.liquid_fraction > 0.0 for m in inputs),
                            {n: m.P for n, m in zip(self.inlets, inputs) if not m.empty})
-        scope = stage_scope(context.case, stage, inlet.mixed, context.db)
-        eq = settle_stage(context.case, stage, scope, inlet, context.db)
+        case = _holding_present(context.case, inlet.mixed)
+        scope = stage_scope(case, stage, inlet.mixed, context.db)
+        eq = settle_stage(case, stage, scope, inlet, context.db)
         duty = eq.energy.duty_W if eq.energy is not None else None
         return Outcome((material_of(eq),), duty_W=None if duty is None else float(duty), equilibrium=eq)
 
@@ -363,6 +364,14 @@ class Reactor(Unit):
         if names is None:
             return True
         return any(species in reaction(name, db=context.db).species for name in names)
+
+
+def _holding_present(case: Case, flows: Mapping[str, float]) -> Case:
+    """The flowsheet's frozen species that this reactor's inlet holds (a loop's inerts need not be everywhere)."""
+    present = tuple(s for s in case.species.frozen if flows.get(s, 0.0) > 0.0)
+    if present == case.species.frozen:
+        return case
+    return dataclasses.replace(case, species=dataclasses.replace(case.species, frozen=present))
 
 
 #: Gases no reactor turns into anything else.
