@@ -18,7 +18,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from ..thermo import SpeciesDatabase
-from .graph import Structure, check_way_out, structure
+from .graph import Structure, check_way_out, reachable, structure
 from .material import Material, added
 from .model import DesignSpecification, Flowsheet
 from .units import Context, Outcome, Unit
@@ -233,14 +233,7 @@ def iterated_units(sheet: Flowsheet, s: Structure) -> set[int]:
     for name, k in s.sinks.items():
         if name in s.sources and name not in s.tears:
             feeding[k].add(s.sources[name])
-    needed: set[int] = set()
-    stack = list(wanted)
-    while stack:
-        k = stack.pop()
-        if k not in needed:
-            needed.add(k)
-            stack.extend(feeding[k])
-    return needed
+    return set(wanted) | set().union(*(reachable(feeding, k) for k in wanted))
 
 
 def tear_residual(s: Structure, tears: Mapping[str, Material], computed: Mapping[str, Material]) -> tuple[float, str]:

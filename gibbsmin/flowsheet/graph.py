@@ -151,7 +151,7 @@ def _order(units, sources, sinks, tears) -> tuple[int, ...]:
 def recycles(units: tuple[Unit, ...], s: Structure) -> list[set[int]]:
     """The recycles: sets of units that reach each other (strongly connected, more than one unit)."""
     edges = _edges(units, s.sources, s.sinks, set())
-    reach = {k: _reachable(edges, k) for k in edges}
+    reach = {k: reachable(edges, k) for k in edges}
     groups: list[set[int]] = []
     for k in edges:
         group = {j for j in reach[k] if k in reach[j]}
@@ -160,7 +160,8 @@ def recycles(units: tuple[Unit, ...], s: Structure) -> list[set[int]]:
     return groups
 
 
-def _reachable(edges: Mapping[int, set[int]], start: int) -> set[int]:
+def reachable(edges: Mapping[int, set[int]], start: int) -> set[int]:
+    """The units reached from ``start`` along ``edges`` (unit to the units it feeds), ``start`` only by a cycle."""
     seen: set[int] = set()
     stack = list(edges[start])
     while stack:
@@ -180,7 +181,7 @@ def check_way_out(units: tuple[Unit, ...], s: Structure, fed: Mapping[str, Mappi
         entering: set[str] = set()
         for feed, flows in fed.items():
             first = s.sinks[feed]
-            if first in group or group & _reachable(edges, first):
+            if first in group or group & reachable(edges, first):
                 entering.update(name for name, n in flows.items() if n > 0.0)
         exits = [(name, k) for name, k in s.sources.items() if k in group and s.sinks.get(name) not in group]
         reactors = [units[k] for k in group if isinstance(units[k], Reactor)]
