@@ -157,3 +157,26 @@ def test_the_invented_plant_front_end_runs_as_a_train(capsys):
     # (common practice, no source).
     assert (gas.get("CO", 0.0) + gas.get("CO2", 0.0)) / sum(gas.values()) < 1e-4
     assert 2.8 < gas["H2"] / gas["N2"] < 3.6
+
+
+def test_the_beds_of_the_ammonia_loop_lie_short_of_their_equilibrium_curve():
+    import numpy as np
+
+    from gibbsmin.flowsheet import settle_flowsheet
+    from gibbsmin.flowsheet.beds import bed_lines
+    from gibbsmin.flowsheet.reader import read_flowsheet
+    from gibbsmin.report.flowsheet import flowsheet_report
+
+    case = read_flowsheet(EXAMPLES / "ammonia_loop.toml")
+    result = settle_flowsheet(case.flowsheet, case.context())
+    lines = bed_lines(result, "NH3")
+    # Ammonia synthesis is exothermic: less NH3 at equilibrium the hotter the gas (common practice, no source).
+    assert all(np.diff(lines.fraction) < 0.0)
+    for name, (T_in, T_out), (y_in, y_out) in lines.beds:
+        assert T_out > T_in and y_out > y_in  # each adiabatic bed makes ammonia and heats up
+        # Each bed is held 15 K short of equilibrium: its outlet holds what equilibrium gives 15 K hotter, so it
+        # lies below the curve at its own T and above it 30 K hotter.
+        assert y_out < np.interp(T_out, lines.T, lines.fraction)
+        assert y_out > np.interp(T_out + 30.0, lines.T, lines.fraction)
+    report = flowsheet_report(result, context=result.context)
+    assert [p.title for p in report.plots] == ["Converter beds on the equilibrium curve at 185 bar"]

@@ -12,6 +12,7 @@ share flows; a compressor takes the gas model's entropy.
 from __future__ import annotations
 
 import dataclasses
+import warnings
 from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import ClassVar
@@ -245,6 +246,7 @@ class Separator(Unit):
         if liquid.empty:
             notes = (f"nothing condenses at {eq.T - 273.15:.2f} degC and {eq.P / 1e5:.6g} bar: the liquid outlet "
                      f"{self.outlets[1]!r} is empty",)
+            warnings.warn(f"separator {self.name!r}: {notes[0]}", stacklevel=2)
         return Outcome((vapour, liquid), duty_W=eq.energy.duty_W if self.T is not None else 0.0, equilibrium=eq,
                        notes=notes)
 

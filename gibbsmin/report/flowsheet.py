@@ -14,6 +14,7 @@ import os
 from collections.abc import Mapping
 from pathlib import Path
 
+from ..flowsheet.beds import BedLines, bed_lines
 from ..flowsheet.converge import FlowsheetResult
 from ..flowsheet.material import Material
 from ..flowsheet.summary import LoopSummary, inert_species, loop_summary
@@ -22,7 +23,7 @@ from ..thermo import SpeciesDatabase, default_database
 from ..units import from_kelvin, from_mol_s, from_pascal
 from ..version import __version__
 from .caution import CAUTION
-from .document import Column, Report, Table
+from .document import Column, Plot, Report, Series, Table
 from .files import write_all
 from .settle import json_ready
 from .spreadsheet import render_table_csv
@@ -208,7 +209,25 @@ def flowsheet_report(result: FlowsheetResult, db: SpeciesDatabase | None = None,
              ("boundary out", ", ".join(result.structure.boundary_out))]
     summary = loop_summary(result, db, product, context)
     tables = (summary_table(summary, flow_unit), unit_table(result), stream_table(result, db, flow_unit))
-    return Report(f"gibbsmin {__version__} - {result.flowsheet.title}", tuple(facts), tables, tables_before_plots=3)
+    lines = bed_lines(result, summary.product) if summary.product else None
+    plots = () if lines is None else (bed_plot(lines),)
+    return Report(f"gibbsmin {__version__} - {result.flowsheet.title}", tuple(facts), tables, plots,
+                  tables_before_plots=3)
+
+
+def bed_plot(lines: BedLines) -> Plot:
+    """The converter beds on the equilibrium curve: mol% of the product against T [degC], each bed a line from its
+    inlet to its outlet, and the coolers between them dashed."""
+    series = [Series("equilibrium", tuple(T - 273.15 for T in lines.T), tuple(100.0 * y for y in lines.fraction))]
+    for k, (name, T_ends, y_ends) in enumerate(lines.beds):
+        if k:
+            _, T_before, y_before = lines.beds[k - 1]
+            series.append(Series(f"cooling before {name}", (T_before[1] - 273.15, T_ends[0] - 273.15),
+                                 (100.0 * y_before[1], 100.0 * y_ends[0]), "dashed"))
+        series.append(Series(name, tuple(T - 273.15 for T in T_ends), tuple(100.0 * y for y in y_ends),
+                             "line+points"))
+    return Plot(f"Converter beds on the equilibrium curve at {lines.P / 1e5:.4g} bar", "line", "temperature [degC]",
+                f"{lines.species} [mol%]", tuple(series))
 
 
 # --- JSON -----------------------------------------------------------------------------------------------------
