@@ -76,6 +76,10 @@ def sweep_flowsheet(sheet: Flowsheet, axes: Mapping[str, Sequence[float]], conte
         raise GibbsminError("a sweep needs at least one axis, e.g. {'purge split.fraction': [0.01, 0.02]}")
     for name in names:  # refuse a wrong axis before anything runs
         with_value(sheet, name, float(axes[name][0]))
+        held = [spec.name for spec in sheet.specifications if f"{spec.vary}.{spec.setting}" == name]
+        if held:
+            raise InputError(f"axis {name!r} is the setting specification {held[0]!r} varies to meet its target; "
+                             "sweep the specification's target instead, or another setting")
     rows = [[dict(zip(names, values)) for values in itertools.product(*(axes[n] for n in names))]]
     if len(names) > 1:
         inner = len(axes[names[-1]])

@@ -7,10 +7,12 @@ import io
 import math
 import sys
 
-from ..case import read_case
+from ..case import TomlSource, read_case
+from ..flowsheet.reader import is_flowsheet
 from ..errors import InputError
 from ..report.files import write_atomic
 from .grid import SweepSpec, axis_from_text, axis_size, check_axis_names
+from .flowsheets import run_flowsheet
 from .plots import carbon_map
 from .run import run_sweep
 
@@ -25,6 +27,11 @@ example:
   gibbsmin sweep examples/reformer.toml --vary T=650:950:10degC --vary "S/C=0.4:2:0.1" \\
       --map T,S/C,y_CH4 --png carbon-map.png
   gibbsmin sweep CASE --vary ... --out runs/x --scheduler tcp://10.0.0.5:8786   (a Dask cluster)
+
+A flowsheet case file ([[unit]] tables) is converged at every point instead, its
+axes its settings: gibbsmin sweep examples/ammonia_loop.toml --vary "purge split.fraction=0.002,0.004"
+--vary pressure=160:200:20bar --csv loop.csv ('<unit>.<setting>', '<feed>.flow' with a unit, or
+'pressure': every pressure of the flowsheet scaled together).
 
 The first stage of the case (fixed T and P) is solved at every point of the
 grid spanned by the --vary axes: T, P (with units), S/C (steam to hydrocarbon
@@ -79,6 +86,9 @@ def run(args: argparse.Namespace) -> int:
                          "to run it")
     if total > LARGE_SWEEP:
         sys.stderr.write(f"gibbsmin sweep: {size_text}\n")
+    source = TomlSource.from_file(args.case)
+    if is_flowsheet(source):
+        return run_flowsheet(source, args)
     case = read_case(args.case)
     names = [text.partition("=")[0].strip() for text in args.vary]
     check_axis_names(names, list(case.mixed_feed()))
