@@ -192,6 +192,12 @@ def _by_enthalpy_newton(setup: Setup, H_target: float, P: float, T_start: float,
     return replace(eq, extras={**eq.extras, "T_evaluations": 2, PATH_KEY: ENTHALPY_NEWTON}), problem, result
 
 
+def _phase_names(eq) -> tuple[str, ...]:
+    """The phases present in an answer: its condensed species and fluid phases, by name."""
+    fluid = tuple(p.name for p in eq.fluid_phases) if eq.fluid_phases is not None else ()
+    return tuple(sorted(s for s, n in eq.condensed.items() if n > 0.0)) + fluid
+
+
 class _Search:
     """The bracketed search for the outlet temperature (one instance per solve)."""
 
@@ -221,9 +227,21 @@ class _Search:
             checked(eq)
         H = state_enthalpy(self.setup, eq, self.P, self.residual_enthalpy)
         cp = equilibrium_heat_capacity(self.setup, problem, result, T, self.P)
-        point = _Point(T, eq, problem, result, H, H - self.H_target, cp)
+        point = _Point(T, eq, problem, result, H, H - self.H_target, self._slope(T, H, cp, eq))
         self.points.append(point)
         return point
+
+    def _slope(self, T: float, H: float, cp: float, eq) -> float:
+        """dH/dT the next step takes: the ideal-gas equilibrium heat capacity, or with a cubic (whose residual
+        enthalpy that heat capacity leaves out) the secant to the nearest earlier point on the same phase set,
+        where it is positive, so that the steps close in superlinearly instead of by the residual's share."""
+        nonideal = self.residual_enthalpy is not None or eq.fluid_phases is not None
+        same = [p for p in self.points if p.T != T and _phase_names(p.eq) == _phase_names(eq)]
+        if not nonideal or not same:
+            return cp
+        near = min(same, key=lambda p: abs(p.T - T))
+        secant = (H - near.H) / (T - near.T)
+        return secant if math.isfinite(secant) and secant > 0.0 else cp
 
     def converged(self, point: _Point, tolerance: float = _TOLERANCE) -> bool:
         scale = enthalpy_scale(self.setup, state_amounts(self.setup, point.eq), point.T, self.scale, 0.0)
