@@ -25,6 +25,9 @@ class Material:
     liquid_fraction : float
         Mole fraction of the flow in liquid-solution phases, [-] (0 for a gas, 1 for a separator's liquid; what the
         unit that made the stream found).
+    phases : mapping
+        Phase name ("gas", "liquid", "liquid 2", or a condensed species) to its flows, [mol/s], where the unit
+        that made the stream solved its phases (empty otherwise).
     """
 
     T: float
