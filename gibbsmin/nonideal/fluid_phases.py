@@ -35,7 +35,7 @@ cubic has nothing to say of them in a liquid.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
@@ -48,6 +48,7 @@ from ..equilibrium import Equilibrium, FluidPhase
 from ..errors import ConvergenceError
 from ..compiled import compiled
 from ..fixed_step import Setup, fixed_problem
+from ..frozen import replaced
 from ..solve._newton_kernel import _lu_solve
 from ..solve import SolverResult
 from ..solve.certificate import Certificate, Tolerances
@@ -261,22 +262,28 @@ def _compositions(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64
     return np.where([p.allowed for p in phases], potential - np.array([p.ln_phi for p in phases]), -np.inf)
 
 
-def _frozen_phi_split(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64], n_c: NDArray[np.float64],
-                      present_c: NDArray[np.bool_]
+def _split_arrays(problem: Problem) -> tuple[NDArray[np.float64], ...]:
+    """The problem's gas and condensed element columns, element totals and mu0/RT, as the split kernel takes
+    them (made once per loop, not per pass)."""
+    G = problem.n_gas
+    A = np.asarray(problem.A, dtype=float)
+    mu0 = problem.mu0[0]
+    return (np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:]), np.ascontiguousarray(problem.b[0]),
+            np.ascontiguousarray(mu0[:G]), np.ascontiguousarray(mu0[G:]))
+
+
+def _frozen_phi_split(arrays: tuple[NDArray[np.float64], ...], phases: list[_Phase], pi: NDArray[np.float64],
+                      n_c: NDArray[np.float64], present_c: NDArray[np.bool_]
                       ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], bool]:
     """Element potentials and phase amounts with every phase's ln phi held: a damped Newton in (pi, ln N, n_c).
 
     Returns the potentials, the condensed amounts, the phases' mole fractions at those potentials (phases x
     kept gas species) and whether the iteration converged; the phases' ``ln_N`` are updated in place.
     """
-    G = problem.n_gas
-    A = np.ascontiguousarray(problem.A, dtype=float)
     ln_N = np.array([p.ln_N for p in phases])
     pi, n_c = pi.copy(), n_c.copy()
-    x = np.zeros((len(phases), G))
-    converged = _split_newton(np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:]), problem.b[0],
-                              np.ascontiguousarray(problem.mu0[0, :G]), np.ascontiguousarray(problem.mu0[0, G:]),
-                              np.array([p.ln_phi for p in phases]), np.array([p.allowed for p in phases]),
+    x = np.zeros((len(phases), arrays[0].shape[1]))
+    converged = _split_newton(*arrays, np.array([p.ln_phi for p in phases]), np.array([p.allowed for p in phases]),
                               np.ascontiguousarray(present_c), ln_N, pi, n_c, x, _INNER_TOLERANCE,
                               _INNER_ITERATIONS, _MAX_STEP)
     for p, value in zip(phases, ln_N):
@@ -377,9 +384,10 @@ def _settle(problem, cubic, phases, pi, n_c, present_c, passes):
     gs: list[NDArray[np.float64]] = []
     phase_count = len(phases)
     T, P = cubic.T, cubic.P
+    arrays = _split_arrays(problem)
     for _ in range(MAX_PASSES):
         passes += 1
-        pi, n_c, x, converged = _frozen_phi_split(problem, phases, pi, n_c, present_c)
+        pi, n_c, x, converged = _frozen_phi_split(arrays, phases, pi, n_c, present_c)
         if not converged and len(phases) > 1:
             # A phase on its way out leaves its closure sum_j x_j = 1 as an equation no potentials can meet:
             # drop it and solve again on the phases that hold the mixture.
@@ -425,10 +433,11 @@ def _assign(phases: list[_Phase], ln_phi: NDArray[np.float64]) -> None:
 
 def _without_vanished(phases: list[_Phase], x: NDArray[np.float64]) -> tuple[list[_Phase], NDArray[np.float64]]:
     """The phases (and their rows of mole fractions x) that hold more than ``VANISHED`` of the fluid."""
-    amounts = np.exp([p.ln_N for p in phases])
-    kept = np.flatnonzero(amounts > VANISHED * amounts.sum())
-    if kept.size == 0:
-        kept = np.array([0])
+    amounts = [math.exp(p.ln_N) for p in phases]
+    floor = VANISHED * sum(amounts)
+    kept = [k for k, amount in enumerate(amounts) if amount > floor] or [0]
+    if len(kept) == len(phases):
+        return phases, x
     return [phases[k] for k in kept], x[kept]
 
 
@@ -520,13 +529,13 @@ def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, o
         residual_H += float(part.sum() * R * T * properties.H_res_RT)
         residual_S += float(part.sum() * R * properties.S_res_R)
     first = fluid[0]
-    state = replace(one_gas.gas, fugacity_coefficients=dict(first.fugacity_coefficients),
+    state = replaced(one_gas.gas, fugacity_coefficients=dict(first.fugacity_coefficients),
                     compressibility_factor=first.compressibility_factor, residual_enthalpy_J=residual_H,
                     residual_entropy_J_per_K=residual_S, iterations=one_gas.gas.iterations + passes,
                     note=one_gas.gas.note + f"; {len(names)} fluid phases ({', '.join(names)}), each on its own "
                     "root of the cubic (fugacity coefficients and Z above: the first phase's)",
                     stability=split.stability_record())
-    eq = replace(one_gas, amounts=totals, ln_gas_amounts=ln_gas, element_potentials=potentials, G_RT=G_RT,
+    eq = replaced(one_gas, amounts=totals, ln_gas_amounts=ln_gas, element_potentials=potentials, G_RT=G_RT,
                  certificate=certificate.with_phase_stability("stable"), fluid_phases=fluid, gas=state,
                  extras={**one_gas.extras, **gas_model_extras(state)})
     return eq, split
