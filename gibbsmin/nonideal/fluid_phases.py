@@ -35,6 +35,7 @@ cubic has nothing to say of them in a liquid.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -123,7 +124,8 @@ class _Phase:
 
 def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one_gas: Equilibrium,
                        one_gas_result: SolverResult, offsets: NDArray[np.float64] | None = None,
-                       allow_extrapolation: bool = False) -> tuple[Equilibrium, FluidSplit] | None:
+                       allow_extrapolation: bool = False, seed: Sequence[FluidPhase] | None = None
+                       ) -> tuple[Equilibrium, FluidSplit] | None:
     """The equilibrium with as many fluid phases as the cubic finds, or None when the one gas is stable.
 
     Parameters
@@ -138,6 +140,10 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
         stability test is run on.
     offsets : ndarray, optional
         As for ``fixed_step.solve_fixed`` (held reactions).
+    seed : sequence of FluidPhase, optional
+        A neighbouring answer's fluid phases (a sweep's warm start): the split starts at their compositions,
+        each phase's phi taken at this T and P, and skips the one gas's stability test; where that start settles
+        on one phase (or does not settle), the split starts cold as without it.
 
     Returns
     -------
@@ -145,35 +151,90 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
         The answer (``amounts`` the totals per species, ``ln_gas_amounts`` the gas phase's, its certificate
         over every phase) and the split; None when the one gas is stable (nothing to add).
     """
-    system = setup.system
-    model = phase.model
-    gas_names = system.gas_names
+    if seed is not None and len(seed) > 1:
+        context = _Context.of(setup, T, P, phase, one_gas_result, offsets, allow_extrapolation)
+        try:
+            found = context.split(_seeded_phases(context, seed, one_gas_result), one_gas, seeded=True)
+        except ConvergenceError:
+            found = None   # the cold start below decides
+        if found is not None:
+            return found
     trial = _trial_liquid(phase, one_gas, T, P)
     if trial is None:
         return None
-    problem = fixed_problem(setup, T, P, offsets=offsets, allow_extrapolation=allow_extrapolation)
-    keep_gas = problem.keep[: problem.n_gas]
-    described = np.zeros(len(gas_names), dtype=bool)
-    described[phase.described] = True
-    liquid_allowed = described[keep_gas]
-    G = problem.n_gas
-    cubic = _PhaseCubic.of(phase, keep_gas, T, P)
-    gas_ln_n = one_gas_result.ln_n_gas[0]
-    gas = _Phase(False, np.ones(G, dtype=bool), np.zeros(G), float(np.log(np.exp(gas_ln_n).sum())))
-    cubic.evaluate([gas], np.exp(gas_ln_n - gas_ln_n.max())[None, :])
-    phases = [gas, _new_liquid(cubic, trial[keep_gas], liquid_allowed, phases_ln_N=gas.ln_N)]
-    pi = one_gas_result.pi[0].copy()
-    n_c = np.zeros(problem.n_species - G)
-    present_c = one_gas_result.present[0].copy()
-    passes = 0
-    for _ in range(3):  # at most two phases added after the first split settles
-        phases, pi, n_c, present_c, passes = _settle(problem, cubic, phases, pi, n_c, present_c, passes)
-        added, distance = _added_phase(phase, cubic, problem, phases, pi, keep_gas, liquid_allowed, len(gas_names))
-        if added is None:
-            break
-        phases.append(added)
-    return _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model,
-                   distance)
+    context = _Context.of(setup, T, P, phase, one_gas_result, offsets, allow_extrapolation)
+    gas = context.gas_of(one_gas_result)
+    liquid = _new_liquid(context.cubic, trial[context.keep_gas], context.liquid_allowed, phases_ln_N=gas.ln_N)
+    return context.split([gas, liquid], one_gas)
+
+
+@dataclass
+class _Context:
+    """What every pass of one solve shares: the problem, its kept gas species, which of them a liquid may hold,
+    the cubic at T and P, and the start of the potentials and condensed phases (the one-gas answer's)."""
+
+    setup: Setup
+    phase: GasPhase
+    problem: Problem
+    keep_gas: NDArray[np.int_]
+    liquid_allowed: NDArray[np.bool_]
+    cubic: "_PhaseCubic"
+    pi: NDArray[np.float64]
+    present_c: NDArray[np.bool_]
+
+    @classmethod
+    def of(cls, setup, T, P, phase, one_gas_result, offsets, allow_extrapolation) -> "_Context":
+        problem = fixed_problem(setup, T, P, offsets=offsets, allow_extrapolation=allow_extrapolation)
+        keep_gas = problem.keep[: problem.n_gas]
+        described = np.zeros(setup.system.n_gas, dtype=bool)
+        described[phase.described] = True
+        return cls(setup, phase, problem, keep_gas, described[keep_gas], _PhaseCubic.of(phase, keep_gas, T, P),
+                   one_gas_result.pi[0].copy(), one_gas_result.present[0].copy())
+
+    def gas_of(self, one_gas_result: SolverResult) -> _Phase:
+        """The one-gas answer's gas as the first fluid phase."""
+        ln_n = one_gas_result.ln_n_gas[0]
+        gas = _Phase(False, np.ones(self.problem.n_gas, dtype=bool), np.zeros(self.problem.n_gas),
+                     float(np.log(np.exp(ln_n).sum())))
+        gas.ln_phi = self.cubic.evaluate([gas], np.exp(ln_n - ln_n.max())[None, :])[0]
+        return gas
+
+    def split(self, phases: list[_Phase], one_gas: Equilibrium, seeded: bool = False
+              ) -> tuple[Equilibrium, FluidSplit] | None:
+        """The settled split from these phases, phases added while the final test finds one; None where a seeded
+        start settles on one phase (the caller then starts cold, from the one gas's stability test)."""
+        problem, cubic = self.problem, self.cubic
+        pi, present_c = self.pi, self.present_c
+        n_c = np.zeros(problem.n_species - problem.n_gas)
+        passes = 0
+        for _ in range(3):  # at most two phases added after the first split settles
+            phases, pi, n_c, present_c, passes = _settle(problem, cubic, phases, pi, n_c, present_c, passes)
+            if seeded and len(phases) < 2:
+                return None
+            added, distance = _added_phase(self.phase, cubic, problem, phases, pi, self.keep_gas,
+                                           self.liquid_allowed, self.setup.system.n_gas)
+            if added is None:
+                break
+            phases.append(added)
+        return _answer(self.setup, problem, self.phase, phases, pi, n_c, present_c, self.keep_gas, cubic.T, cubic.P,
+                       one_gas, passes, self.phase.model, distance)
+
+
+def _seeded_phases(context: _Context, seed: Sequence[FluidPhase], one_gas_result: SolverResult) -> list[_Phase]:
+    """Phases started at a neighbouring answer's compositions, each evaluated at this T and P, with the amounts
+    scaled to this point's fluid total."""
+    gas_names = [context.setup.system.gas_names[j] for j in context.keep_gas]
+    ln_n = one_gas_result.ln_n_gas[0]
+    scale = float(np.log(np.exp(ln_n).sum())) - float(np.log(sum(p.amount for p in seed)))
+    phases = []
+    for fluid in seed:
+        liquid = fluid.name != "gas"
+        x = np.array([fluid.amounts.get(name, 0.0) for name in gas_names])
+        allowed = context.liquid_allowed.copy() if liquid else np.ones(len(gas_names), dtype=bool)
+        found = _Phase(liquid, allowed, np.zeros(len(gas_names)), float(np.log(x.sum())) + scale)
+        found.ln_phi = context.cubic.evaluate([found], x[None, :])[0]
+        phases.append(found)
+    return phases
 
 
 class _PhaseCubic:
