@@ -344,8 +344,8 @@ class Prepared:
                 plain_ideal_gas=phase.is_ideal and not held)
             eq = dataclasses.replace(eq, specification=text)
         else:
-            eq, problem, result = step(T, start[1] if start is not None and _start_key(start[0]) == _start_key(setup)
-                                       else None)
+            warm = start is not None and _start_key(start[0]) == _start_key(setup)
+            eq, problem, result = step(T, start[1] if warm else None, seed=start[2] if warm else None)
         if eq.fluid_phases is not None and (sensitivities or uncertainty):
             raise InputError("sensitivities and uncertainty are not yet computed for an answer with liquid-solution "
                              "phases; drop them, or pass liquid=False for the one-gas answer")
@@ -374,7 +374,7 @@ class Prepared:
         if stability is not None:
             # The verdict enters the certificate after the precision check, which judges the residuals alone.
             eq = nonideal.with_stability_verdict(eq, stability)
-        return eq, (setup, result)
+        return eq, (setup, result, eq.fluid_phases)
 
     def _check_energy_specification(self, energy_balance: bool, adiabatic: bool, heat: float, inlet,
                                     uncertainty: bool, sensitivities: bool) -> None:
@@ -457,9 +457,10 @@ class Prepared:
         return offsets_at
 
     def _step(self, setup: Setup, P: float, phase, offsets_at, text: str, liquids: bool, T: float,
-              start: SolverResult | None) -> tuple[Equilibrium, object, SolverResult]:
+              start: SolverResult | None, seed=None) -> tuple[Equilibrium, object, SolverResult]:
         """The one fixed-T step: the gas model's solve at T with the held reactions' offsets at T, and with
-        ``liquids`` the split into liquid-solution phases where the one gas is not stable.
+        ``liquids`` the split into liquid-solution phases where the one gas is not stable (``seed``: a
+        neighbour's fluid phases, where the split starts).
 
         With "auto" a warm start that fails (a phase swapped since the
         neighbour) is retried cold before the cone solver is tried, which is
@@ -469,7 +470,7 @@ class Prepared:
         if liquids:
             split = solve_fluid_phases(setup, T, P, phase, one_gas=eq, one_gas_result=result,
                                        offsets=None if offsets_at is None else offsets_at(T),
-                                       allow_extrapolation=self.specification.allow_extrapolation)
+                                       allow_extrapolation=self.specification.allow_extrapolation, seed=seed)
             if split is not None:
                 eq = split[0]
         return eq, problem, result

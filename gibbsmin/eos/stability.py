@@ -81,9 +81,8 @@ def tangent_plane_test(model: CubicModel, T: float, P: float, z: ArrayLike, *, l
             continue
         # Successive substitution may wander without settling in a strongly non-ideal liquid: the distance
         # counts only where the tangent-plane distance itself, at the point reached, is negative too.
-        ln_phi_w = model.single_condition(float(T), float(P), w, LEAST_GIBBS_ROOT)[0]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            tpd = float(np.sum(np.where(there, w * (np.log(np.where(there, w, 1.0)) + ln_phi_w - d), 0.0)))
+        tpd = _tangent_plane_distance(sqrt_a, b_i, one_minus_k, has_k, w, d, there, float(T), float(P),
+                                      family.delta1, family.delta2)
         if not tpd < UNSTABLE_BELOW:
             continue
         if math.isfinite(distance) and distance < lowest:
@@ -116,3 +115,15 @@ def _stationary_point(sqrt_a, b_i, one_minus_k, has_k, W, d, there, T, P, delta1
         if not step >= tolerance:  # converged, or NaN: the caller judges the distance
             break
     return W
+
+
+@compiled()
+def _tangent_plane_distance(sqrt_a, b_i, one_minus_k, has_k, w, d, there, T, P, delta1, delta2):
+    """tpd(w) = sum_i w_i [ln w_i + ln phi_i(w) - d_i] over the species present, w on its root of least Gibbs
+    energy (NaN where no root is physical)."""
+    ln_phi, _, _ = single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, w, T, P, delta1, delta2, LEAST_GIBBS_ROOT)
+    total = 0.0
+    for i in range(w.shape[0]):
+        if there[i] and w[i] > 0.0:
+            total += w[i] * (math.log(w[i]) + ln_phi[i] - d[i])
+    return total

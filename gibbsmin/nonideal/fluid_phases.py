@@ -35,12 +35,13 @@ cubic has nothing to say of them in a liquid.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from collections.abc import Sequence
+from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
 
-from ..eos.cubic import LEAST_GIBBS_ROOT, VAPOUR_ROOT
+from ..eos.cubic import LEAST_GIBBS_ROOT, VAPOUR_ROOT, single_ln_phi
 from ..eos.phase import GasPhase
 from ..eos.stability import tangent_plane_test
 from .stability import stability_and_trial
@@ -48,6 +49,7 @@ from ..equilibrium import Equilibrium, FluidPhase
 from ..errors import ConvergenceError
 from ..compiled import compiled
 from ..fixed_step import Setup, fixed_problem
+from ..frozen import replaced
 from ..solve._newton_kernel import _lu_solve
 from ..solve import SolverResult
 from ..solve.certificate import Certificate, Tolerances
@@ -117,11 +119,13 @@ class _Phase:
     allowed: NDArray[np.bool_]        # kept gas species it may hold
     ln_phi: NDArray[np.float64]       # over the kept gas species
     ln_N: float
+    Z: float = math.nan               # the root at which ln_phi was last evaluated
 
 
 def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one_gas: Equilibrium,
                        one_gas_result: SolverResult, offsets: NDArray[np.float64] | None = None,
-                       allow_extrapolation: bool = False) -> tuple[Equilibrium, FluidSplit] | None:
+                       allow_extrapolation: bool = False, seed: Sequence[FluidPhase] | None = None
+                       ) -> tuple[Equilibrium, FluidSplit] | None:
     """The equilibrium with as many fluid phases as the cubic finds, or None when the one gas is stable.
 
     Parameters
@@ -136,6 +140,10 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
         stability test is run on.
     offsets : ndarray, optional
         As for ``fixed_step.solve_fixed`` (held reactions).
+    seed : sequence of FluidPhase, optional
+        A neighbouring answer's fluid phases (a sweep's warm start): the split starts at their compositions,
+        each phase's phi taken at this T and P, and skips the one gas's stability test; where that start settles
+        on one phase (or does not settle), the split starts cold as without it.
 
     Returns
     -------
@@ -143,36 +151,147 @@ def solve_fluid_phases(setup: Setup, T: float, P: float, phase: GasPhase, *, one
         The answer (``amounts`` the totals per species, ``ln_gas_amounts`` the gas phase's, its certificate
         over every phase) and the split; None when the one gas is stable (nothing to add).
     """
-    system = setup.system
-    model = phase.model
-    gas_names = system.gas_names
+    if seed is not None and len(seed) > 1:
+        context = _Context.of(setup, T, P, phase, one_gas_result, offsets, allow_extrapolation)
+        try:
+            found = context.split(_seeded_phases(context, seed, one_gas_result), one_gas, seeded=True)
+        except ConvergenceError:
+            found = None   # the cold start below decides
+        if found is not None:
+            return found
     trial = _trial_liquid(phase, one_gas, T, P)
     if trial is None:
         return None
-    problem = fixed_problem(setup, T, P, offsets=offsets, allow_extrapolation=allow_extrapolation)
-    keep_gas = problem.keep[: problem.n_gas]
-    described = np.zeros(len(gas_names), dtype=bool)
-    described[phase.described] = True
-    liquid_allowed = described[keep_gas]
-    G = problem.n_gas
-    gas_ln_n = one_gas_result.ln_n_gas[0]
-    gas_ln_phi = phase.ln_phi(T, P, _system_gas(np.exp(gas_ln_n - gas_ln_n.max()), keep_gas, len(gas_names)))[
-        keep_gas]
-    phases = [_Phase(False, np.ones(G, dtype=bool), gas_ln_phi, float(np.log(np.exp(gas_ln_n).sum())))]
-    phases.append(_new_liquid(phase, trial, keep_gas, liquid_allowed, T, P, phases[0].ln_N))
-    pi = one_gas_result.pi[0].copy()
-    n_c = np.zeros(problem.n_species - G)
-    present_c = one_gas_result.present[0].copy()
-    passes = 0
-    for _ in range(3):  # at most two phases added after the first split settles
-        phases, pi, n_c, present_c, passes = _settle(problem, phase, phases, pi, n_c, present_c, keep_gas,
-                                                     len(gas_names), T, P, passes)
-        added, distance = _added_phase(phase, problem, phases, pi, keep_gas, liquid_allowed, len(gas_names), T, P)
-        if added is None:
-            break
-        phases.append(added)
-    return _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model,
-                   distance)
+    context = _Context.of(setup, T, P, phase, one_gas_result, offsets, allow_extrapolation)
+    gas = context.gas_of(one_gas_result)
+    liquid = _new_liquid(context.cubic, trial[context.keep_gas], context.liquid_allowed, phases_ln_N=gas.ln_N)
+    return context.split([gas, liquid], one_gas)
+
+
+@dataclass
+class _Context:
+    """What every pass of one solve shares: the problem, its kept gas species, which of them a liquid may hold,
+    the cubic at T and P, and the start of the potentials and condensed phases (the one-gas answer's)."""
+
+    setup: Setup
+    phase: GasPhase
+    problem: Problem
+    keep_gas: NDArray[np.int_]
+    liquid_allowed: NDArray[np.bool_]
+    cubic: "_PhaseCubic"
+    pi: NDArray[np.float64]
+    present_c: NDArray[np.bool_]
+
+    @classmethod
+    def of(cls, setup, T, P, phase, one_gas_result, offsets, allow_extrapolation) -> "_Context":
+        problem = fixed_problem(setup, T, P, offsets=offsets, allow_extrapolation=allow_extrapolation)
+        keep_gas = problem.keep[: problem.n_gas]
+        described = np.zeros(setup.system.n_gas, dtype=bool)
+        described[phase.described] = True
+        return cls(setup, phase, problem, keep_gas, described[keep_gas], _PhaseCubic.of(phase, keep_gas, T, P),
+                   one_gas_result.pi[0].copy(), one_gas_result.present[0].copy())
+
+    def gas_of(self, one_gas_result: SolverResult) -> _Phase:
+        """The one-gas answer's gas as the first fluid phase."""
+        ln_n = one_gas_result.ln_n_gas[0]
+        gas = _Phase(False, np.ones(self.problem.n_gas, dtype=bool), np.zeros(self.problem.n_gas),
+                     float(np.log(np.exp(ln_n).sum())))
+        gas.ln_phi = self.cubic.evaluate([gas], np.exp(ln_n - ln_n.max())[None, :])[0]
+        return gas
+
+    def split(self, phases: list[_Phase], one_gas: Equilibrium, seeded: bool = False
+              ) -> tuple[Equilibrium, FluidSplit] | None:
+        """The settled split from these phases, phases added while the final test finds one; None where a seeded
+        start settles on one phase (the caller then starts cold, from the one gas's stability test)."""
+        problem, cubic = self.problem, self.cubic
+        pi, present_c = self.pi, self.present_c
+        n_c = np.zeros(problem.n_species - problem.n_gas)
+        passes = 0
+        for _ in range(3):  # at most two phases added after the first split settles
+            phases, pi, n_c, present_c, passes = _settle(problem, cubic, phases, pi, n_c, present_c, passes)
+            if seeded and len(phases) < 2:
+                return None
+            added, distance = _added_phase(self.phase, cubic, problem, phases, pi, self.keep_gas,
+                                           self.liquid_allowed, self.setup.system.n_gas)
+            if added is None:
+                break
+            phases.append(added)
+        return _answer(self.setup, problem, self.phase, phases, pi, n_c, present_c, self.keep_gas, cubic.T, cubic.P,
+                       one_gas, passes, self.phase.model, distance)
+
+
+def _seeded_phases(context: _Context, seed: Sequence[FluidPhase], one_gas_result: SolverResult) -> list[_Phase]:
+    """Phases started at a neighbouring answer's compositions, each evaluated at this T and P, with the amounts
+    scaled to this point's fluid total."""
+    gas_names = [context.setup.system.gas_names[j] for j in context.keep_gas]
+    ln_n = one_gas_result.ln_n_gas[0]
+    scale = float(np.log(np.exp(ln_n).sum())) - float(np.log(sum(p.amount for p in seed)))
+    phases = []
+    for fluid in seed:
+        liquid = fluid.name != "gas"
+        x = np.array([fluid.amounts.get(name, 0.0) for name in gas_names])
+        allowed = context.liquid_allowed.copy() if liquid else np.ones(len(gas_names), dtype=bool)
+        found = _Phase(liquid, allowed, np.zeros(len(gas_names)), float(np.log(x.sum())) + scale)
+        found.ln_phi = context.cubic.evaluate([found], x[None, :])[0]
+        phases.append(found)
+    return phases
+
+
+class _PhaseCubic:
+    """The cubic of one solve at its T and P, evaluated on the kept gas species of every phase at once.
+
+    The mixing parameters at T are taken once, and each pass of the outer loop evaluates all phases in one
+    compiled call (each phase on its own root), where a call per phase cost more than the cubic itself.
+    """
+
+    def __init__(self, parameters, family, place: NDArray[np.int_], T: float, P: float):
+        self.parameters = parameters
+        self.delta1, self.delta2 = family.delta1, family.delta2
+        self.place = place
+        self.T, self.P = T, P
+
+    @classmethod
+    def of(cls, phase: GasPhase, keep_gas: NDArray[np.int_], T: float, P: float) -> "_PhaseCubic":
+        # place[j]: the model's index of kept gas species j, -1 where the cubic does not describe it.
+        in_model = np.full(len(phase.gas_names), -1, dtype=np.int64)
+        in_model[phase.described] = np.arange(len(phase.described))
+        model = phase.model
+        return cls(model.mixing_parameters(float(T)), model.family, np.ascontiguousarray(in_model[keep_gas]),
+                   float(T), float(P))
+
+    def evaluate(self, phases: list[_Phase], x: NDArray[np.float64]) -> NDArray[np.float64]:
+        """ln phi (phases x kept gas species; 0 where undescribed) of phases whose compositions are the rows of
+        x (any positive scale), each on its root (a liquid: least Gibbs energy; the gas: vapour); each phase's
+        Z is set."""
+        roots = np.array([LEAST_GIBBS_ROOT if p.liquid else VAPOUR_ROOT for p in phases], dtype=np.int64)
+        ln_phi = np.empty(x.shape)
+        Z = np.empty(len(phases))
+        _phases_ln_phi(*self.parameters, np.ascontiguousarray(x, dtype=float), roots, self.place, self.T, self.P,
+                       self.delta1, self.delta2, ln_phi, Z)
+        for p, value in zip(phases, Z):
+            p.Z = float(value)
+        return ln_phi
+
+
+@compiled()
+def _phases_ln_phi(sqrt_a, b_i, one_minus_k, has_k, x, roots, place, T, P, delta1, delta2, ln_phi, Z):
+    """ln phi and Z of each row of x (kept gas species; ``place`` their model indices, -1 for none) on its root
+    (written into ln_phi and Z)."""
+    F, G = x.shape
+    y = np.empty(sqrt_a.shape[0])
+    for a in range(F):
+        y[:] = 0.0
+        total = 0.0
+        for j in range(G):
+            if place[j] >= 0:
+                y[place[j]] += x[a, j]
+                total += x[a, j]
+        for i in range(y.shape[0]):
+            y[i] /= total
+        found, _, root = single_ln_phi(sqrt_a, b_i, one_minus_k, has_k, y, T, P, delta1, delta2, roots[a])
+        for j in range(G):
+            ln_phi[a, j] = found[place[j]] if place[j] >= 0 else 0.0
+        Z[a] = root
 
 
 def _system_gas(values: NDArray[np.float64], keep_gas: NDArray[np.int_], n_gas: int) -> NDArray[np.float64]:
@@ -188,59 +307,56 @@ def _trial_liquid(phase: GasPhase, eq: Equilibrium, T: float, P: float) -> NDArr
     return stability_and_trial(phase, eq)[1]
 
 
-def _liquid_ln_phi(phase: GasPhase, x_gas: NDArray[np.float64], T: float, P: float) -> NDArray[np.float64]:
-    """ln phi over the System's gas species in a liquid of composition x (least-Gibbs root); 0 where undescribed."""
-    return _phase_ln_phi(phase, x_gas, T, P, LEAST_GIBBS_ROOT)
-
-
-def _phase_ln_phi(phase: GasPhase, x_gas: NDArray[np.float64], T: float, P: float, root: int) -> NDArray[np.float64]:
-    """ln phi over the System's gas species of a phase of composition x on the root chosen (the compiled
-    evaluation, the loop's compositions being sound by construction); 0 where undescribed."""
-    part = x_gas[phase.described]
-    ln_phi = np.zeros(len(phase.gas_names))
-    ln_phi[phase.described] = phase.model.single_condition(float(T), float(P), part / part.sum(), root)[0]
-    return ln_phi
-
-
-def _new_liquid(phase: GasPhase, x_gas: NDArray[np.float64], keep_gas, allowed, T, P, ln_N_gas) -> _Phase:
-    ln_phi = _liquid_ln_phi(phase, x_gas, T, P)[keep_gas]
-    # Started at a thousandth of the gas: the element balance then takes it where it belongs.
-    return _Phase(True, allowed.copy(), ln_phi, ln_N_gas + np.log(1e-3))
+def _new_liquid(cubic: _PhaseCubic, x: NDArray[np.float64], allowed: NDArray[np.bool_], phases_ln_N: float
+                ) -> _Phase:
+    """A liquid of composition x (kept gas species), started at a thousandth of the gas (``phases_ln_N`` its log
+    amount): the element balance then takes it where it belongs."""
+    liquid = _Phase(True, allowed.copy(), np.zeros(x.size), phases_ln_N + np.log(1e-3))
+    liquid.ln_phi = cubic.evaluate([liquid], x[None, :])[0]
+    return liquid
 
 
 def _compositions(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64]) -> NDArray[np.float64]:
     """ln x of each kept gas species in each phase at the potentials pi (-inf where a phase may not hold it)."""
-    A_g = problem.A[:, : problem.n_gas]
-    potential = pi @ A_g
-    mu0 = problem.mu0[0, : problem.n_gas]
-    return np.array([np.where(p.allowed, potential - mu0 - p.ln_phi, -np.inf) for p in phases])
+    G = problem.n_gas
+    potential = pi @ problem.A[:, :G] - problem.mu0[0, :G]
+    return np.where([p.allowed for p in phases], potential - np.array([p.ln_phi for p in phases]), -np.inf)
 
 
-def _frozen_phi_split(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64], n_c: NDArray[np.float64],
-                      present_c: NDArray[np.bool_]) -> tuple[NDArray[np.float64], NDArray[np.float64], bool]:
+def _split_arrays(problem: Problem) -> tuple[NDArray[np.float64], ...]:
+    """The problem's gas and condensed element columns, element totals and mu0/RT, as the split kernel takes
+    them (made once per loop, not per pass)."""
+    G = problem.n_gas
+    A = np.asarray(problem.A, dtype=float)
+    mu0 = problem.mu0[0]
+    return (np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:]), np.ascontiguousarray(problem.b[0]),
+            np.ascontiguousarray(mu0[:G]), np.ascontiguousarray(mu0[G:]))
+
+
+def _frozen_phi_split(arrays: tuple[NDArray[np.float64], ...], phases: list[_Phase], pi: NDArray[np.float64],
+                      n_c: NDArray[np.float64], present_c: NDArray[np.bool_]
+                      ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], bool]:
     """Element potentials and phase amounts with every phase's ln phi held: a damped Newton in (pi, ln N, n_c).
 
-    Returns the potentials, the condensed amounts and whether the iteration converged; the phases' ``ln_N``
-    are updated in place.
+    Returns the potentials, the condensed amounts, the phases' mole fractions at those potentials (phases x
+    kept gas species) and whether the iteration converged; the phases' ``ln_N`` are updated in place.
     """
-    G = problem.n_gas
-    A = np.ascontiguousarray(problem.A, dtype=float)
     ln_N = np.array([p.ln_N for p in phases])
     pi, n_c = pi.copy(), n_c.copy()
-    converged = _split_newton(np.ascontiguousarray(A[:, :G]), np.ascontiguousarray(A[:, G:]), problem.b[0],
-                              np.ascontiguousarray(problem.mu0[0, :G]), np.ascontiguousarray(problem.mu0[0, G:]),
-                              np.array([p.ln_phi for p in phases]), np.array([p.allowed for p in phases]),
-                              np.ascontiguousarray(present_c), ln_N, pi, n_c, _INNER_TOLERANCE, _INNER_ITERATIONS,
-                              _MAX_STEP)
+    x = np.zeros((len(phases), arrays[0].shape[1]))
+    converged = _split_newton(*arrays, np.array([p.ln_phi for p in phases]), np.array([p.allowed for p in phases]),
+                              np.ascontiguousarray(present_c), ln_N, pi, n_c, x, _INNER_TOLERANCE,
+                              _INNER_ITERATIONS, _MAX_STEP)
     for p, value in zip(phases, ln_N):
         p.ln_N = float(value)
-    return pi, n_c, bool(converged)
+    return pi, n_c, x, bool(converged)
 
 
 @compiled()
-def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, pi, n_c, tolerance, max_iterations,
-                  max_step):
-    """The frozen-phi split in compiled loops (ln_N, pi, n_c updated in place); True when converged.
+def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, pi, n_c, x, tolerance,
+                  max_iterations, max_step):
+    """The frozen-phi split in compiled loops (ln_N, pi, n_c updated in place, x the mole fractions at the
+    potentials returned); True when converged.
 
     Unknowns pi (M), ln N_a (F), the present condensed amounts; equations: the element balance, each phase's
     mole fractions summing to one, each present condensed species at mu0_c = a_c . pi.
@@ -252,7 +368,6 @@ def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, p
     scale = 0.0
     for k in range(M):
         scale = max(scale, abs(b[k]))
-    x = np.zeros((F, G))
     J = np.empty((K, K))
     rhs = np.empty(K)
     step = np.empty(K)
@@ -322,16 +437,18 @@ def _split_newton(A_g, A_c, b, mu0_g, mu0_c, ln_phi, allowed, present_c, ln_N, p
     return False
 
 
-def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, passes):
+def _settle(problem, cubic, phases, pi, n_c, present_c, passes):
     """The outer loop: frozen-phi splits until every phase's ln phi settles, vanished phases dropped and phases
     of one composition merged."""
     change = np.inf
     xs: list[NDArray[np.float64]] = []
     gs: list[NDArray[np.float64]] = []
     phase_count = len(phases)
+    T, P = cubic.T, cubic.P
+    arrays = _split_arrays(problem)
     for _ in range(MAX_PASSES):
         passes += 1
-        pi, n_c, converged = _frozen_phi_split(problem, phases, pi, n_c, present_c)
+        pi, n_c, x, converged = _frozen_phi_split(arrays, phases, pi, n_c, present_c)
         if not converged and len(phases) > 1:
             # A phase on its way out leaves its closure sum_j x_j = 1 as an equation no potentials can meet:
             # drop it and solve again on the phases that hold the mixture.
@@ -345,13 +462,9 @@ def _settle(problem, phase, phases, pi, n_c, present_c, keep_gas, n_gas, T, P, p
                 f"the split into {len(phases)} fluid phases did not converge at T = {T:g} K, "
                 f"P = {P:g} Pa; try a temperature a little further from the mixture's critical region, or "
                 "liquid=False for the one-gas answer")
-        phases = _without_vanished(phases)
-        phases = _merged(problem, phases, pi)
-        ln_x = _compositions(problem, phases, pi)
+        phases, x = _merged(*_without_vanished(phases, x))
         held = np.concatenate([p.ln_phi for p in phases])
-        found = np.concatenate([
-            _phase_ln_phi(phase, _system_gas(np.exp(ln_x[k]), keep_gas, n_gas), T, P,
-                          LEAST_GIBBS_ROOT if p.liquid else VAPOUR_ROOT)[keep_gas] for k, p in enumerate(phases)])
+        found = cubic.evaluate(phases, x).ravel()
         allowed = np.concatenate([p.allowed for p in phases])
         previous, change = change, float(np.max(np.abs(np.where(allowed, found - held, 0.0))))
         if change <= PHI_TOLERANCE:
@@ -379,16 +492,18 @@ def _assign(phases: list[_Phase], ln_phi: NDArray[np.float64]) -> None:
         p.ln_phi = ln_phi[k * p.ln_phi.size:(k + 1) * p.ln_phi.size].copy()
 
 
-def _without_vanished(phases: list[_Phase]) -> list[_Phase]:
-    total = sum(np.exp(p.ln_N) for p in phases)
-    kept = [p for p in phases if np.exp(p.ln_N) > VANISHED * total]
-    return kept or phases[:1]
+def _without_vanished(phases: list[_Phase], x: NDArray[np.float64]) -> tuple[list[_Phase], NDArray[np.float64]]:
+    """The phases (and their rows of mole fractions x) that hold more than ``VANISHED`` of the fluid."""
+    amounts = [math.exp(p.ln_N) for p in phases]
+    floor = VANISHED * sum(amounts)
+    kept = [k for k, amount in enumerate(amounts) if amount > floor] or [0]
+    if len(kept) == len(phases):
+        return phases, x
+    return [phases[k] for k in kept], x[kept]
 
 
-def _merged(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64]) -> list[_Phase]:
-    """Phases that settled on one composition, as one phase (the amounts added)."""
-    ln_x = _compositions(problem, phases, pi)
-    x = np.exp(ln_x)
+def _merged(phases: list[_Phase], x: NDArray[np.float64]) -> tuple[list[_Phase], NDArray[np.float64]]:
+    """Phases that settled on one composition (the rows of x), as one phase (the amounts added)."""
     kept: list[int] = []
     for k in range(len(phases)):
         twin = next((i for i in kept if np.max(np.abs(x[k] - x[i])) < SAME_COMPOSITION), None)
@@ -396,12 +511,12 @@ def _merged(problem: Problem, phases: list[_Phase], pi: NDArray[np.float64]) -> 
             kept.append(k)
         else:
             phases[twin].ln_N = float(np.logaddexp(phases[twin].ln_N, phases[k].ln_N))
-    return [phases[k] for k in kept]
+    return [phases[k] for k in kept], x[kept]
 
 
-def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: NDArray[np.float64],
-                 keep_gas: NDArray[np.int_], liquid_allowed: NDArray[np.bool_], n_gas: int, T: float,
-                 P: float) -> tuple[_Phase | None, float]:
+def _added_phase(phase: GasPhase, cubic: _PhaseCubic, problem: Problem, phases: list[_Phase],
+                 pi: NDArray[np.float64], keep_gas: NDArray[np.int_], liquid_allowed: NDArray[np.bool_],
+                 n_gas: int) -> tuple[_Phase | None, float]:
     """A further liquid where the tangent-plane test of the settled first phase still finds one.
 
     At a settled split every present phase has the same tangent plane, so one
@@ -411,7 +526,7 @@ def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: ND
     ln_x = _compositions(problem, phases, pi)
     first = _system_gas(np.exp(ln_x[0]), keep_gas, n_gas)
     part = first[phase.described]
-    verdict = tangent_plane_test(phase.model, T, P, part / part.sum(), liquid=phases[0].liquid)
+    verdict = tangent_plane_test(phase.model, cubic.T, cubic.P, part / part.sum(), liquid=phases[0].liquid)
     if verdict.stable or len(phases) >= int(liquid_allowed.sum()):
         return None, verdict.distance
     trial = np.zeros(n_gas)
@@ -419,7 +534,7 @@ def _added_phase(phase: GasPhase, problem: Problem, phases: list[_Phase], pi: ND
     for k in range(len(phases)):
         if np.max(np.abs(trial[keep_gas] - np.exp(ln_x[k]))) < 1e3 * SAME_COMPOSITION:
             return None, 0.0
-    return _new_liquid(phase, trial, keep_gas, liquid_allowed, T, P, phases[0].ln_N), verdict.distance
+    return _new_liquid(cubic, trial[keep_gas], liquid_allowed, phases[0].ln_N), verdict.distance
 
 
 def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, one_gas, passes, model,
@@ -441,14 +556,7 @@ def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, o
             names.append("liquid" if liquids == 1 else f"liquid {liquids}")
         else:
             names.append("gas")
-    Z = []
-    for k, p in enumerate(phases):
-        part = amounts[k][phase.described]
-        y = part / part.sum()
-        if p.liquid:
-            Z.append(model.least_gibbs_root(T, P, y)[2])
-        else:
-            Z.append(float(model.properties(T, P, y).Z))
+    Z = [p.Z for p in phases]
     split = FluidSplit(tuple(names), amounts, ln_phi, tuple(Z), passes, distance)
     totals = dict(one_gas.amounts)
     for j, name in enumerate(system.gas_names):
@@ -482,13 +590,13 @@ def _answer(setup, problem, phase, phases, pi, n_c, present_c, keep_gas, T, P, o
         residual_H += float(part.sum() * R * T * properties.H_res_RT)
         residual_S += float(part.sum() * R * properties.S_res_R)
     first = fluid[0]
-    state = replace(one_gas.gas, fugacity_coefficients=dict(first.fugacity_coefficients),
+    state = replaced(one_gas.gas, fugacity_coefficients=dict(first.fugacity_coefficients),
                     compressibility_factor=first.compressibility_factor, residual_enthalpy_J=residual_H,
                     residual_entropy_J_per_K=residual_S, iterations=one_gas.gas.iterations + passes,
                     note=one_gas.gas.note + f"; {len(names)} fluid phases ({', '.join(names)}), each on its own "
                     "root of the cubic (fugacity coefficients and Z above: the first phase's)",
                     stability=split.stability_record())
-    eq = replace(one_gas, amounts=totals, ln_gas_amounts=ln_gas, element_potentials=potentials, G_RT=G_RT,
+    eq = replaced(one_gas, amounts=totals, ln_gas_amounts=ln_gas, element_potentials=potentials, G_RT=G_RT,
                  certificate=certificate.with_phase_stability("stable"), fluid_phases=fluid, gas=state,
                  extras={**one_gas.extras, **gas_model_extras(state)})
     return eq, split

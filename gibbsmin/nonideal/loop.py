@@ -8,11 +8,13 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import NDArray
 
+from ..compiled import compiled
 from ..eos.phase import GasPhase
 from ..equilibrium import Equilibrium, GasModelState
 from ..errors import ConvergenceError
 from ..fixed_step import Setup, build_problem, fixed_problem, solve_fixed, to_equilibrium
 from ..solve import CertificateBatch, SolverResult, certify, solve
+from ..solve._newton_kernel import _lu_solve
 from ..system import Problem
 from ..thermo.nasa7 import R
 
@@ -66,15 +68,46 @@ def _anderson_step(xs: list, gs: list) -> NDArray[np.float64]:
     Minimises the linearised residual over the affine span of the stored
     residuals f_i = g_i - x_i, and maps the combination through the images.
     """
-    f = [g - x for x, g in zip(xs, gs)]
-    dF = np.column_stack([f[i + 1] - f[i] for i in range(len(f) - 1)])
-    dG = np.column_stack([gs[i + 1] - gs[i] for i in range(len(gs) - 1)])
-    # The normal equations of at most three columns, with a ridge of 1e-14 of their trace (as the batch's
-    # acceleration has): a tenth of the cost of a least-squares call, which this loop makes every pass.
-    gram = dF.T @ dF
-    ridge = 1e-14 * float(np.trace(gram)) + 1e-300
-    gamma = np.linalg.solve(gram + ridge * np.eye(gram.shape[0]), dF.T @ f[-1])
-    return gs[-1] - dG @ gamma
+    return _anderson_kernel(np.array(xs), np.array(gs))
+
+
+@compiled()
+def _anderson_kernel(X, G):
+    """:func:`_anderson_step` on the iterates (rows of X) and images (rows of G), compiled: the normal equations
+    of at most three columns with a ridge of 1e-14 of their trace (as the batch's acceleration has), where numpy's
+    calls cost twenty times the arithmetic and the loops make one every pass. A singular system (no change in
+    the residuals at all) gives the plain step g."""
+    k, n = X.shape
+    m = k - 1
+    dF = np.empty((m, n))
+    for i in range(m):
+        for j in range(n):
+            dF[i, j] = (G[i + 1, j] - X[i + 1, j]) - (G[i, j] - X[i, j])
+    gram = np.empty((m, m))
+    rhs = np.empty(m)
+    trace = 0.0
+    for i in range(m):
+        for l in range(m):
+            total = 0.0
+            for j in range(n):
+                total += dF[i, j] * dF[l, j]
+            gram[i, l] = total
+        trace += gram[i, i]
+        total = 0.0
+        for j in range(n):
+            total += dF[i, j] * (G[k - 1, j] - X[k - 1, j])
+        rhs[i] = total
+    ridge = 1e-14 * trace + 1e-300
+    for i in range(m):
+        gram[i, i] += ridge
+    gamma = np.empty(m)
+    step = G[k - 1].copy()
+    if not _lu_solve(gram, rhs, gamma):
+        return step
+    for i in range(m):
+        for j in range(n):
+            step[j] -= (G[i + 1, j] - G[i, j]) * gamma[i]
+    return step
 
 
 def solve_nonideal(

@@ -100,16 +100,22 @@ def solve_points(spec: SweepSpec, first: int, last: int) -> pd.DataFrame:
 
 def _split_points(prepared: Prepared, setup: Setup, group, T, P, feed, feed_names, y, x, liquid_fraction,
                   n_condensed, certified, iterations, solver, summary) -> None:
-    """The points of a batch whose gas the tangent-plane test finds unstable, flashed one by one through the
-    pipeline (each split into gas and liquid, certified over every phase), written over their one-gas rows."""
+    """The points of a batch whose gas the tangent-plane test finds unstable, flashed through the pipeline in
+    order, each warm-started from the one before (``equilibrate_many``: split into gas and liquid, certified
+    over every phase), written over their one-gas rows."""
     system = setup.system
     phase = prepared.gas_phase_of(setup)
+    unstable = []
     for i in group:
         z = y[i, phase.described]
-        if not np.all(np.isfinite(z)) or not z.sum() > 0.0 or tangent_plane_test(phase.model, float(T[i]), float(P[i]),
-                                                                                 z / z.sum()).stable:
-            continue
-        eq = prepared.equilibrate(dict(zip(feed_names, map(float, feed[i]))), float(T[i]), float(P[i]))
+        if np.all(np.isfinite(z)) and z.sum() > 0.0 and not tangent_plane_test(
+                phase.model, float(T[i]), float(P[i]), z / z.sum()).stable:
+            unstable.append(i)
+    if not unstable:
+        return
+    answers = prepared.equilibrate_many([dict(zip(feed_names, map(float, feed[i]))) for i in unstable],
+                                        T[unstable], P[unstable])
+    for i, eq in zip(unstable, answers):
         if eq.fluid_phases is None:
             continue
         fluid_total = sum(p.amount for p in eq.fluid_phases)
