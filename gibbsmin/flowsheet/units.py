@@ -106,14 +106,14 @@ class FluidModel:
     gas: str = "ideal"
     kij: object = "shipped"
 
-    def specification(self, flows: Mapping[str, float], context: Context, split: bool = True) -> Specification:
-        """Every species held, water free to condense with the ideal gas; ``split``: liquids allowed."""
+    def specification(self, flows: Mapping[str, float], context: Context) -> Specification:
+        """Every species held; water free to condense as H2O(l) with the ideal gas, a liquid solution with a cubic."""
         db = context.db
         names = list(flows)
         gases = [s for s in names if db[s].is_gas]
         extrapolate = context.case.species.allow_extrapolation
         if self.gas == "ideal":
-            water = split and ("H2O" in names or LIQUID_WATER in names)
+            water = "H2O" in names or LIQUID_WATER in names
             species = list(dict.fromkeys([*names, *(("H2O", LIQUID_WATER) if water else ())]))
             held = [s for s in gases if not (water and s == "H2O")]
             return Specification.of(species=species, inert=held, allow_extrapolation=extrapolate)
@@ -122,14 +122,14 @@ class FluidModel:
             raise InputError(f"the inlet holds {', '.join(solids)} as a pure condensed species, which a unit with "
                              f"gas = {self.gas!r} describes as part of its liquid solution; keep it out of the "
                              "stream (exclude it from the reactor before) or give this unit gas = 'ideal'")
-        return Specification.of(species=gases, inert=gases, gas=self.gas, kij=self.kij, liquid=split,
+        return Specification.of(species=gases, inert=gases, gas=self.gas, kij=self.kij, liquid=True,
                                 allow_extrapolation=extrapolate)
 
     def flash(self, inputs: tuple[Material, ...], names: tuple[str, ...], context: Context, *, T: float | None,
-              P: float, heat_input: float = 0.0, split: bool = True) -> Equilibrium:
+              P: float, heat_input: float = 0.0) -> Equilibrium:
         """The inlets' equilibrium with nothing reacting: at T, or at the T that heat_input [W] sets (T None)."""
         streams = {name: dict(m.flows) for name, m in zip(names, inputs)}
-        prepared = prepared_for(self.specification(added(*streams.values()), context, split), context.db)
+        prepared = prepared_for(self.specification(added(*streams.values()), context), context.db)
         return prepared.equilibrate(streams, T, P, T_feed={name: m.T for name, m in zip(names, inputs)},
                                     P_feed={name: m.P for name, m in zip(names, inputs)}, adiabatic=T is None,
                                     heat_input=heat_input)
