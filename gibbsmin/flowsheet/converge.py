@@ -11,6 +11,7 @@ specification) furthest out; it never returns a half-converged table.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Mapping
 from dataclasses import dataclass
 
@@ -93,9 +94,9 @@ class FlowsheetResult:
     history: tuple[float, ...]
     context: Context | None = None
 
-    @property
+    @functools.cached_property
     def units(self) -> tuple[Unit, ...]:
-        """The units as last run (with the specifications' settings)."""
+        """The units as last run (with the specifications' settings), made once per result."""
         return tuple(_with_settings(self.flowsheet, self.settings)[0])
 
 
